@@ -1,0 +1,94 @@
+"""Property models by name.
+
+==========================  ============================  =========================
+name                        aliases                       what it is
+==========================  ============================  =========================
+ideal-gas                   ig, ideal                     P v = R T, cp°(T)
+van-der-waals               vdw                           cubic, α = 1
+redlich-kwong               rk                            cubic, α = Tr^-1/2
+soave-redlich-kwong         srk, soave                    cubic, Soave α
+peng-robinson               pr                            cubic, Soave α (PR m)
+incompressible              liquid, solid                 constant cp and density
+reference                   ref, helmholtz                multiparameter EOS (CoolProp)
+==========================  ============================  =========================
+
+The reference model is imported only when asked for (CoolProp's import
+costs over a second).
+"""
+
+from __future__ import annotations
+
+from ..errors import InputError
+from ..species import Species
+from .base import Point, PropertyModel
+
+MODEL_NAMES = (
+    "ideal-gas",
+    "van-der-waals",
+    "redlich-kwong",
+    "soave-redlich-kwong",
+    "peng-robinson",
+    "incompressible",
+    "reference",
+)
+
+ALIASES = {
+    "ig": "ideal-gas",
+    "ideal": "ideal-gas",
+    "vdw": "van-der-waals",
+    "rk": "redlich-kwong",
+    "srk": "soave-redlich-kwong",
+    "soave": "soave-redlich-kwong",
+    "pr": "peng-robinson",
+    "liquid": "incompressible",
+    "solid": "incompressible",
+    "ref": "reference",
+    "helmholtz": "reference",
+}
+
+
+def canonical(name: str, field: str = "fluid.model") -> str:
+    """The model's full name from a name or alias (case-insensitive)."""
+    key = (name or "").strip().lower().replace("_", "-").replace(" ", "-")
+    key = ALIASES.get(key, key)
+    if key not in MODEL_NAMES:
+        raise InputError(field, f"unknown model {name!r}; expected one of {', '.join(MODEL_NAMES)}")
+    return key
+
+
+def make_model(name: str, species: Species, params: dict[str, float] | None = None,
+               field: str = "fluid.model") -> PropertyModel:
+    """A model instance for a species.
+
+    ``params`` carries model-level overrides from a worksheet: the cubic's
+    ``a`` and ``b``, the incompressible model's ``rho``.
+    """
+    key = canonical(name, field)
+    params = dict(params or {})
+    allowed = {"a", "b"} if key in _CUBICS else {"rho"} if key == "incompressible" else set()
+    extra = set(params) - allowed
+    if extra:
+        raise InputError(
+            "fluid.overrides",
+            f"{', '.join(sorted(extra))} does not apply to the {key} model",
+        )
+    if key == "ideal-gas":
+        from .idealgas import IdealGas
+
+        return IdealGas(species)
+    if key in _CUBICS:
+        from .cubic import FORMS, Cubic
+
+        return Cubic(species, FORMS[key], a=params.get("a"), b=params.get("b"))
+    if key == "incompressible":
+        from .incompressible import Incompressible
+
+        return Incompressible(species, rho=params.get("rho"))
+    from .reference import Reference
+
+    return Reference(species)
+
+
+_CUBICS = ("van-der-waals", "redlich-kwong", "soave-redlich-kwong", "peng-robinson")
+
+__all__ = ["MODEL_NAMES", "Point", "PropertyModel", "canonical", "make_model"]

@@ -1,0 +1,58 @@
+"""The ideal-gas model: P v = R T, with cp°(T) from the species' polynomials."""
+
+from __future__ import annotations
+
+import math
+
+from ..units import P_REF, R
+from .base import Point, PropertyModel
+
+
+class IdealGas(PropertyModel):
+    """Ideal gas with temperature-dependent cp° (or a constant cp override)."""
+
+    name = "ideal-gas"
+    label = "ideal gas"
+
+    @property
+    def reference_state(self) -> str:
+        return "ideal gas at 298.15 K and 1 bar: h = 0, s = 0"
+
+    def equations(self) -> list[str]:
+        return [
+            "P v = R T",
+            "u(T) = h(T) - R T;  h(T) = ∫ cp°(T) dT from 298.15 K",
+            "s(T, P) = ∫ cp°/T dT from 298.15 K - R ln(P / 1 bar)",
+            f"cp°(T): {self.species.cp_ig.label}",
+        ]
+
+    def at_Tv(self, T: float, v: float) -> Point:
+        P = R * T / v
+        return self._point(T, P, v)
+
+    def at_TP(self, T: float, P: float) -> Point:
+        return self._point(T, P, R * T / P)
+
+    def _point(self, T: float, P: float, v: float) -> Point:
+        cp_ig = self.species.cp_ig
+        cp = float(cp_ig.cp(T))
+        h = float(cp_ig.h(T))
+        s = float(cp_ig.s(T)) - R * math.log(P / P_REF)
+        return Point(T=T, P=P, v=v, u=h - R * T, h=h, s=s, cv=cp - R, cp=cp, Z=1.0,
+                     phase="gas", ln_phi=0.0)
+
+    def warnings(self, p: Point) -> list[str]:
+        out = []
+        cp_ig = self.species.cp_ig
+        if not cp_ig.in_range(p.T):
+            out.append(
+                f"T = {p.T:.2f} K is outside the range of the cp° polynomial ({cp_ig.range_text}); "
+                "cp, h and s there are extrapolated"
+            )
+        Tr, Pr = p.T / self.species.Tc, p.P / self.species.Pc
+        if Pr > 0.1 and Tr < 2.5:
+            out.append(
+                f"ideal gas at Tr = {Tr:.2f}, Pr = {Pr:.2f}: real-gas effects are likely "
+                "significant; compare with a cubic or the reference model"
+            )
+        return out

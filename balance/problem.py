@@ -1,0 +1,367 @@
+"""From a worksheet as typed to a closed-system problem in SI numbers.
+
+``prepare(worksheet)`` reads every value, builds the species (with its
+overrides) and the model, fixes the initial compartments, works out what
+the constraints imply for the final state and the boundary work, and counts
+unknowns against equations. ``Problem.dof`` says in words what is missing
+or over-specified before anything is solved.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+from .errors import InputError, SpecificationError
+from .models import make_model
+from .models.base import PropertyModel
+from .species import Species, lookup, with_overrides
+from .state import State, flash, read_specs
+from .units import dimension_of, parse
+from .worksheet import UNKNOWN, Worksheet
+
+
+@dataclass(frozen=True)
+class Compartment:
+    """One initial compartment: its state (None when evacuated) and volume."""
+
+    name: str
+    state: State | None
+    V: float | None
+    """volume [m3]; None when the amount is the unknown"""
+
+
+@dataclass(frozen=True)
+class Heat:
+    name: str
+    Q: float | None
+    """heat to the system [J]; None when unknown"""
+    T_boundary: float | None
+    """boundary or reservoir temperature [K]"""
+    T_boundary_note: str = ""
+
+
+@dataclass(frozen=True)
+class Work:
+    name: str
+    kind: str
+    W_on: float | None
+    """work done on the system [J]; None when unknown"""
+
+
+@dataclass(frozen=True)
+class Dof:
+    """The degrees-of-freedom count, with the words that explain it."""
+
+    unknowns: tuple[str, ...]
+    equations: tuple[str, ...]
+    fixed: tuple[str, ...]
+    """what fixes the final state, e.g. 'v by rigid'"""
+    message: str
+
+    @property
+    def ok(self) -> bool:
+        return len(self.unknowns) == len(self.equations)
+
+
+@dataclass
+class Problem:
+    """A closed-system problem, every value in SI."""
+
+    worksheet: Worksheet
+    species: Species
+    model: PropertyModel
+    p_atm: float
+    convention: str
+    initial: tuple[Compartment, ...]
+    n: float | None
+    """total amount [mol]; None when unknown"""
+    final_fixed: dict[str, float]
+    final_sources: dict[str, str]
+    path: str
+    """'rigid', 'isobaric', 'isothermal', 'polytropic' or 'given' (a boundary work term)"""
+    n_poly: float | None
+    heat: tuple[Heat, ...]
+    work: tuple[Work, ...]
+    reversible: bool
+    dKE: float
+    dPE: float
+    constraints: tuple[str, ...]
+    notes: list[str] = field(default_factory=list)
+
+    @property
+    def gases(self) -> list[Compartment]:
+        return [c for c in self.initial if c.state is not None]
+
+    @property
+    def dof(self) -> Dof:
+        return count_dof(self)
+
+    def linear_unknowns(self) -> list[str]:
+        names = [f"Q '{h.name}'" for h in self.heat if h.Q is None]
+        names += [f"W '{w.name}'" for w in self.work if w.W_on is None]
+        if self.n is None:
+            names.append("amount n")
+        return names
+
+    def equation_names(self) -> list[str]:
+        eqs = ["energy balance (first law)"]
+        if self.reversible:
+            eqs.append("reversible: S_gen = 0 (second law)")
+        if self.path == "polytropic":
+            eqs.append(f"polytropic path P v^{self.n_poly:g} = const")
+        return eqs
+
+
+def prepare(ws: Worksheet) -> Problem:
+    """Read a worksheet into a Problem; raises InputError naming the field."""
+    if ws.system.kind != "closed":
+        raise InputError("system.kind", "open systems (streams) are not available yet; use 'closed'")
+    p_atm = parse(ws.heading.atmosphere or "1.01325 bar", "pressure", "worksheet.atmosphere")
+    if not ws.fluid.species:
+        raise InputError("fluid.species", "give the species, e.g. 'N2' (`joulebook species` lists them)")
+    if not ws.fluid.model:
+        raise InputError("fluid.model", "give the property model, e.g. 'peng-robinson'")
+    species, params = with_overrides(lookup(ws.fluid.species, "fluid.species"), dict(ws.fluid.overrides))
+    model = make_model(ws.fluid.model, species, params)
+    constraints = set(ws.process.constraints)
+    if "free-expansion" in constraints:
+        constraints |= {"rigid", "adiabatic"}
+        if ws.work:
+            raise InputError("work", "free expansion means no work crosses the boundary: remove the work terms")
+    if "membrane-rupture" in constraints:
+        constraints.add("rigid")
+    if not ws.initial:
+        raise InputError("initial", "give the initial state ([[initial]] with two properties and an amount)")
+
+    compartments, n_total = _compartments(ws, model, p_atm)
+    gases = [c for c in compartments if c.state is not None]
+    if not gases:
+        raise InputError("initial", "every compartment is empty: at least one must hold the fluid")
+    if len(compartments) > 1 and "rigid" not in constraints:
+        raise InputError(
+            "process.constraints",
+            "several initial compartments join into one final state only inside a rigid boundary: "
+            "add 'rigid' (or 'membrane-rupture' / 'free-expansion')",
+        )
+    paths = [c for c in ("rigid", "isobaric", "polytropic") if c in constraints]
+    if len(paths) > 1:
+        raise InputError("process.constraints", f"{' and '.join(paths)} contradict each other: keep one path")
+    boundary_terms = [w for w in ws.work if w.kind == "boundary"]
+    path = paths[0] if paths else ("isothermal" if "isothermal" in constraints else "given")
+    if path != "given" and boundary_terms:
+        raise InputError(
+            "work", f"the {path} path fixes the boundary work; remove the work term '{boundary_terms[0].name}' of kind 'boundary'"
+        )
+    if path == "given" and not boundary_terms:
+        raise InputError(
+            "process.constraints",
+            "the volume may change but no path says how: add rigid, isobaric, isothermal or polytropic, "
+            "or a work term of kind 'boundary'",
+        )
+
+    fixed: dict[str, float] = {}
+    sources: dict[str, str] = {}
+    notes: list[str] = []
+    M = species.M
+    given = read_specs(ws.final.props, M, "final", p_atm)
+    for key, value in given.items():
+        fixed[key], sources[key] = value, "given"
+
+    def imply(key: str, value: float, why: str) -> None:
+        if key in fixed:
+            if math.isclose(fixed[key], value, rel_tol=1e-9):
+                notes.append(f"final {key} is both given and implied by {why}; counted once")
+                return
+            raise InputError(
+                f"final.{key}",
+                f"{key} is given as {fixed[key]:.6g} but {why} makes it {value:.6g} (SI): remove one",
+            )
+        fixed[key], sources[key] = value, why
+
+    first = gases[0].state.point
+    if "isothermal" in constraints:
+        _same(gases, "T", "isothermal")
+        imply("T", first.T, "isothermal")
+    if path == "isobaric":
+        _same(gases, "P", "isobaric")
+        imply("P", first.P, "isobaric")
+    V_total = sum(c.V for c in compartments) if n_total is not None else None
+    V_final = _final_volume(ws, p_atm)
+    if path == "rigid":
+        if n_total is not None:
+            imply("v", V_total / n_total, "rigid")
+        else:
+            imply("v", first.v, "rigid")
+    if V_final is not None:
+        if n_total is None:
+            raise InputError("final.V", "the amount is unknown, so a final volume cannot fix the state; give v instead")
+        if path == "rigid" and not math.isclose(V_final, V_total, rel_tol=1e-9):
+            raise InputError("final.V", f"rigid keeps V = {V_total:.6g} m3; the final V given differs")
+        if path != "rigid":
+            imply("v", V_final / n_total, "final V")
+    if len(fixed) > 2:
+        listed = ", ".join(f"{k} ({sources[k]})" for k in fixed)
+        raise SpecificationError(
+            f"the final state is over-specified: {listed} are all fixed but a state takes two; remove one"
+        )
+    n_poly = None
+    if path == "polytropic":
+        if len(gases) > 1:
+            raise InputError("process.constraints", "a polytropic path applies to one compartment")
+        if not ws.process.n:
+            raise InputError("process.n", "give the polytropic exponent n, e.g. 1.3")
+        n_poly = parse(ws.process.n, "dimensionless", "process.n")
+        if n_poly < 0:
+            raise InputError("process.n", f"expected a polytropic exponent >= 0; got {ws.process.n!r}")
+
+    reversible = "reversible" in constraints
+    heat = tuple(_heat(ws, i, p_atm, constraints, first) for i in range(len(ws.heat)))
+    if "adiabatic" in constraints and heat:
+        raise InputError("heat", f"the process is adiabatic but heat term '{ws.heat[0].name}' is given: remove one")
+    if reversible:
+        for h in heat:
+            if h.T_boundary is None:
+                raise InputError(
+                    f"heat '{h.name}'.T_boundary",
+                    "a reversible process needs the temperature at which each heat term crosses the boundary",
+                )
+    if not heat and "adiabatic" not in constraints:
+        notes.append("no heat term is given, so Q = 0: declare 'adiabatic' to say so explicitly")
+    work = tuple(_work(ws, i) for i in range(len(ws.work)))
+    dKE = parse(ws.process.dKE, "energy", "process.dKE") if ws.process.dKE else 0.0
+    dPE = parse(ws.process.dPE, "energy", "process.dPE") if ws.process.dPE else 0.0
+    return Problem(
+        worksheet=ws, species=species, model=model, p_atm=p_atm,
+        convention=ws.heading.convention, initial=compartments, n=n_total,
+        final_fixed=fixed, final_sources=sources, path=path, n_poly=n_poly, heat=heat,
+        work=work, reversible=reversible, dKE=dKE, dPE=dPE,
+        constraints=tuple(sorted(constraints)), notes=notes,
+    )
+
+
+def _same(gases: list[Compartment], key: str, why: str) -> None:
+    values = [getattr(c.state.point, key) for c in gases]
+    if max(values) - min(values) > 1e-9 * max(abs(v) for v in values):
+        raise InputError("process.constraints", f"{why} needs one initial {key}; the compartments differ")
+
+
+def _compartments(ws: Worksheet, model: PropertyModel, p_atm: float):
+    out = []
+    n_total: float | None = 0.0
+    M = model.species.M
+    for i, si in enumerate(ws.initial):
+        where = f"initial '{si.name}'"
+        if si.empty:
+            if "V" not in si.amount or si.amount["V"].strip() == UNKNOWN:
+                raise InputError(f"{where}.V", "an empty compartment needs its volume V")
+            if si.props or set(si.amount) - {"V"}:
+                raise InputError(where, "an empty compartment has only a volume V")
+            V = parse(si.amount["V"], "volume", f"{where}.V")
+            _positive(V, f"{where}.V")
+            out.append(Compartment(si.name, None, V))
+            continue
+        specs = read_specs(si.props, M, where, p_atm)
+        asked = si.unknowns()
+        if asked and set(asked) - {"n", "m"}:
+            raise InputError(where, f"{', '.join(asked)} of an initial state cannot be unknown; give two properties")
+        if len(specs) != 2:
+            raise InputError(where, f"needs exactly two of T, P, v (or rho), u, h, s, x; got {', '.join(specs) or 'none'}")
+        point = model.flash(specs, field=where)
+        amounts = {k: t for k, t in si.amount.items() if t.strip() != UNKNOWN}
+        if len(amounts) > 1:
+            raise InputError(where, f"give one amount (n, m or V); got {', '.join(amounts)}")
+        if not amounts:
+            if len(ws.initial) > 1:
+                raise InputError(where, "give the amount: n, m or V")
+            if not asked:
+                raise InputError(where, "give the amount: n, m or V (or mark n '?' to solve for it)")
+            out.append(Compartment(si.name, State(si.name, model, point, n=math.nan), None))
+            n_total = None
+            continue
+        key, text = next(iter(amounts.items()))
+        if key == "V":
+            V = parse(text, "volume", f"{where}.V")
+            _positive(V, f"{where}.V")
+            n = V / point.v
+        elif key == "m":
+            n = parse(text, "mass", f"{where}.m") / M
+        else:
+            kind, value = dimension_of(text, ("amount", "mass"), f"{where}.n")
+            n = value if kind == "amount" else value / M
+        _positive(n, f"{where}.{key}")
+        out.append(Compartment(si.name, State(si.name, model, point, n=n), n * point.v))
+        if n_total is not None:
+            n_total += n
+    return tuple(out), n_total
+
+
+def _positive(value: float, field: str) -> None:
+    if not value > 0:
+        raise InputError(field, f"must be positive; got {value:g} in SI units")
+
+
+def _final_volume(ws: Worksheet, p_atm: float) -> float | None:
+    amount = ws.final.amount
+    extra = set(amount) - {"V"}
+    if extra:
+        raise InputError("final", f"the final amount follows from the initial one; remove {', '.join(sorted(extra))}")
+    text = amount.get("V", "").strip()
+    if not text or text == UNKNOWN:
+        return None
+    V = parse(text, "volume", "final.V")
+    _positive(V, "final.V")
+    return V
+
+
+def _heat(ws: Worksheet, i: int, p_atm: float, constraints: set, first) -> Heat:
+    h = ws.heat[i]
+    where = f"heat '{h.name}'"
+    Q = None if h.Q.strip() == UNKNOWN else parse(h.Q, "energy", f"{where}.Q")
+    Tb = None
+    note = ""
+    if h.T_boundary:
+        Tb = parse(h.T_boundary, "temperature", f"{where}.T_boundary")
+        _positive(Tb, f"{where}.T_boundary")
+    elif "isothermal" in constraints:
+        Tb, note = first.T, "system temperature (isothermal)"
+    return Heat(h.name, Q, Tb, note)
+
+
+def _work(ws: Worksheet, i: int) -> Work:
+    w = ws.work[i]
+    where = f"work '{w.name}'"
+    if w.W.strip() == UNKNOWN:
+        return Work(w.name, w.kind, None)
+    value = parse(w.W, "energy", f"{where}.W")
+    sign = 1.0 if ws.heading.convention == "work-on-system" else -1.0
+    return Work(w.name, w.kind, sign * value)
+
+
+def count_dof(p: Problem) -> Dof:
+    """Unknowns against equations, and what to do about a mismatch, in words."""
+    missing = 2 - len(p.final_fixed)
+    state_unknowns = [f"final-state property {i + 1}" for i in range(missing)]
+    unknowns = tuple(state_unknowns + p.linear_unknowns())
+    equations = tuple(p.equation_names())
+    fixed = tuple(f"{k} by {why}" if why != "given" else f"{k} given" for k, why in p.final_sources.items())
+    nu, ne = len(unknowns), len(equations)
+    plural = lambda n, w: f"{n} {w}{'' if n == 1 else 's'}"  # noqa: E731
+    head = f"{plural(nu, 'unknown')}, {plural(ne, 'equation')}"
+    if nu == ne:
+        msg = f"{head}: ready to solve"
+    elif nu > ne:
+        free = [k for k in ("T", "P", "v") if k not in p.final_fixed]
+        options = [f"{k}2" for k in free] if missing else []
+        options += [f"the value of {u}" for u in p.linear_unknowns()]
+        msg = f"{head}: give {plural(nu - ne, 'more value')}: one of {', '.join(options) or 'the missing values'}"
+        if not p.reversible and missing:
+            msg += ", or add a constraint (isothermal, isobaric, reversible ...)"
+    else:
+        drop = [f"{k}2 ({why})" for k, why in p.final_sources.items()]
+        drop += [e for e in equations[1:]]
+        msg = (
+            f"{head}: over-specified; leave {plural(ne - nu, 'more value')} unknown ('?'), "
+            f"or drop one of: {', '.join(drop) or 'the constraints'}"
+        )
+    return Dof(unknowns, equations, fixed, msg)

@@ -1,0 +1,135 @@
+"""Bracketed one-dimensional root finding.
+
+``brent`` is Brent's method (R. P. Brent, *Algorithms for Minimization
+without Derivatives*, 1973, ch. 4): bisection safeguarding secant and
+inverse quadratic interpolation, so it never leaves the bracket. It is the
+algorithm behind ``scipy.optimize.brentq`` and is tested against it
+(``tests/test_rootfind.py``). It lives here because importing
+``scipy.optimize`` costs about 0.4 s, which every ``joulebook solve`` would
+pay at start-up for one small function; scipy's multidimensional ``root`` is
+still used, imported lazily, where two unknowns remain.
+"""
+
+from __future__ import annotations
+
+import math
+
+
+class NoBracket(ValueError):
+    """f(a) and f(b) have the same sign."""
+
+
+def brent(f, a: float, b: float, xtol: float = 1e-14, rtol: float = 4 * 2.2e-16, maxiter: int = 200,
+          fa: float | None = None, fb: float | None = None) -> float:
+    """A root of f in [a, b], where f(a) and f(b) differ in sign.
+
+    Parameters
+    ----------
+    f : callable  the function
+    a, b : float  the bracket
+    xtol, rtol : float  stop when the bracket is below xtol + rtol |x|
+    fa, fb : float, optional  f(a) and f(b) when already known
+
+    >>> round(brent(lambda x: x * x - 2.0, 0.0, 2.0), 12)
+    1.414213562373
+    """
+    fa = f(a) if fa is None else fa
+    fb = f(b) if fb is None else fb
+    if fa == 0.0:
+        return a
+    if fb == 0.0:
+        return b
+    if fa * fb > 0:
+        raise NoBracket(f"f({a:g}) and f({b:g}) have the same sign")
+    c, fc = a, fa
+    d = e = b - a
+    for _ in range(maxiter):
+        if fb * fc > 0:
+            c, fc = a, fa
+            d = e = b - a
+        if abs(fc) < abs(fb):
+            a, b, c = b, c, b
+            fa, fb, fc = fb, fc, fb
+        tol = 2.0 * rtol * abs(b) + 0.5 * xtol
+        m = 0.5 * (c - b)
+        if abs(m) <= tol or fb == 0.0:
+            return b
+        if abs(e) >= tol and abs(fa) > abs(fb):
+            s = fb / fa
+            if a == c:  # secant
+                p = 2.0 * m * s
+                q = 1.0 - s
+            else:  # inverse quadratic interpolation
+                q = fa / fc
+                r = fb / fc
+                p = s * (2.0 * m * q * (q - r) - (b - a) * (r - 1.0))
+                q = (q - 1.0) * (r - 1.0) * (s - 1.0)
+            if p > 0:
+                q = -q
+            else:
+                p = -p
+            if 2.0 * p < min(3.0 * m * q - abs(tol * q), abs(e * q)):
+                e, d = d, p / q
+            else:
+                d = e = m
+        else:
+            d = e = m
+        a, fa = b, fb
+        b += d if abs(d) > tol else math.copysign(tol, m)
+        fb = f(b)
+    raise RuntimeError(f"brent did not converge in {maxiter} iterations")
+
+
+def scan_root(f, grid, start: float | None = None, scale: float = 1.0, skip=(ValueError,),
+              rtol: float = 1e-13):
+    """Scan ``grid`` for a sign change of f and return the root in it.
+
+    Grid points are evaluated lazily, outward from the one nearest ``start``
+    (or from the low end), so a root near the expected value is found after
+    a few evaluations. Points where f raises one of ``skip`` are treated as
+    missing (a cubic has no single-phase state there). A sign change whose
+    brent result does not make |f| small relative to ``scale`` is a jump
+    (f is discontinuous across a two-phase region), not a root: it is
+    counted and the scan goes on.
+
+    Returns (root or None, number of jumps seen, last skipped exception).
+    """
+    n = len(grid)
+    values: dict[int, float] = {}
+    skipped = None
+
+    def value(i: int) -> float:
+        nonlocal skipped
+        if i not in values:
+            try:
+                values[i] = float(f(grid[i]))
+            except skip as exc:
+                skipped = exc
+                values[i] = math.nan
+        return values[i]
+
+    def try_interval(i: int):
+        fa, fb = value(i), value(i + 1)
+        if not (math.isfinite(fa) and math.isfinite(fb)) or fa * fb > 0:
+            return None
+        x = brent(f, float(grid[i]), float(grid[i + 1]), rtol=rtol, fa=fa, fb=fb)
+        return x if abs(f(x)) <= 1e-7 * scale else math.nan
+
+    if start is None:
+        order = range(n)
+    else:
+        i0 = min(range(n), key=lambda i: abs(grid[i] - start))
+        order = sorted(range(n), key=lambda i: (abs(i - i0), i))
+    jumps = 0
+    for i in order:
+        value(i)
+        for j in (i - 1, i):  # the intervals this point closes
+            if 0 <= j < n - 1 and j in values and j + 1 in values:
+                x = try_interval(j)
+                if x is None:
+                    continue
+                if math.isnan(x):
+                    jumps += 1
+                    continue
+                return x, jumps, skipped
+    return None, jumps, skipped

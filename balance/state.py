@@ -1,0 +1,147 @@
+"""States: a fluid, a model, an amount and two intensive properties.
+
+``flash(model, T=..., P=...)`` (any two of T, P, v, u, h, s, x in molar SI
+units) returns an immutable :class:`State`. ``read_specs`` turns what a
+person typed (``{"T": "20 degC", "v": "0.5 m3/kg"}``) into those molar SI
+values, accepting mass-based or molar inputs.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from .errors import InputError
+from .models.base import Point, PropertyModel
+from .units import P_ATM, dimension_of, parse
+
+#: For each property a person may give: the dimensions it is read as.
+SPEC_DIMENSIONS = {
+    "T": ("temperature",),
+    "P": ("pressure",),
+    "v": ("molar_volume", "specific_volume"),
+    "rho": ("density", "molar_density"),
+    "u": ("molar_energy", "specific_energy"),
+    "h": ("molar_energy", "specific_energy"),
+    "s": ("molar_entropy", "specific_entropy"),
+    "x": ("dimensionless",),
+}
+
+#: Units of every quantity in the JSON form (molar SI, pint-parsable).
+JSON_UNITS = {
+    "T": "K", "P": "Pa", "v": "m**3/mol", "u": "J/mol", "h": "J/mol", "s": "J/(mol*K)",
+    "cv": "J/(mol*K)", "cp": "J/(mol*K)", "Z": "dimensionless", "x": "dimensionless",
+    "u_dep": "J/mol", "h_dep": "J/mol", "s_dep": "J/(mol*K)", "n": "mol", "m": "kg",
+    "V": "m**3", "U": "J", "H": "J", "S": "J/K", "rho": "kg/m**3",
+}
+
+
+def quantity(value: float | None, unit: str) -> dict | None:
+    """The JSON encoding of a quantity: {"value": number, "unit": pint unit}."""
+    if value is None:
+        return None
+    return {"value": float(value), "unit": unit}
+
+
+def read_spec(key: str, text: str, M: float, field: str, p_atm: float = P_ATM) -> tuple[str, float]:
+    """One typed property as (key, molar SI value); rho becomes v.
+
+    Parameters
+    ----------
+    key : str  one of T, P, v, rho, u, h, s, x
+    text : str  what was typed
+    M : float  molar mass [kg/mol], for mass-based inputs
+    """
+    if key not in SPEC_DIMENSIONS:
+        raise InputError(field, f"unknown property {key!r}; expected one of {', '.join(SPEC_DIMENSIONS)}")
+    if key == "P":
+        return "P", parse(text, "pressure", field, p_atm=p_atm)
+    kind, value = dimension_of(text, SPEC_DIMENSIONS[key], field)
+    if key == "rho":
+        if value <= 0:
+            raise InputError(field, f"must be a positive density; got {text!r}")
+        return "v", (M / value if kind == "density" else 1.0 / value)
+    if kind in ("specific_volume", "specific_energy", "specific_entropy"):
+        value *= M
+    return key, value
+
+
+def read_specs(props: dict[str, str], M: float, where: str, p_atm: float = P_ATM) -> dict[str, float]:
+    """Every typed property of a state as molar SI values (unknowns '?' skipped)."""
+    out: dict[str, float] = {}
+    for key, text in props.items():
+        if text.strip() == "?":
+            continue
+        k, value = read_spec(key, text, M, f"{where}.{key}", p_atm)
+        if k in out:
+            raise InputError(f"{where}.{key}", "v and rho both fix the volume: give one")
+        out[k] = value
+    return out
+
+
+@dataclass(frozen=True)
+class State:
+    """One state of a known amount of fluid, immutable."""
+
+    name: str
+    model: PropertyModel
+    point: Point
+    n: float
+    """amount [mol]"""
+
+    @property
+    def M(self) -> float:
+        """molar mass [kg/mol]"""
+        return self.model.species.M
+
+    @property
+    def m(self) -> float:
+        """mass [kg]"""
+        return self.n * self.M
+
+    @property
+    def V(self) -> float:
+        """volume [m3]"""
+        return self.n * self.point.v
+
+    @property
+    def U(self) -> float:
+        """internal energy [J], relative to the model's reference state"""
+        return self.n * self.point.u
+
+    @property
+    def S(self) -> float:
+        """entropy [J/K]"""
+        return self.n * self.point.s
+
+    def __repr__(self) -> str:
+        p = self.point
+        return (
+            f"State({self.name!r}, {self.model.species.id}, {self.model.name}: T={p.T:.6g} K, "
+            f"P={p.P:.6g} Pa, v={p.v:.6g} m3/mol, n={self.n:.6g} mol, {p.phase})"
+        )
+
+    def as_json(self) -> dict:
+        """Every quantity as {"value", "unit"}; phase and root as text."""
+        p = self.point
+        out = {k: quantity(getattr(p, k), JSON_UNITS[k]) for k in
+               ("T", "P", "v", "u", "h", "s", "cv", "cp", "Z", "u_dep", "h_dep", "s_dep")}
+        out["x"] = quantity(p.x, "dimensionless")
+        out["rho"] = quantity(self.M / p.v, JSON_UNITS["rho"])
+        out.update(n=quantity(self.n, "mol"), m=quantity(self.m, "kg"), V=quantity(self.V, "m**3"))
+        out["phase"] = p.phase
+        out["root"] = p.root
+        out["name"] = self.name
+        return out
+
+
+def flash(model: PropertyModel, name: str = "state", n: float = 1.0, **specs: float) -> State:
+    """The state of ``n`` mol fixed by two properties (molar SI).
+
+    >>> from balance.species import lookup
+    >>> from balance.models import make_model
+    >>> s = flash(make_model("ideal-gas", lookup("N2")), T=300.0, P=1e5)
+    >>> round(s.point.v * 1e3, 4)  # L/mol
+    24.9434
+    """
+    point = model.flash(specs, field=name)
+    return State(name=name, model=model, point=point, n=n)

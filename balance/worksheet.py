@@ -1,0 +1,324 @@
+"""The worksheet: what the engineer typed, kept exactly as typed.
+
+A worksheet is a TOML file (layout in the README, "Worksheet format"). This
+module reads and writes it and checks its structure; every value stays the
+text the person typed (``"35 barg"``, ``"?"``) so nothing is lost and the
+record can show it. Turning the text into SI numbers and a model happens in
+:mod:`balance.problem`.
+
+The sections:
+
+``[worksheet]``  title, job, purpose, basis, assumptions, convention, atmosphere
+``[fluid]``      species, model, ``[fluid.overrides]``
+``[system]``     kind ("closed"; "open" is reserved for streams), inside, sketch
+``[[initial]]``  one table per compartment at the start
+``[final]``      the state at the end
+``[[heat]]``     heat terms: name, Q, T_boundary
+``[[work]]``     work terms: name, kind, W
+``[process]``    constraints, polytropic n, dKE, dPE
+
+A value of ``"?"`` marks an unknown to be solved for.
+"""
+
+from __future__ import annotations
+
+import tomllib
+from dataclasses import asdict, dataclass, field, fields, replace
+
+from .errors import InputError
+
+UNKNOWN = "?"
+
+#: Properties a state may be given by (and their accepted spellings).
+STATE_KEYS = ("T", "P", "v", "rho", "u", "h", "s", "x")
+AMOUNT_KEYS = ("n", "m", "V")
+CONVENTIONS = {
+    "work-on-system": "heat to the system and work done on the system are positive: ΔU = Q + W",
+    "work-by-system": "heat to the system and work done by the system are positive: ΔU = Q - W",
+}
+CONSTRAINTS = (
+    "rigid",
+    "adiabatic",
+    "isothermal",
+    "isobaric",
+    "reversible",
+    "polytropic",
+    "free-expansion",
+    "membrane-rupture",
+)
+WORK_KINDS = ("shaft", "stirring", "electrical", "boundary", "other")
+SYSTEM_KINDS = ("closed", "open")
+
+
+@dataclass(frozen=True)
+class Heading:
+    """Purpose and basis: what the calculation is for."""
+
+    title: str = ""
+    job: str = ""
+    """job or calculation reference"""
+    purpose: str = ""
+    """what is asked"""
+    basis: str = ""
+    """e.g. 'the gas in both vessels', '1 mol'"""
+    assumptions: tuple[str, ...] = ()
+    convention: str = "work-on-system"
+    """sign convention for work: a key of CONVENTIONS"""
+    atmosphere: str = "1.01325 bar"
+    """atmospheric pressure used for gauge readings"""
+
+
+@dataclass(frozen=True)
+class Fluid:
+    species: str = ""
+    model: str = ""
+    overrides: dict[str, str] = field(default_factory=dict)
+    """constant name -> text; treat as immutable (replace the Fluid to change it)"""
+
+
+@dataclass(frozen=True)
+class System:
+    kind: str = "closed"
+    inside: str = ""
+    """what the boundary encloses"""
+    sketch: str = ""
+    """a small text sketch of the boundary"""
+
+
+@dataclass(frozen=True)
+class StateInput:
+    """One state as typed: intensive properties and the amount (text, or '?')."""
+
+    name: str = ""
+    props: dict[str, str] = field(default_factory=dict)
+    """T, P, v, rho, u, h, s, x -> text"""
+    amount: dict[str, str] = field(default_factory=dict)
+    """n, m or V -> text"""
+    empty: bool = False
+    """an evacuated compartment: only V is given"""
+
+    def unknowns(self) -> list[str]:
+        return [k for k, v in {**self.props, **self.amount}.items() if v.strip() == UNKNOWN]
+
+
+@dataclass(frozen=True)
+class HeatTerm:
+    name: str = "Q"
+    Q: str = UNKNOWN
+    """heat to the system, or '?'"""
+    T_boundary: str = ""
+    """temperature of the boundary or reservoir the heat crosses at"""
+
+
+@dataclass(frozen=True)
+class WorkTerm:
+    name: str = "W"
+    kind: str = "shaft"
+    W: str = UNKNOWN
+    """work in the worksheet's sign convention, or '?'"""
+
+
+@dataclass(frozen=True)
+class Process:
+    constraints: tuple[str, ...] = ()
+    n: str = ""
+    """polytropic exponent, when 'polytropic' is a constraint"""
+    dKE: str = ""
+    """change of kinetic energy of the system"""
+    dPE: str = ""
+    """change of potential energy of the system"""
+
+
+@dataclass(frozen=True)
+class Worksheet:
+    """A whole closed-system worksheet, as typed."""
+
+    heading: Heading = field(default_factory=Heading)
+    fluid: Fluid = field(default_factory=Fluid)
+    system: System = field(default_factory=System)
+    initial: tuple[StateInput, ...] = ()
+    final: StateInput = field(default_factory=lambda: StateInput(name="final"))
+    heat: tuple[HeatTerm, ...] = ()
+    work: tuple[WorkTerm, ...] = ()
+    process: Process = field(default_factory=Process)
+
+    # -- conversion -----------------------------------------------------------
+    def to_dict(self) -> dict:
+        """The TOML layout as plain data (empty values left out)."""
+        out: dict = {}
+        head = {k: v for k, v in asdict(self.heading).items() if v not in ("", ())}
+        if "assumptions" in head:
+            head["assumptions"] = list(head["assumptions"])
+        out["worksheet"] = head
+        fluid = {"species": self.fluid.species, "model": self.fluid.model}
+        if self.fluid.overrides:
+            fluid["overrides"] = dict(self.fluid.overrides)
+        out["fluid"] = {k: v for k, v in fluid.items() if v not in ("", {})}
+        out["system"] = {k: v for k, v in asdict(self.system).items() if v != ""}
+        out["initial"] = [_state_dict(s) for s in self.initial]
+        out["final"] = _state_dict(self.final)
+        if self.heat:
+            out["heat"] = [{k: v for k, v in asdict(h).items() if v != ""} for h in self.heat]
+        if self.work:
+            out["work"] = [asdict(w) for w in self.work]
+        proc = {k: v for k, v in asdict(self.process).items() if v not in ("", ())}
+        if "constraints" in proc:
+            proc["constraints"] = list(proc["constraints"])
+        if proc:
+            out["process"] = proc
+        return out
+
+    def to_toml(self) -> str:
+        import tomli_w
+
+        return tomli_w.dumps(self.to_dict(), multiline_strings=True)
+
+    @classmethod
+    def from_toml(cls, text: str, source: str = "worksheet") -> "Worksheet":
+        try:
+            data = tomllib.loads(text)
+        except tomllib.TOMLDecodeError as exc:
+            raise InputError(source, f"is not valid TOML: {exc}") from None
+        return cls.from_dict(data)
+
+    @classmethod
+    def load(cls, path) -> "Worksheet":
+        try:
+            with open(path, "rb") as fh:
+                raw = fh.read()
+        except OSError as exc:
+            raise InputError(str(path), f"cannot be read: {exc.strerror}") from None
+        try:
+            text = raw.decode("utf-8")
+        except UnicodeDecodeError:
+            raise InputError(str(path), "is not UTF-8 text") from None
+        return cls.from_toml(text, str(path))
+
+    @classmethod
+    def from_dict(cls, data: dict) -> "Worksheet":
+        _only(data, ("worksheet", "fluid", "system", "initial", "final", "heat", "work", "process"), "")
+        head = _table(data, "worksheet")
+        _only(head, [f.name for f in fields(Heading)], "worksheet")
+        heading = Heading(
+            **{k: _text(head, k, "worksheet") for k in head if k != "assumptions"},
+            assumptions=tuple(_text_list(head, "assumptions", "worksheet")),
+        )
+        if heading.convention not in CONVENTIONS:
+            raise InputError(
+                "worksheet.convention",
+                f"expected one of {', '.join(CONVENTIONS)}; got {heading.convention!r}",
+            )
+        fl = _table(data, "fluid")
+        _only(fl, ("species", "model", "overrides"), "fluid")
+        overrides = _table(fl, "overrides", "fluid")
+        fluid = Fluid(
+            species=_text(fl, "species", "fluid"),
+            model=_text(fl, "model", "fluid"),
+            overrides={k: _text(overrides, k, "fluid.overrides") for k in overrides},
+        )
+        sy = _table(data, "system")
+        _only(sy, ("kind", "inside", "sketch"), "system")
+        system = System(**{k: _text(sy, k, "system") for k in sy})
+        if system.kind not in SYSTEM_KINDS:
+            raise InputError("system.kind", f"expected 'closed'; got {system.kind!r}")
+        initial = tuple(
+            _state(t, f"initial[{i + 1}]", default_name=f"initial {i + 1}")
+            for i, t in enumerate(_array(data, "initial"))
+        )
+        final = _state(_table(data, "final"), "final", default_name="final")
+        heat = []
+        for i, t in enumerate(_array(data, "heat")):
+            where = f"heat[{i + 1}]"
+            _only(t, ("name", "Q", "T_boundary"), where)
+            heat.append(HeatTerm(**{k: _text(t, k, where) for k in t}))
+        work = []
+        for i, t in enumerate(_array(data, "work")):
+            where = f"work[{i + 1}]"
+            _only(t, ("name", "kind", "W"), where)
+            w = WorkTerm(**{k: _text(t, k, where) for k in t})
+            if w.kind not in WORK_KINDS:
+                raise InputError(f"{where}.kind", f"expected one of {', '.join(WORK_KINDS)}; got {w.kind!r}")
+            work.append(w)
+        pr = _table(data, "process")
+        _only(pr, ("constraints", "n", "dKE", "dPE"), "process")
+        constraints = tuple(_text_list(pr, "constraints", "process"))
+        for c in constraints:
+            if c not in CONSTRAINTS:
+                raise InputError("process.constraints", f"unknown constraint {c!r}; expected any of {', '.join(CONSTRAINTS)}")
+        process = Process(
+            constraints=constraints,
+            **{k: _text(pr, k, "process") for k in ("n", "dKE", "dPE") if k in pr},
+        )
+        return cls(heading, fluid, system, initial, final, tuple(heat), tuple(work), process)
+
+    def with_(self, **changes) -> "Worksheet":
+        """A copy with some sections replaced (the worksheet is immutable)."""
+        return replace(self, **changes)
+
+
+def _state_dict(s: StateInput) -> dict:
+    d: dict = {}
+    if s.name:
+        d["name"] = s.name
+    if s.empty:
+        d["empty"] = True
+    d.update(s.props)
+    d.update(s.amount)
+    return d
+
+
+def _state(t: dict, where: str, default_name: str) -> StateInput:
+    _only(t, ("name", "empty", *STATE_KEYS, *AMOUNT_KEYS), where)
+    empty = t.get("empty", False)
+    if not isinstance(empty, bool):
+        raise InputError(f"{where}.empty", f"must be true or false; got {empty!r}")
+    return StateInput(
+        name=_text(t, "name", where) or default_name,
+        props={k: _text(t, k, where) for k in STATE_KEYS if k in t},
+        amount={k: _text(t, k, where) for k in AMOUNT_KEYS if k in t},
+        empty=empty,
+    )
+
+
+def _only(table: dict, allowed, where: str) -> None:
+    for key in table:
+        if key not in allowed:
+            name = f"{where}.{key}" if where else key
+            raise InputError(name, f"is not a known key here; expected one of {', '.join(allowed)}")
+
+
+def _table(data: dict, key: str, where: str = "") -> dict:
+    value = data.get(key, {})
+    if not isinstance(value, dict):
+        raise InputError(f"{where}.{key}" if where else key, "must be a table")
+    return value
+
+
+def _array(data: dict, key: str) -> list[dict]:
+    value = data.get(key, [])
+    if isinstance(value, dict):
+        value = [value]
+    if not isinstance(value, list) or not all(isinstance(v, dict) for v in value):
+        raise InputError(key, f"must be an array of tables ([[{key}]])")
+    return value
+
+
+def _text(table: dict, key: str, where: str) -> str:
+    """A value as the text a person typed; numbers are kept as their text."""
+    value = table.get(key, "")
+    if isinstance(value, bool):
+        raise InputError(f"{where}.{key}", f"must be text or a number; got {value!r}")
+    if isinstance(value, (int, float)):
+        return repr(value)
+    if not isinstance(value, str):
+        raise InputError(f"{where}.{key}", f"must be text; got {type(value).__name__}")
+    return value
+
+
+def _text_list(table: dict, key: str, where: str) -> list[str]:
+    value = table.get(key, [])
+    if isinstance(value, str):
+        value = [value]
+    if not isinstance(value, list) or not all(isinstance(v, str) for v in value):
+        raise InputError(f"{where}.{key}", "must be a list of text")
+    return value

@@ -1,0 +1,184 @@
+"""Bad input gets a clear message naming the field, never a traceback.
+
+Facts checked here are the product's own contract (common practice, no
+source): wrong dimensions, non-physical values, unknown names, under- and
+over-specified worksheets, and a wet state asked of a cubic.
+"""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+
+import pytest
+
+from balance.closed import solve_worksheet
+from balance.errors import InputError, SpecificationError, TwoPhaseError
+from balance.problem import prepare
+from balance.units import parse
+from balance.worksheet import HeatTerm
+from tests.helpers import ROOT, sheet
+
+BASE = """
+[fluid]
+species = "N2"
+model = "peng-robinson"
+[[initial]]
+name = "start"
+T = "{T1}"
+P = "{P1}"
+V = "1 m3"
+[final]
+{final}
+[process]
+constraints = [{constraints}]
+"""
+
+
+def ws(T1="300 K", P1="10 bar", final='T = "?"', constraints='"rigid", "adiabatic"'):
+    return sheet(BASE.format(T1=T1, P1=P1, final=final, constraints=constraints))
+
+
+@pytest.mark.parametrize(
+    "text, dimension, expected",
+    [
+        ("500 K", "pressure", "P1 must be a pressure"),
+        ("35 bar", "temperature", "P1 must be a temperature"),
+        ("hot", "temperature", "expected a number and a unit"),
+        ("500", "temperature", "with a unit"),
+        ("2 kg", "volume", "must be a volume"),
+    ],
+)
+def test_wrong_dimension_names_field(text, dimension, expected):
+    with pytest.raises(InputError) as err:
+        parse(text, dimension, "P1")
+    assert str(err.value).replace(":", "", 1).startswith("P1")
+    assert expected.split(" ", 1)[1] in str(err.value)
+
+
+def test_offset_temperatures_are_temperatures_not_differences():
+    # 20 degC is 293.15 K; 68 degF is 293.15 K (definition of the scales).
+    assert parse("20 degC", "temperature", "T") == pytest.approx(293.15)
+    assert parse("68 degF", "temperature", "T") == pytest.approx(293.15)
+    # gauge pressure adds the atmosphere given (default 1.01325 bar, the standard atmosphere)
+    assert parse("3.2 barg", "pressure", "P") == pytest.approx(421325.0)
+    assert parse("150 psig", "pressure", "P") == pytest.approx(150 * 6894.757293168 + 101325.0)
+    assert parse("1 barg", "pressure", "P", p_atm=0.95e5) == pytest.approx(1.95e5)
+
+
+@pytest.mark.parametrize(
+    "kwargs, field",
+    [
+        (dict(T1="-5 K"), "initial 'start'.T"),
+        (dict(T1="-300 degC"), "initial 'start'.T"),
+        (dict(P1="0 bar"), "initial 'start'.P"),
+        (dict(P1="-2 bar"), "initial 'start'.P"),
+    ],
+)
+def test_non_physical_values(kwargs, field):
+    with pytest.raises(InputError) as err:
+        prepare(ws(**kwargs))
+    assert err.value.field == field
+
+
+def test_unknown_species_suggests():
+    with pytest.raises(InputError, match="unknown species 'nitrogn'") as err:
+        prepare(sheet(BASE.format(T1="300 K", P1="1 bar", final="", constraints="").replace('"N2"', '"nitrogn"')))
+    assert err.value.field == "fluid.species"
+
+
+def test_unknown_model():
+    with pytest.raises(InputError, match="unknown model 'pengrobinson'"):
+        prepare(sheet(BASE.format(T1="300 K", P1="1 bar", final="", constraints="").replace('"peng-robinson"', '"pengrobinson"')))
+
+
+def test_under_specified_says_what_to_give():
+    heated = ws(constraints='"rigid"').with_(heat=(HeatTerm("heater", "?", "400 K"),))
+    p = prepare(heated)
+    assert not p.dof.ok
+    assert p.dof.message.startswith("2 unknowns, 1 equation: give 1 more value")
+    assert "T2" in p.dof.message and "P2" in p.dof.message and "Q 'heater'" in p.dof.message
+    with pytest.raises(SpecificationError, match="give 1 more value"):
+        solve_worksheet(heated)
+
+
+def test_over_specified_final_state():
+    with pytest.raises(SpecificationError, match="over-specified"):
+        prepare(ws(final='T = "280 K"\nP = "5 bar"', constraints='"rigid", "adiabatic"'))
+
+
+def test_over_specified_equations():
+    p = prepare(ws(final='T = "280 K"', constraints='"rigid", "adiabatic"'))
+    assert p.dof.message.startswith("0 unknowns, 1 equation: over-specified")
+
+
+def test_two_phase_state_with_a_cubic_is_refused_with_advice():
+    # Water at 100 degC and 1 m3/kg lies between saturated liquid and vapour
+    # (IAPWS-IF97 steam tables, from memory: vg = 1.673 m3/kg).
+    text = """
+[fluid]
+species = "H2O"
+model = "peng-robinson"
+[[initial]]
+T = "100 degC"
+v = "1 m3/kg"
+m = "1 kg"
+[final]
+T = "?"
+[process]
+constraints = ["rigid", "adiabatic"]
+"""
+    with pytest.raises(TwoPhaseError, match="reference model"):
+        prepare(sheet(text))
+
+
+def test_unknown_key_is_named():
+    with pytest.raises(InputError) as err:
+        sheet("[final]\nTemp = '300 K'\n")
+    assert err.value.field == "final.Temp"
+
+
+def test_bad_toml_is_reported():
+    with pytest.raises(InputError, match="not valid TOML"):
+        sheet("[final\nT = 1")
+
+
+def run_cli(*args, stdin=None):
+    return subprocess.run([sys.executable, "-m", "tui.cli", *args], capture_output=True, text=True,
+                          cwd=ROOT, timeout=300)
+
+
+def test_cli_exit_codes_and_no_traceback(tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text(BASE.format(T1="300 K", P1="500 K", final='T = "?"', constraints='"rigid", "adiabatic"'))
+    out = run_cli("solve", str(bad))
+    assert out.returncode == 2
+    assert "initial 'start'.P: must be a pressure" in out.stderr and "Traceback" not in out.stderr
+
+    impossible = tmp_path / "impossible.toml"
+    impossible.write_text("""
+[fluid]
+species = "N2"
+model = "ideal-gas"
+[[initial]]
+T = "300 K"
+P = "1 bar"
+n = "1 mol"
+[final]
+T = "400 K"
+[[heat]]
+name = "reservoir"
+Q = "?"
+T_boundary = "320 K"
+[process]
+constraints = ["rigid"]
+""")
+    out = run_cli("solve", str(impossible))
+    assert out.returncode == 1
+    assert "impossible process" in out.stderr and "Traceback" not in out.stderr
+
+    out = run_cli("solve", str(tmp_path / "missing.toml"))
+    assert out.returncode == 2 and "cannot be read" in out.stderr
+
+    out = run_cli("state", "N2", "--model", "pr", "--given", "T=300 K")
+    assert out.returncode == 2 and "exactly two" in out.stderr

@@ -1,0 +1,205 @@
+"""The ``joulebook`` command.
+
+Headless subcommands (``solve``, ``check``, ``state``, ``species``) never
+import Textual, and CoolProp only when the reference model is asked for.
+Exit codes: 0 solved/valid, 1 solved-failed (no convergence, impossible
+process), 2 bad input (message on stderr).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from importlib import resources
+from pathlib import Path
+
+from balance.errors import BalanceError, InputError, SolveError, SpecificationError
+
+EXIT_OK, EXIT_FAILED, EXIT_INPUT = 0, 1, 2
+DEMO_SAMPLE = "n2-buffer-into-receiver.toml"
+
+
+def _console(stderr: bool = False):
+    from rich.console import Console
+
+    return Console(stderr=stderr, highlight=False)
+
+
+def _fail(message: str, code: int) -> int:
+    print(f"joulebook: {message}", file=sys.stderr)
+    return code
+
+
+def sample_path(name: str) -> str:
+    """Path of a bundled sample worksheet.
+
+    The wheel carries ``samples/`` inside the ``tui`` package; a source
+    checkout has it at the top of the tree.
+    """
+    bundled = resources.files("tui").joinpath("samples", name)
+    if bundled.is_file():
+        return str(bundled)
+    return str(Path(__file__).resolve().parent.parent / "samples" / name)
+
+
+# -- subcommands ------------------------------------------------------------------
+def cmd_solve(args) -> int:
+    from balance.closed import solve_worksheet
+    from balance.worksheet import Worksheet
+
+    result = solve_worksheet(Worksheet.load(args.file))
+    if args.json:
+        print(json.dumps(result.as_json(), indent=2, ensure_ascii=False))
+    else:
+        from .render import result_renderable
+
+        _console().print(result_renderable(result, args.units))
+    return EXIT_OK
+
+
+def cmd_check(args) -> int:
+    from balance.problem import prepare
+    from balance.worksheet import Worksheet
+
+    problem = prepare(Worksheet.load(args.file))
+    dof = problem.dof
+    from .render import dof_renderable
+
+    _console().print(dof_renderable(problem, dof))
+    return EXIT_OK if dof.ok else EXIT_INPUT
+
+
+def cmd_state(args) -> int:
+    from balance.models import make_model
+    from balance.species import lookup, with_overrides
+    from balance.state import State, read_specs
+
+    overrides = dict(_pairs(args.override, "--override"))
+    species, params = with_overrides(lookup(args.fluid, "FLUID"), overrides, "--override")
+    model = make_model(args.model, species, params, field="--model")
+    props = dict(_pairs(args.given, "--given"))
+    specs = read_specs(props, species.M, "--given")
+    if len(specs) != 2:
+        raise InputError("--given", f"give exactly two properties, like --given T='500 K' --given P='10 bar'; got {len(specs)}")
+    point = model.flash(specs, field="state")
+    st = State("state", model, point, n=1.0)
+    warnings = model.warnings(point)
+    if args.json:
+        out = st.as_json()
+        out.update(species=species.id, model=model.name, reference_state=model.reference_state, warnings=warnings)
+        print(json.dumps(out, indent=2, ensure_ascii=False))
+    else:
+        from .render import state_renderable
+
+        _console().print(state_renderable(st, args.units, warnings))
+    return EXIT_OK
+
+
+def cmd_species(args) -> int:
+    from balance.species import catalogue, lookup
+
+    from .render import species_detail, species_table
+
+    if args.name:
+        sp = lookup(args.name, "NAME")
+        if args.json:
+            print(json.dumps(_species_json(sp), indent=2))
+        else:
+            _console().print(species_detail(sp))
+    else:
+        entries = list(catalogue().values())
+        if args.json:
+            print(json.dumps([_species_json(sp) for sp in entries], indent=2))
+        else:
+            _console().print(species_table(entries))
+    return EXIT_OK
+
+
+def _species_json(sp) -> dict:
+    return {
+        "id": sp.id, "name": sp.name, "formula": sp.formula, "cas": sp.cas,
+        "M": {"value": sp.M, "unit": "kg/mol"}, "Tc": {"value": sp.Tc, "unit": "K"},
+        "Pc": {"value": sp.Pc, "unit": "Pa"}, "omega": sp.omega, "coolprop": sp.coolprop,
+        "cp_ideal_gas": sp.cp_ig.label, "sources": sp.sources,
+    }
+
+
+def cmd_demo(args) -> int:
+    args.file = sample_path(DEMO_SAMPLE)
+    args.json = False
+    return cmd_solve(args)
+
+
+def _pairs(items, flag: str):
+    for item in items or []:
+        if "=" not in item:
+            raise InputError(flag, f"expected NAME=VALUE, like T='500 K'; got {item!r}")
+        key, value = item.split("=", 1)
+        yield key.strip(), value.strip()
+
+
+# -- the parser --------------------------------------------------------------------
+def build_parser() -> argparse.ArgumentParser:
+    from balance import __version__
+
+    parser = argparse.ArgumentParser(
+        prog="joulebook",
+        description="Checked energy-balance calculations for closed systems.",
+    )
+    parser.add_argument("--version", action="version", version=f"joulebook {__version__}")
+    sub = parser.add_subparsers(dest="command")
+
+    units = dict(choices=("si", "metric", "us"), default="metric", help="display units (default metric)")
+
+    p = sub.add_parser("solve", help="solve a worksheet and print the result")
+    p.add_argument("file", help="worksheet (TOML)")
+    p.add_argument("--json", action="store_true", help="machine-readable output (SI units)")
+    p.add_argument("--units", **units)
+    p.set_defaults(func=cmd_solve)
+
+    p = sub.add_parser("check", help="validate a worksheet and count degrees of freedom (no solve)")
+    p.add_argument("file")
+    p.set_defaults(func=cmd_check)
+
+    p = sub.add_parser("state", help="print one state of a fluid")
+    p.add_argument("fluid", help="species id, formula or name")
+    p.add_argument("--model", required=True, help="ideal-gas, van-der-waals, redlich-kwong, soave-redlich-kwong, "
+                   "peng-robinson, incompressible or reference")
+    p.add_argument("--given", action="append", metavar="NAME=VALUE", help="a property, e.g. T='500 K' (twice)")
+    p.add_argument("--override", action="append", metavar="NAME=VALUE", help="a species constant, e.g. Tc='126 K'")
+    p.add_argument("--json", action="store_true")
+    p.add_argument("--units", **units)
+    p.set_defaults(func=cmd_state)
+
+    p = sub.add_parser("species", help="list species, or show one with its sources")
+    p.add_argument("name", nargs="?")
+    p.add_argument("--json", action="store_true")
+    p.set_defaults(func=cmd_species)
+
+    p = sub.add_parser("demo", help="solve the bundled demo worksheet")
+    p.add_argument("--units", **units)
+    p.set_defaults(func=cmd_demo)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not getattr(args, "func", None):
+        parser.print_help()
+        return EXIT_OK
+    try:
+        return args.func(args)
+    except (InputError, SpecificationError) as exc:
+        return _fail(str(exc), EXIT_INPUT)
+    except SolveError as exc:
+        return _fail(f"not solved: {exc}", EXIT_FAILED)
+    except BalanceError as exc:
+        return _fail(str(exc), EXIT_INPUT)
+    except KeyboardInterrupt:
+        return _fail("interrupted", EXIT_FAILED)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

@@ -1,0 +1,155 @@
+"""Rich renderings of results, states and species for the command line."""
+
+from __future__ import annotations
+
+from rich import box
+from rich.console import Group
+from rich.panel import Panel
+from rich.table import Table
+from rich.text import Text
+
+from balance.closed import Result
+from balance.problem import Dof, Problem
+from balance.species import Species
+from balance.state import State
+from balance.worksheet import CONVENTIONS
+
+from .display import show, unit_label
+
+ROWS = (("T", "T"), ("P", "P"), ("v", "v"), ("u", "u"), ("h", "h"), ("s", "s"), ("cv", "cv"), ("cp", "cp"))
+
+
+def states_table(states: list[State], units: str, title: str = "States") -> Table:
+    t = Table(title=title, box=box.SIMPLE_HEAD, title_justify="left")
+    t.add_column("property")
+    t.add_column("unit", style="dim")
+    for st in states:
+        t.add_column(st.name, justify="right")
+    for label, kind in ROWS:
+        vals = []
+        for st in states:
+            p = st.point
+            raw = getattr(p, label)
+            value = raw if label in ("T", "P") else raw / st.M
+            vals.append(show(value, kind, units))
+        t.add_row(label, unit_label(kind, units), *vals)
+    t.add_row("Z", "", *(f"{st.point.Z:.6g}" for st in states))
+    t.add_row("x", "", *("—" if st.point.x is None else f"{st.point.x:.6g}" for st in states))
+    t.add_row("phase", "", *(st.point.phase for st in states))
+    t.add_row("n", unit_label("n", units), *(show(st.n, "n", units) for st in states))
+    t.add_row("m", unit_label("m", units), *(show(st.m, "m", units) for st in states))
+    t.add_row("V", unit_label("V", units), *(show(st.V, "V", units) for st in states))
+    return t
+
+
+def result_renderable(r: Result, units: str = "metric") -> Group:
+    p = r.problem
+    head = p.worksheet.heading
+    sign = 1.0 if p.convention == "work-on-system" else -1.0
+    title = Text(head.title or "Closed-system balance", style="bold")
+    meta = Text(
+        f"{p.species.name} ({p.species.id}), {p.model.label}; convention: {CONVENTIONS[p.convention]}\n"
+        f"gauge pressures read with atmosphere = {p.p_atm / 1e5:.6g} bar",
+        style="dim",
+    )
+    parts: list = [title, meta]
+    if p.species.overrides:
+        parts.append(Text("overrides: " + ", ".join(f"{k} = {v}" for k, v in p.species.overrides), style="yellow"))
+    parts.append(states_table([*r.initial, r.final], units))
+
+    e = Table(title="Energy balance", box=box.SIMPLE_HEAD, title_justify="left")
+    e.add_column("term")
+    e.add_column("name")
+    e.add_column(unit_label("E", units), justify="right")
+    e.add_column("", style="dim")
+    for term in r.terms:
+        value = term.value if term.kind == "heat" else sign * term.value
+        label = "Q" if term.kind == "heat" else ("W" if term.kind == "work" else "W boundary")
+        e.add_row(label, term.name, show(value, "E", units), "solved" if term.solved else "given")
+    e.add_row("ΔU", "", show(r.dU, "E", units), "n u2 - Σ n u1")
+    e.add_row("  ideal-gas part", "", show(r.dU_ig, "E", units), "")
+    e.add_row("  departure part", "", show(r.dU_dep, "E", units), "")
+    if p.dKE:
+        e.add_row("ΔKE", "", show(p.dKE, "E", units), "given")
+    if p.dPE:
+        e.add_row("ΔPE", "", show(p.dPE, "E", units), "given")
+    e.add_row("residual", "", f"{r.residual:.1e}", "relative, recomputed")
+    parts.append(e)
+
+    s = Table(title="Entropy balance", box=box.SIMPLE_HEAD, title_justify="left")
+    s.add_column("term")
+    s.add_column(unit_label("S", units), justify="right")
+    s.add_row("ΔS system", show(r.dS_system, "S", units))
+    s.add_row("ΔS surroundings", show(r.dS_surroundings, "S", units))
+    s.add_row("S_gen", show(r.S_gen, "S", units))
+    parts.append(s)
+
+    parts.append(Panel("\n".join(r.equations), title="Equations with numbers", title_align="left", box=box.SQUARE))
+    if r.warnings:
+        parts.append(Panel("\n".join(f"• {w}" for w in r.warnings), title="Warnings", title_align="left",
+                           border_style="yellow", box=box.SQUARE))
+    parts.append(Panel("\n".join(f"• {c}" for c in r.cautions), title="Cautions", title_align="left",
+                       border_style="red", box=box.SQUARE))
+    return Group(*parts)
+
+
+def dof_renderable(p: Problem, dof: Dof) -> Group:
+    t = Table(box=box.SIMPLE_HEAD, title="Degrees of freedom", title_justify="left")
+    t.add_column("unknowns")
+    t.add_column("equations")
+    for i in range(max(len(dof.unknowns), len(dof.equations))):
+        t.add_row(dof.unknowns[i] if i < len(dof.unknowns) else "", dof.equations[i] if i < len(dof.equations) else "")
+    fixed = ", ".join(dof.fixed) or "nothing yet"
+    style = "green" if dof.ok else "red"
+    return Group(
+        Text(f"{p.species.name}, {p.model.label}; path: {p.path}; constraints: {', '.join(p.constraints) or 'none'}"),
+        Text(f"final state fixed by: {fixed}"),
+        t,
+        Text(dof.message, style=style),
+    )
+
+
+def species_table(entries: list[Species]) -> Table:
+    t = Table(box=box.SIMPLE_HEAD)
+    for col in ("id", "name", "M g/mol", "Tc K", "Pc bar", "ω", "cp° range K", "reference"):
+        t.add_column(col)
+    for sp in entries:
+        t.add_row(sp.id, sp.name, f"{sp.M * 1e3:.4f}", f"{sp.Tc:.3f}", f"{sp.Pc / 1e5:.3f}", f"{sp.omega:.4f}",
+                  sp.cp_ig.range_text, sp.coolprop or "—")
+    return t
+
+
+def species_detail(sp: Species) -> Group:
+    t = Table(box=box.SIMPLE_HEAD, title=f"{sp.name} ({sp.id})", title_justify="left")
+    t.add_column("constant")
+    t.add_column("value", justify="right")
+    t.add_column("source")
+    src = sp.sources
+    t.add_row("formula", sp.formula, "")
+    t.add_row("CAS", sp.cas, "")
+    t.add_row("molar mass", f"{sp.M * 1e3:.6g} g/mol", src.get("M", ""))
+    t.add_row("Tc", f"{sp.Tc:.6g} K", src.get("critical", ""))
+    t.add_row("Pc", f"{sp.Pc / 1e5:.6g} bar", src.get("critical", ""))
+    t.add_row("ω", f"{sp.omega:.6g}", src.get("omega", ""))
+    if sp.Vc:
+        t.add_row("Vc", f"{sp.Vc * 1e6:.6g} cm³/mol", src.get("critical", ""))
+    if sp.Zc:
+        t.add_row("Zc", f"{sp.Zc:.6g}", src.get("critical", ""))
+    t.add_row("cp° (ideal gas)", sp.cp_ig.label, src.get("cp", ""))
+    if sp.liquid:
+        t.add_row("liquid ρ, cp", f"{sp.liquid.rho:.6g} kg/m³, {sp.liquid.cp:.6g} J/(kg·K) at {sp.liquid.T:g} K",
+                  src.get("liquid", ""))
+    t.add_row("reference model", sp.coolprop or "not available", "CoolProp fluid name")
+    aliases = Text("aliases: " + (", ".join(sp.aliases) or "none"), style="dim")
+    return Group(t, aliases)
+
+
+def state_renderable(st: State, units: str, warnings: list[str]) -> Group:
+    parts: list = [
+        Text(f"{st.model.species.name}, {st.model.label}; reference state: {st.model.reference_state}", style="dim"),
+        states_table([st], units, title="State"),
+        Text(f"root: {st.point.root}", style="dim"),
+    ]
+    if warnings:
+        parts.append(Text("\n".join(f"• {w}" for w in warnings), style="yellow"))
+    return Group(*parts)
