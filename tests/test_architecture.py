@@ -1,0 +1,62 @@
+"""The shape of the house: the domain never imports the user interface, and
+headless command-line paths import neither Textual nor CoolProp.
+
+Common practice, no source: a headless core with its contract enforced by
+import-linter and by a subprocess import check.
+"""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+
+import pytest
+
+from tests.helpers import ROOT
+
+HEADLESS = [
+    "balance",
+    "balance.units",
+    "balance.species",
+    "balance.models",
+    "balance.models.cubic",
+    "balance.models.idealgas",
+    "balance.state",
+    "balance.worksheet",
+    "balance.problem",
+    "balance.closed",
+    "tui.cli",
+]
+
+
+@pytest.mark.parametrize("module", HEADLESS)
+def test_headless_module_imports_no_ui_and_no_coolprop(module):
+    code = (
+        f"import sys, json, {module}; "
+        "print(json.dumps([m for m in ('textual', 'rich', 'CoolProp') if m in sys.modules]))"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, check=True)
+    loaded = json.loads(out.stdout)
+    assert "textual" not in loaded and "CoolProp" not in loaded
+    if module.startswith("balance"):
+        assert "rich" not in loaded
+
+
+def test_solve_path_does_not_import_textual_or_coolprop():
+    code = (
+        "import sys, runpy; sys.argv = ['joulebook', 'solve', 'samples/n2-buffer-into-receiver.toml', '--json'];\n"
+        "from tui import cli\n"
+        "import contextlib, io\n"
+        "with contextlib.redirect_stdout(io.StringIO()): cli.main(sys.argv[1:])\n"
+        "print([m for m in ('textual', 'CoolProp', 'scipy.optimize') if m in sys.modules])"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, check=True)
+    assert out.stdout.strip() == "[]", out.stdout
+
+
+def test_import_linter_contract():
+    pytest.importorskip("importlinter")
+    out = subprocess.run([sys.executable, "-c", "from importlinter.cli import lint_imports_command; lint_imports_command()"],
+                         capture_output=True, text=True, cwd=ROOT)
+    assert out.returncode == 0, out.stdout + out.stderr
