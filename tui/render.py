@@ -110,38 +110,41 @@ def dof_renderable(p: Problem, dof: Dof) -> Group:
 
 
 def species_table(entries: list[Species]) -> Table:
-    t = Table(box=box.SIMPLE_HEAD)
-    for col in ("id", "name", "M g/mol", "Tc K", "Pc bar", "ω", "cp° range K", "reference"):
-        t.add_column(col)
+    t = Table(box=box.SIMPLE_HEAD, caption="joulebook species NAME shows one with the source of every constant")
+    for col in ("id", "name", "M g/mol", "Tc K", "Pc bar", "ω", "ref"):
+        t.add_column(col, no_wrap=True, overflow="ellipsis", max_width=16 if col == "name" else None)
     for sp in entries:
-        t.add_row(sp.id, sp.name, f"{sp.M * 1e3:.4f}", f"{sp.Tc:.3f}", f"{sp.Pc / 1e5:.3f}", f"{sp.omega:.4f}",
-                  sp.cp_ig.range_text, sp.coolprop or "—")
+        t.add_row(sp.id, sp.name, f"{sp.M * 1e3:.4f}", f"{sp.Tc:.2f}", f"{sp.Pc / 1e5:.3f}", f"{sp.omega:.4f}",
+                  "yes" if sp.coolprop else "—")
     return t
 
 
 def species_detail(sp: Species) -> Group:
     t = Table(box=box.SIMPLE_HEAD, title=f"{sp.name} ({sp.id})", title_justify="left")
     t.add_column("constant")
-    t.add_column("value", justify="right")
+    t.add_column("value")
     t.add_column("source")
-    src = sp.sources
     t.add_row("formula", sp.formula, "")
     t.add_row("CAS", sp.cas, "")
-    t.add_row("molar mass", f"{sp.M * 1e3:.6g} g/mol", src.get("M", ""))
-    t.add_row("Tc", f"{sp.Tc:.6g} K", src.get("critical", ""))
-    t.add_row("Pc", f"{sp.Pc / 1e5:.6g} bar", src.get("critical", ""))
-    t.add_row("ω", f"{sp.omega:.6g}", src.get("omega", ""))
+    t.add_row("molar mass", f"{sp.M * 1e3:.6g} g/mol", "M")
+    t.add_row("Tc", f"{sp.Tc:.6g} K", "critical")
+    t.add_row("Pc", f"{sp.Pc / 1e5:.6g} bar", "critical")
+    t.add_row("ω", f"{sp.omega:.6g}", "omega")
     if sp.Vc:
-        t.add_row("Vc", f"{sp.Vc * 1e6:.6g} cm³/mol", src.get("critical", ""))
+        t.add_row("Vc", f"{sp.Vc * 1e6:.6g} cm³/mol", "critical")
     if sp.Zc:
-        t.add_row("Zc", f"{sp.Zc:.6g}", src.get("critical", ""))
-    t.add_row("cp° (ideal gas)", sp.cp_ig.label, src.get("cp", ""))
+        t.add_row("Zc", f"{sp.Zc:.6g}", "critical")
+    t.add_row("cp° ideal gas", sp.cp_ig.label, "cp")
     if sp.liquid:
-        t.add_row("liquid ρ, cp", f"{sp.liquid.rho:.6g} kg/m³, {sp.liquid.cp:.6g} J/(kg·K) at {sp.liquid.T:g} K",
-                  src.get("liquid", ""))
-    t.add_row("reference model", sp.coolprop or "not available", "CoolProp fluid name")
+        t.add_row("liquid", f"ρ = {sp.liquid.rho:.6g} kg/m³, cp = {sp.liquid.cp:.6g} J/(kg·K) at {sp.liquid.T:g} K",
+                  "liquid")
+    t.add_row("reference model", sp.coolprop or "not available", "")
+    sources = Text()
+    for key, text in sp.sources.items():
+        sources.append(f"{key}: ", style="bold")
+        sources.append(f"{text}\n")
     aliases = Text("aliases: " + (", ".join(sp.aliases) or "none"), style="dim")
-    return Group(t, aliases)
+    return Group(t, Text("Sources", style="bold underline"), sources, aliases)
 
 
 def state_renderable(st: State, units: str, warnings: list[str]) -> Group:
