@@ -356,6 +356,7 @@ def _result(p: Problem, final_point: Point, lin: dict, evaluations: int, method:
         dS_surr = S_gen = None
         missing = [t.name for t in terms if t.kind == "heat" and t.T_boundary is None]
         warnings.append(f"S_gen not evaluated: heat term {', '.join(repr(m) for m in missing)} has no boundary temperature")
+    warnings += _heat_direction_warnings(terms, final)
     for st in (*initial, final):
         warnings += [f"{st.name}: {w}" for w in p.model.warnings(st.point)]
     unknowns = {k: float(v) for k, v in lin.items()}
@@ -366,6 +367,31 @@ def _result(p: Problem, final_point: Point, lin: dict, evaluations: int, method:
         cautions=tuple(cautions_for(p, initial, final)), unknowns=unknowns,
     )
     return replace(result, equations=tuple(explain(result)))
+
+
+def _heat_direction_warnings(terms, final: State) -> list[str]:
+    """Heat that would have to flow up a temperature difference by the end.
+
+    The entropy balance with one boundary temperature can stay positive
+    although the system ends hotter than the source feeding it (most heat went
+    in while it was colder); heat alone still cannot do that.
+    """
+    out = []
+    T2 = final.point.T
+    for t in terms:
+        if t.kind != "heat" or t.T_boundary is None or t.detail:  # detail: T_b is the system's own
+            continue
+        if t.value > 0 and T2 > t.T_boundary * (1 + 1e-9):
+            side, verb = "comes from", "hotter"
+        elif t.value < 0 and T2 < t.T_boundary * (1 - 1e-9):
+            side, verb = "goes to", "colder"
+        else:
+            continue
+        out.append(
+            f"heat term '{t.name}' {side} {t.T_boundary - 273.15:.1f} °C but the system ends {verb}, at "
+            f"{T2 - 273.15:.1f} °C: heat alone cannot do that; check Q and T_boundary"
+        )
+    return out
 
 
 def _sgen_cause(p: Problem, terms) -> str:

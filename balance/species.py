@@ -263,8 +263,9 @@ def with_overrides(sp: Species, overrides: dict[str, str], field: str = "fluid.o
     """Apply a worksheet's overrides to a species.
 
     Returns the new species and the overrides that belong to a model rather
-    than to the species (the cubic's ``a`` and ``b``, the liquid's ``rho``),
-    as SI floats. Constant ``cp`` or ``cv`` replaces the polynomial.
+    than to the species (the cubic's ``a`` and ``b``, the liquid's ``rho``;
+    ``cp``/``cv`` also go there, molar, for the incompressible model), as SI
+    floats. A constant ``cp`` or ``cv`` replaces the ideal-gas polynomial.
     """
     from .units import dimension_of, parse
 
@@ -286,6 +287,7 @@ def with_overrides(sp: Species, overrides: dict[str, str], field: str = "fluid.o
             if value <= 0:
                 raise InputError(name, f"must be positive; got {text!r}")
             constant_cp = value if key == "cp" else value + R
+            model_params[key] = value  # molar; the incompressible model takes it as its cp
         else:
             value = parse(text, dim, name)
             if key != "omega" and value <= 0:

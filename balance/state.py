@@ -8,6 +8,7 @@ values, accepting mass-based or molar inputs.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 from .errors import InputError
@@ -37,8 +38,8 @@ JSON_UNITS = {
 
 def quantity(value: float | None, unit: str) -> dict | None:
     """The JSON encoding of a quantity: {"value": number, "unit": pint unit}."""
-    if value is None:
-        return None
+    if value is None or not math.isfinite(value):
+        return None  # JSON has no inf or NaN (a two-phase cp, an undetermined P)
     return {"value": float(value), "unit": unit}
 
 

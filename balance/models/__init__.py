@@ -61,10 +61,12 @@ def make_model(name: str, species: Species, params: dict[str, float] | None = No
     """A model instance for a species.
 
     ``params`` carries model-level overrides from a worksheet: the cubic's
-    ``a`` and ``b``, the incompressible model's ``rho``.
+    ``a`` and ``b``, the incompressible model's ``rho`` and heat capacity
+    (``cp`` or ``cv``, molar [J/(mol K)]).
     """
     key = canonical(name, field)
     params = dict(params or {})
+    heat_capacity = {k: params.pop(k) for k in ("cp", "cv") if k in params}
     allowed = {"a", "b"} if key in _CUBICS else {"rho"} if key == "incompressible" else set()
     extra = set(params) - allowed
     if extra:
@@ -83,7 +85,9 @@ def make_model(name: str, species: Species, params: dict[str, float] | None = No
     if key == "incompressible":
         from .incompressible import Incompressible
 
-        return Incompressible(species, rho=params.get("rho"))
+        # a liquid or solid has cv = cp: either override is its heat capacity
+        molar = heat_capacity.get("cp", heat_capacity.get("cv"))
+        return Incompressible(species, rho=params.get("rho"), cp=None if molar is None else molar / species.M)
     from .reference import Reference
 
     return Reference(species)
