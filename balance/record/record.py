@@ -1,0 +1,282 @@
+"""The Record: a record file, its entries, and the operations that append to it."""
+
+from __future__ import annotations
+
+import dataclasses
+import re
+from datetime import datetime, timezone
+from pathlib import Path
+from typing import Callable
+
+from ..errors import InputError
+from ..models import MODEL_NAMES
+from ..worksheet import Worksheet
+from . import store
+from .chain import chain_break, head_of
+from .format import (COMMENT, FORMAT, GENESIS, LIST_SECTIONS, MAGIC_LINE, NOTE, OPENING, RESOLUTION,
+                     SECTION_KINDS, SIGN_OFF, SOLVE, TAG_SEAL, Entry, clean_author, entry_lines,
+                     format_time, parse, prune, seal)
+from .replay import DEFAULT_TOLERANCE, ReplayReport, fold, pins, replay_entries, solve_data, worksheet_of
+from .review import (comment_problem, current_revision, open_comments, resolution_problem,
+                     signoff_problem)
+from .signing import NAMESPACE, ROLES, check_allowed_signers, message
+from .signing import sign as ssh_sign
+from .text import render
+from .verify import Verification, verify_entries
+
+Clock = Callable[[], datetime]
+STEP_ORDER = tuple(SECTION_KINDS)
+
+
+def utc_now() -> datetime:
+    return datetime.now(timezone.utc)
+
+
+class Record:
+    """A record file and its entries, immutable by convention.
+
+    ``entries`` is a tuple of frozen :class:`Entry`; each append writes the
+    whole new file atomically (see :mod:`balance.record.store`), then
+    replaces the tuple, so the object always shows what is on disk. Build
+    one with :meth:`create` or :meth:`load`.
+
+    ``clock`` (a function returning an aware datetime) and ``author`` may be
+    given to fix the time and author of new entries; by default the time is
+    now (UTC) and the author comes from :func:`balance.record.default_author`.
+    """
+
+    def __init__(self, path: Path, entries: tuple[Entry, ...], raw: bytes, *, clock: Clock | None = None,
+                 author: str | None = None, recovered: str | None = None, read_only: str | None = None):
+        self.path = Path(path)
+        self._entries = tuple(entries)
+        self._raw = raw
+        self.clock: Clock = clock or utc_now
+        self.author = clean_author(author) if author is not None else None
+        self.recovered = recovered
+        """what load found and set aside (a torn last entry), or None"""
+        self._read_only = read_only
+        self._break = chain_break(self._entries)
+
+    def __repr__(self) -> str:
+        return f"Record({str(self.path)!r}, {len(self._entries)} entries, head {self.head[:12]})"
+
+    # -- reading ---------------------------------------------------------------------
+    @property
+    def entries(self) -> tuple[Entry, ...]:
+        return self._entries
+
+    @property
+    def head(self) -> str:
+        """The chain head hash: the seal of the last entry."""
+        return head_of(self._entries)
+
+    @property
+    def revision(self) -> int:
+        return current_revision(self._entries)
+
+    def entry(self, seq: int) -> Entry:
+        if isinstance(seq, bool) or not isinstance(seq, int) or not 1 <= seq <= len(self._entries):
+            raise InputError("entry", f"expected an entry number from 1 to {len(self._entries)}; got {seq!r}")
+        return self._entries[seq - 1]
+
+    def last_solve(self) -> Entry | None:
+        return next((e for e in reversed(self._entries) if e.kind == SOLVE), None)
+
+    def worksheet(self) -> Worksheet:
+        """The current worksheet: the replay of every step entry (raises InputError naming the field)."""
+        return worksheet_of(self._entries)
+
+    def open_comments(self) -> list[Entry]:
+        return open_comments(self._entries)
+
+    def verify(self, allowed_signers=None) -> Verification:
+        """Check the chain, the rules and (given an allowed-signers file) every signature."""
+        if allowed_signers is not None:
+            allowed_signers = check_allowed_signers(allowed_signers)
+        return verify_entries(self._entries, allowed_signers, self.recovered, str(self.path))
+
+    def replay(self, tolerance: float = DEFAULT_TOLERANCE) -> ReplayReport:
+        """Re-solve every solve entry's inputs and compare with what was recorded."""
+        return replay_entries(self._entries, tolerance)
+
+    # -- making --------------------------------------------------------------------------
+    @classmethod
+    def create(cls, path, author: str | None = None, worksheet: Worksheet | None = None, *,
+               clock: Clock | None = None, roles=None) -> "Record":
+        """A new record file: the opening entry, then (given a worksheet) one step entry per
+        section and a solve entry. Written in one atomic step; refuses an existing file.
+
+        ``roles`` overrides the sign-off roles and their order (pinned in the opening).
+        """
+        path = Path(path)
+        if path.exists():
+            raise InputError(str(path), "already exists; a record is never overwritten")
+        roles = tuple(roles) if roles is not None else ROLES
+        if not roles or len(set(roles)) != len(roles) or \
+                not all(isinstance(r, str) and re.fullmatch(r"[a-z][a-z-]*", r) for r in roles):
+            raise InputError("roles", "expected distinct lowercase names, like prepared, checked, approved")
+        rec = cls(path, (), MAGIC_LINE, clock=clock, author=author)
+        data = {"format": FORMAT, **pins(), "models": list(MODEL_NAMES), "roles": list(roles)}
+        rec._stage(OPENING, data, None)
+        if worksheet is not None:
+            sheet = worksheet.to_dict()
+            for section in STEP_ORDER:
+                if section in sheet:
+                    rec._stage(SECTION_KINDS[section], {section: sheet[section]}, None)
+            rec._stage(SOLVE, solve_data(fold(rec._entries)), None)
+        store.create(path, rec._raw)
+        return rec
+
+    @classmethod
+    def load(cls, path, *, clock: Clock | None = None, author: str | None = None) -> "Record":
+        """Read a record. A torn last entry is set aside into ``<record>.torn-<time>``
+        (reported in ``recovered``); a malformed record raises InputError naming the line."""
+        path = Path(path)
+        raw = store.read(path)
+        parsed = parse(raw, str(path))
+        recovered = read_only = None
+        if parsed.torn:
+            if not parsed.entries:
+                raise InputError(f"{path}, line {parsed.torn_line}", "the record's first entry is cut off: "
+                                                                     "it has no complete entry")
+            n = len(parsed.entries)
+            what = (f"entry {n + 1} was cut off at the end of the file (from line {parsed.torn_line}, "
+                    f"{len(parsed.torn)} bytes)")
+            try:
+                side = store.set_aside(path, raw, parsed.good, parsed.torn, (clock or utc_now)())
+                recovered = f"{what} and was set aside in {side}; the {n} entries before it are intact"
+            except InputError as exc:
+                read_only = f"its cut-off last entry could not be set aside ({exc}); nothing can be added until it is"
+                recovered = f"{what}; it could not be set aside: {exc}"
+        return cls(path, parsed.entries, parsed.good, clock=clock, author=author, recovered=recovered,
+                   read_only=read_only)
+
+    # -- appending ------------------------------------------------------------------------
+    def _who(self, author: str | None) -> str:
+        if author is not None:
+            return clean_author(author)
+        if self.author is not None:
+            return self.author
+        from .author import default_author
+
+        return default_author()
+
+    def _stage(self, kind: str, data: dict, author: str | None, text: str | None = None) -> Entry:
+        """Add an entry in memory (not written): returns it as a reader will see it."""
+        data = prune(data)
+        if text is None:
+            text = render(kind, data, self._entries)
+        seq = len(self._entries) + 1
+        lines = entry_lines(seq, format_time(self.clock()), self._who(author), kind, text, data, self.head)
+        try:
+            body, digest = seal(lines)
+        except UnicodeEncodeError as exc:  # a lone surrogate: not a character UTF-8 can hold
+            raise InputError(kind, f"contains {exc.object[exc.start:exc.end]!r}, which is not a valid "
+                                   "Unicode character; retype it") from None
+        block = b"\n" + body + (TAG_SEAL + digest + "\n").encode()
+        # read the new entry back exactly as a reader of the file will
+        back = parse(MAGIC_LINE + block, str(self.path))
+        if back.torn or len(back.entries) != 1:  # pragma: no cover - a defect of the writer
+            raise RuntimeError("an entry written did not read back whole")
+        first_line = self._raw.count(b"\n") + 2
+        entry = dataclasses.replace(back.entries[0], line=first_line)
+        self._raw += block
+        self._entries += (entry,)
+        return entry
+
+    def _check_writable(self) -> None:
+        if self._read_only:
+            raise InputError(str(self.path), self._read_only)
+        if self._break:
+            raise InputError(str(self.path), f"its chain is broken at entry {self._break[0]} ({self._break[1]}); "
+                                             "a broken record cannot be extended: restore the filed copy")
+
+    def _append(self, kind: str, data: dict, author: str | None) -> Entry:
+        self._check_writable()
+        old_raw, old_entries = self._raw, self._entries
+        entry = self._stage(kind, data, author)
+        try:
+            store.commit(self.path, self._raw, old_raw)
+        except BaseException:
+            self._raw, self._entries = old_raw, old_entries
+            raise
+        return entry
+
+    def append_step(self, section: str, data, author: str | None = None) -> Entry:
+        """Set one worksheet section (its plain data, as in ``Worksheet.to_dict()``).
+
+        ``section`` is one of worksheet, system, fluid, initial, final, heat,
+        work, process; initial, heat and work take a list of tables.
+        """
+        if section not in SECTION_KINDS:
+            raise InputError("section", f"unknown section {section!r}; expected one of {', '.join(SECTION_KINDS)}")
+        if section in LIST_SECTIONS:
+            if not isinstance(data, (list, tuple)) or not all(isinstance(d, dict) for d in data):
+                raise InputError(section, f"expected a list of tables for [[{section}]]")
+            data = [dict(d) for d in data]
+        elif not isinstance(data, dict):
+            raise InputError(section, f"expected a table for [{section}]")
+        Worksheet.from_dict({section: data})  # raises InputError naming the field
+        return self._append(SECTION_KINDS[section], {section: data}, author)
+
+    def append_solve(self, author: str | None = None) -> Entry:
+        """Solve the current worksheet and record the result (or the error: a failed solve is recorded)."""
+        return self._append(SOLVE, solve_data(fold(self._entries)), author)
+
+    def note(self, text: str, author: str | None = None) -> Entry:
+        """A revision note: why the calculation changes (counts as a change of the calculation)."""
+        return self._append(NOTE, {"note": _words(text, "note")}, author)
+
+    def comment(self, on_seq: int, text: str, author: str | None = None) -> Entry:
+        """A review comment on entry ``on_seq``, open until resolved."""
+        problem = comment_problem(self._entries, on_seq)
+        if problem:
+            raise InputError("comment", problem)
+        return self._append(COMMENT, {"on": on_seq, "text": _words(text, "comment")}, author)
+
+    def resolve(self, comment_seq: int, note: str, author: str | None = None) -> Entry:
+        """Resolve the open comment in entry ``comment_seq``."""
+        problem = resolution_problem(self._entries, comment_seq)
+        if problem:
+            raise InputError("resolve", problem)
+        return self._append(RESOLUTION, {"comment": comment_seq, "note": _words(note, "note")}, author)
+
+    def sign(self, role: str, key_path=None, signer: str | None = None, unsigned: bool = False,
+             author: str | None = None) -> Entry:
+        """Sign off the record as it stands (its chain head) in a role.
+
+        Signs with ``ssh-keygen -Y sign`` and the key file ``key_path``, or,
+        with ``unsigned=True``, records a sign-off without a signature.
+        Raises InputError for a broken role order, a checker who prepared,
+        approval with open comments, or an unsolved or failed calculation.
+        """
+        who = self._who(author)
+        signer = clean_author(signer if signer is not None else who, "signer")
+        problem = signoff_problem(self._entries, role, signer)
+        if problem:
+            raise InputError("sign-off", problem)
+        if unsigned and key_path is not None:
+            raise InputError("sign-off", "a sign-off is either signed with a key or marked unsigned, not both")
+        if not unsigned and key_path is None:
+            raise InputError("--key", "give the SSH key to sign with, or mark the sign-off unsigned")
+        seq, covers = len(self._entries) + 1, self.head
+        data: dict = {"role": role, "signer": signer, "revision": current_revision(self._entries), "covers": covers}
+        if unsigned:
+            data["unsigned"] = True
+        else:
+            self._check_writable()  # before ssh-keygen asks for a passphrase
+            lines, fingerprint = ssh_sign(key_path, message(seq, role, signer, covers))
+            data["namespace"] = NAMESPACE
+            if fingerprint:
+                data["key"] = fingerprint
+            data["signature"] = lines
+        return self._append(SIGN_OFF, data, who)
+
+
+def _words(text, field: str) -> str:
+    if not isinstance(text, str) or not text.strip():
+        raise InputError(field, "must not be empty")
+    return text.strip()
+
+
+__all__ = ["Record", "utc_now", "GENESIS"]

@@ -1,0 +1,290 @@
+"""Replay: the worksheet is the fold of the record's step entries; results are re-solved and compared.
+
+The worksheet is never stored anywhere else: :func:`fold` takes every step
+entry in order, a later entry of a section replacing an earlier one, and
+:func:`worksheet_of` reads the result with ``Worksheet.from_dict``.
+
+:func:`replay` rebuilds the inputs each solve entry was computed from,
+solves them again with the running joulebook and compares every recorded
+value with the new one (:func:`compare`). A number reproduces when it
+differs from the recorded one by no more than ``tolerance`` times the
+larger of its own magnitude and the largest recorded magnitude of the same
+unit in that result (so a ΔU that is round-off near zero is judged against
+the energies around it); numbers inside text (equations, warnings) are
+compared the same way at the precision they are printed with (6 significant
+digits). Text, phases and names must be equal.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+from typing import Sequence
+
+from ..errors import BalanceError
+from ..worksheet import Worksheet
+from .format import OPENING, SOLVE, Entry, prune
+
+#: Keys of a solve entry that pin what the numbers depend on (compared separately).
+PIN_KEYS = ("joulebook", "species_data_sha256")
+#: Keys whose differences are reported but do not count as a failure to reproduce.
+INFORMATIONAL = ("iterations", "method")
+#: The energy balance closes below this relative residual (as the solver requires).
+RESIDUAL_LIMIT = 1e-7
+DEFAULT_TOLERANCE = 1e-9
+#: Numbers printed with 6 significant digits can differ by this much after rounding.
+PRINTED = 1e-5
+
+_NUMBER = re.compile(r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?")
+
+
+def fold(entries: Sequence[Entry]) -> dict:
+    """The worksheet's sections as plain data: each section from its latest step entry."""
+    merged: dict = {}
+    for e in entries:
+        if e.section:
+            merged[e.section] = e.data[e.section]
+    return merged
+
+
+def worksheet_of(entries: Sequence[Entry]) -> Worksheet:
+    """The worksheet as of the end of ``entries`` (raises InputError naming the field)."""
+    return Worksheet.from_dict(fold(entries))
+
+
+def pins() -> dict:
+    """What the numbers depend on, for the running joulebook."""
+    from .. import __version__
+    from ..species import data_hash
+
+    return {"joulebook": __version__, "species_data_sha256": data_hash()}
+
+
+def solve_data(sections: dict) -> dict:
+    """The data of a solve entry for these sections: the result, or the error.
+
+    A successful solve gives ``Result.as_json()`` (values of None left out:
+    TOML has no null) after the two pins; a failed one gives ``error_kind``
+    and ``error``.
+    """
+    from ..closed import solve_worksheet
+
+    data = pins()
+    try:
+        result = solve_worksheet(Worksheet.from_dict(sections))
+    except BalanceError as exc:
+        data.update(error_kind=type(exc).__name__, error=str(exc))
+        return data
+    except (ArithmeticError, ValueError) as exc:  # numerical trouble inside a model: recorded, not raised
+        data.update(error_kind=f"numerical error ({type(exc).__name__})", error=str(exc) or type(exc).__name__)
+        return data
+    data.update(prune(result.as_json()))
+    return data
+
+
+# -- comparison ------------------------------------------------------------------------
+@dataclass(frozen=True)
+class Difference:
+    """One value that differs between a recorded result and another one."""
+
+    path: str
+    recorded: object
+    now: object
+    unit: str = ""
+    note: str = ""
+
+    def line(self, before: str = "recorded", after: str = "now") -> str:
+        def show(v) -> str:
+            if v is None:
+                return "(absent)"
+            if isinstance(v, float):
+                return f"{v:.10g}" + (f" {self.unit}" if self.unit else "")
+            return repr(v) if isinstance(v, str) else str(v)
+
+        text = f"{self.path}: {before} {show(self.recorded)}, {after} {show(self.now)}"
+        return text + (f" ({self.note})" if self.note else "")
+
+
+def _is_quantity(v) -> bool:
+    return isinstance(v, dict) and set(v) == {"value", "unit"} and isinstance(v["value"], (int, float)) \
+        and not isinstance(v["value"], bool)
+
+
+def _scales(data, out: dict | None = None) -> dict:
+    out = {} if out is None else out
+    if _is_quantity(data):
+        out[data["unit"]] = max(out.get(data["unit"], 0.0), abs(float(data["value"])))
+    elif isinstance(data, dict):
+        for v in data.values():
+            _scales(v, out)
+    elif isinstance(data, list):
+        for v in data:
+            _scales(v, out)
+    return out
+
+
+def _close(a: float, b: float, tol: float, scale: float) -> bool:
+    if a == b:
+        return True
+    if a != a or b != b:  # nan
+        return False
+    return abs(a - b) <= tol * max(abs(a), abs(b), scale)
+
+
+def same_text(a: str, b: str, tol: float) -> bool:
+    """Equal text, with numbers equal to printed precision (or ``tol``, if looser)."""
+    if a == b:
+        return True
+    na, nb = _NUMBER.findall(a), _NUMBER.findall(b)
+    if _NUMBER.sub("#", a) != _NUMBER.sub("#", b) or len(na) != len(nb):
+        return False
+    xa, xb = [float(x) for x in na], [float(x) for x in nb]
+    scale = max([abs(x) for x in xa + xb] + [0.0])
+    t = max(tol, PRINTED)
+    return all(_close(x, y, t, scale) for x, y in zip(xa, xb))
+
+
+def compare(recorded: dict, now: dict, tolerance: float = DEFAULT_TOLERANCE) -> tuple[list[Difference], list[Difference]]:
+    """Differences between two solve data: (those that fail reproduction, informational ones)."""
+    scales = _scales(recorded)
+    failing: list[Difference] = []
+    info: list[Difference] = []
+
+    def walk(path: str, a, b):
+        key = path.rsplit(".", 1)[-1]
+        if path in PIN_KEYS:
+            return
+        if path in INFORMATIONAL:
+            if a != b:
+                info.append(Difference(path, a, b, note="does not affect the result"))
+            return
+        if path == "residual":
+            if not (isinstance(a, (int, float)) and isinstance(b, (int, float))
+                    and a < RESIDUAL_LIMIT and b < RESIDUAL_LIMIT):
+                failing.append(Difference(path, a, b, note=f"must be below {RESIDUAL_LIMIT:g}"))
+            elif a != b:
+                info.append(Difference(path, a, b, note="both close the balance"))
+            return
+        if _is_quantity(a) and _is_quantity(b):
+            if a["unit"] != b["unit"]:
+                failing.append(Difference(path, a["unit"], b["unit"], note="unit"))
+            elif not _close(float(a["value"]), float(b["value"]), tolerance, scales.get(a["unit"], 0.0)):
+                failing.append(Difference(path, float(a["value"]), float(b["value"]), a["unit"]))
+            return
+        if isinstance(a, dict) and isinstance(b, dict):
+            for k in a:
+                walk(f"{path}.{k}" if path else k, a[k], b.get(k))
+            for k in b:
+                if k not in a:
+                    walk(f"{path}.{k}" if path else k, None, b[k])
+            return
+        if isinstance(a, list) and isinstance(b, list):
+            for i in range(max(len(a), len(b))):
+                walk(f"{path}[{i + 1}]", a[i] if i < len(a) else None, b[i] if i < len(b) else None)
+            return
+        if isinstance(a, str) and isinstance(b, str):
+            if not same_text(a, b, tolerance):
+                failing.append(Difference(path, a, b))
+            return
+        if isinstance(a, bool) or isinstance(b, bool) or a is None or b is None:
+            if a != b:
+                failing.append(Difference(path, a, b))
+            return
+        if isinstance(a, (int, float)) and isinstance(b, (int, float)):
+            if not _close(float(a), float(b), tolerance, 0.0):
+                failing.append(Difference(path, a, b))
+            return
+        if a != b:
+            failing.append(Difference(path, a, b, note=f"key {key}"))
+
+    walk("", recorded, now)
+    return failing, info
+
+
+# -- replay ----------------------------------------------------------------------------
+@dataclass(frozen=True)
+class SolveReplay:
+    """One solve entry solved again."""
+
+    seq: int
+    ok: bool
+    status: str
+    """'reproduced', 'differs', 'failed as recorded', 'fails differently', 'now fails' or 'now solves'"""
+    differences: tuple[Difference, ...] = ()
+    notes: tuple[Difference, ...] = ()
+
+
+@dataclass(frozen=True)
+class ReplayReport:
+    """Whether every recorded result reproduces, and what differs."""
+
+    ok: bool
+    tolerance: float
+    solves: tuple[SolveReplay, ...]
+    pins: tuple[Difference, ...]
+    """the recorded joulebook version and species data against the running ones"""
+    worksheet: Worksheet | None
+    worksheet_error: str = ""
+    notes: tuple[str, ...] = field(default=())
+
+    def lines(self) -> list[str]:
+        out = [f"Replay with tolerance {self.tolerance:g} (relative; see README, 'Replay')."]
+        if self.pins:
+            out.append("Recorded with a different joulebook or species data:")
+            out += ["  " + d.line() for d in self.pins]
+        else:
+            out.append("Same joulebook version and species data as recorded.")
+        out += list(self.notes)
+        if not self.solves:
+            out.append("No solve entries: nothing to reproduce.")
+        for s in self.solves:
+            out.append(f"entry {s.seq} (solve): {s.status}")
+            out += ["  " + d.line() for d in s.differences]
+            out += ["  note: " + d.line() for d in s.notes]
+        if self.worksheet_error:
+            out.append(f"The replayed worksheet cannot be read: {self.worksheet_error}")
+        out.append("All recorded results reproduce." if self.ok else "Some recorded results do NOT reproduce.")
+        return out
+
+
+def replay_entries(entries: Sequence[Entry], tolerance: float = DEFAULT_TOLERANCE) -> ReplayReport:
+    if not tolerance >= 0:
+        raise ValueError("the tolerance must be a number >= 0")
+    now_pins = pins()
+    pin_diffs: list[Difference] = []
+    opening = next((e for e in entries if e.kind == OPENING), None)
+    if opening is not None:
+        for key in PIN_KEYS:
+            if opening.data.get(key) != now_pins[key]:
+                pin_diffs.append(Difference(f"opening.{key}", opening.data.get(key), now_pins[key]))
+    solves = []
+    for i, e in enumerate(entries):
+        if e.kind != SOLVE:
+            continue
+        recorded = e.data
+        for key in PIN_KEYS:
+            if key in recorded and recorded[key] != now_pins[key]:
+                pin_diffs.append(Difference(f"entry {e.seq}.{key}", recorded[key], now_pins[key]))
+        now = solve_data(fold(entries[:i]))
+        if "error" in recorded or "error" in now:
+            if "error" in recorded and "error" in now:
+                same = recorded["error"] == now["error"] and recorded.get("error_kind") == now.get("error_kind")
+                status = "failed as recorded" if same else "fails differently"
+                diffs = () if same else (Difference("error", recorded["error"], now["error"]),)
+                solves.append(SolveReplay(e.seq, same, status, diffs))
+            elif "error" in recorded:
+                solves.append(SolveReplay(e.seq, False, "now solves",
+                                          (Difference("error", recorded["error"], None),)))
+            else:
+                solves.append(SolveReplay(e.seq, False, "now fails",
+                                          (Difference("error", None, now["error"]),)))
+            continue
+        failing, info = compare(recorded, now, tolerance)
+        solves.append(SolveReplay(e.seq, not failing, "reproduced" if not failing else "differs",
+                                  tuple(failing), tuple(info)))
+    try:
+        ws, ws_error = worksheet_of(entries), ""
+    except BalanceError as exc:
+        ws, ws_error = None, str(exc)
+    ok = all(s.ok for s in solves)
+    return ReplayReport(ok, tolerance, tuple(solves), tuple(pin_diffs), ws, ws_error)

@@ -1,0 +1,351 @@
+"""``joulebook record …``: the audit trail on the command line.
+
+Subcommands (the README's "The record" lists them with examples):
+
+import, show, verify, sign, comment, resolve, diff, replay, export,
+worksheet, update.
+
+Exit codes as for the other commands: 0 done (verified, reproduced,
+solved), 1 a check failed (broken chain, invalid signature, results that do
+not reproduce, a solve that failed and was recorded as such), 2 bad input
+or an unreadable record (the message names the file and line).
+"""
+
+from __future__ import annotations
+
+import sys
+
+EXIT_OK, EXIT_FAILED, EXIT_INPUT = 0, 1, 2
+#: balance.record.DEFAULT_TOLERANCE, repeated so that building the parser imports nothing (a test checks)
+DEFAULT_TOLERANCE = 1e-9
+
+
+def _console():
+    from rich.console import Console
+
+    return Console(highlight=False)
+
+
+def _load(path: str):
+    from balance.record import Record
+
+    rec = Record.load(path)
+    if rec.recovered:
+        print(f"joulebook: {path}: {rec.recovered}", file=sys.stderr)
+    return rec
+
+
+def _allowed(args) -> str | None:
+    if getattr(args, "allowed_signers", None):
+        return args.allowed_signers
+    from balance.record import default_allowed_signers
+
+    return default_allowed_signers()
+
+
+def _pipe_safe(func):
+    """A command whose output may go to a pager or `head` that closes early: no traceback."""
+    import functools
+    import os
+
+    @functools.wraps(func)
+    def run(args) -> int:
+        try:
+            code = func(args)
+            sys.stdout.flush()
+            return code
+        except BrokenPipeError:
+            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+            return EXIT_OK
+    return run
+
+
+def _entry_line(e) -> str:
+    return f"entry {e.seq} ({e.kind}) written; chain head {e.hash}"
+
+
+def _solve_outcome(entry) -> int:
+    if "error" in entry.data:
+        print(f"joulebook: not solved (recorded in entry {entry.seq}): {entry.data['error']}", file=sys.stderr)
+        return EXIT_FAILED
+    return EXIT_OK
+
+
+# -- subcommands ------------------------------------------------------------------------
+@_pipe_safe
+def cmd_import(args) -> int:
+    from balance.record import Record
+    from balance.worksheet import Worksheet
+
+    ws = Worksheet.load(args.worksheet)
+    rec = Record.create(args.record, worksheet=ws)
+    print(f"{args.record}: new record, {len(rec.entries)} entries; chain head {rec.head}")
+    return _solve_outcome(rec.entries[-1])
+
+
+@_pipe_safe
+def cmd_show(args) -> int:
+    from rich.text import Text
+
+    rec = _load(args.record)
+    v = rec.verify(_allowed(args))
+    status = {s.seq: s for s in v.signoffs}
+    con = _console()
+    con.print(Text(f"{args.record}: {len(rec.entries)} entries, revision {rec.revision}", style="bold"))
+    for e in rec.entries:
+        head = Text()
+        head.append(f"entry {e.seq}", style="bold cyan")
+        head.append(f"  {e.kind}", style="bold")
+        head.append(f"  {e.time}  by {e.author}", style="dim")
+        if e.seq in status:
+            s = status[e.seq]
+            head.append(f"  [{s.status}]", style={"valid": "green", "unsigned": "yellow"}.get(s.status, "red"))
+        con.print()
+        con.print(head)
+        con.print(Text(e.text), soft_wrap=True)  # long lines wrap in the terminal, tables stay whole
+        if args.data:
+            from balance.record.format import data_lines
+
+            con.print(Text("\n".join(data_lines(e.data)), style="dim"), soft_wrap=True)
+    con.print()
+    style = "green" if v.ok else ("yellow" if v.chain_ok and not v.problems else "red")
+    for line in v.lines():
+        con.print(Text(line, style=style if line.startswith("verdict") else ""), soft_wrap=True)
+    return EXIT_OK
+
+
+@_pipe_safe
+def cmd_verify(args) -> int:
+    rec = _load(args.record)
+    v = rec.verify(_allowed(args))
+    for line in v.lines():
+        print(line)
+    if not v.ok:
+        print(f"joulebook: {args.record}: " + (f"broken at entry {v.broken_seq}: " if v.broken_seq else "")
+              + v.reason, file=sys.stderr)
+        return EXIT_FAILED
+    if rec.recovered:
+        return EXIT_FAILED  # the file as found was not intact: its last entry was cut off
+    return EXIT_OK
+
+
+@_pipe_safe
+def cmd_sign(args) -> int:
+    rec = _load(args.record)
+    e = rec.sign(args.role, key_path=args.key, signer=args.signer, unsigned=args.unsigned)
+    kind = "unsigned sign-off" if args.unsigned else "signed"
+    print(f"{args.record}: {args.role} by {e.data['signer']} ({kind}), revision {e.data['revision']}, "
+          f"covers {e.data['covers']}; {_entry_line(e)}")
+    return EXIT_OK
+
+
+@_pipe_safe
+def cmd_comment(args) -> int:
+    rec = _load(args.record)
+    e = rec.comment(args.entry, args.text)
+    print(f"{args.record}: comment on entry {args.entry}; {_entry_line(e)}")
+    return EXIT_OK
+
+
+@_pipe_safe
+def cmd_resolve(args) -> int:
+    rec = _load(args.record)
+    e = rec.resolve(args.comment, args.note)
+    left = len(rec.open_comments())
+    print(f"{args.record}: comment {args.comment} resolved; {_entry_line(e)}; {left} comment(s) still open")
+    return EXIT_OK
+
+
+def _point(rec, text: str, flag: str) -> int:
+    from balance.errors import InputError
+    from balance.record.review import revisions
+
+    text = text.strip()
+    if text[:1] in ("r", "R"):
+        try:
+            rev = int(text[1:])
+        except ValueError:
+            raise InputError(flag, f"expected an entry number or rN (end of revision N); got {text!r}") from None
+        revs = revisions(rec.entries)
+        seqs = [e.seq for e, r in zip(rec.entries, revs) if r == rev]
+        if not seqs:
+            raise InputError(flag, f"there is no revision {rev} (revisions 1–{revs[-1]})")
+        return seqs[-1]
+    try:
+        return int(text)
+    except ValueError:
+        raise InputError(flag, f"expected an entry number or rN (end of revision N); got {text!r}") from None
+
+
+@_pipe_safe
+def cmd_diff(args) -> int:
+    from balance.record import diff
+
+    rec = _load(args.record)
+    to = _point(rec, args.to, "--to") if args.to else len(rec.entries)
+    d = diff(rec, _point(rec, args.from_, "--from"), to)
+    for line in d.lines():
+        print(line)
+    return EXIT_OK
+
+
+@_pipe_safe
+def cmd_replay(args) -> int:
+    rec = _load(args.record)
+    chain = rec.verify()
+    if not chain.chain_ok:
+        print(f"joulebook: warning: {args.record}: the chain is broken at entry {chain.broken_seq}; "
+              "replaying anyway", file=sys.stderr)
+    report = rec.replay(args.tolerance)
+    for line in report.lines():
+        print(line)
+    return EXIT_OK if report.ok else EXIT_FAILED
+
+
+@_pipe_safe
+def cmd_export(args) -> int:
+    from balance.record import export_html, export_markdown
+
+    rec = _load(args.record)
+    allowed = _allowed(args)
+    text = export_markdown(rec, allowed) if args.format == "md" else export_html(rec, allowed)
+    if args.output:
+        from balance.record.store import write_output
+
+        write_output(args.output, text.encode("utf-8"))
+        print(f"{args.output}: {args.format} report of {args.record} written")
+    else:
+        sys.stdout.write(text)
+    return EXIT_OK
+
+
+@_pipe_safe
+def cmd_worksheet(args) -> int:
+    rec = _load(args.record)
+    sys.stdout.write(rec.worksheet().to_toml())
+    return EXIT_OK
+
+
+@_pipe_safe
+def cmd_update(args) -> int:
+    from balance.record.format import LIST_SECTIONS, SECTION_KINDS
+    from balance.record.replay import fold
+    from balance.worksheet import Worksheet
+
+    rec = _load(args.record)
+    new = Worksheet.load(args.worksheet).to_dict()
+    current = fold(rec.entries)
+    changed = []
+    for section in SECTION_KINDS:
+        value = new.get(section, [] if section in LIST_SECTIONS else {})
+        old = current.get(section)
+        if old is None and value in ([], {}):
+            continue
+        if old != value:
+            changed.append((section, value))
+    last_step = max((e.seq for e in rec.entries if e.section), default=0)
+    last_solve = rec.last_solve()
+    if not changed and last_solve is not None and last_solve.seq > last_step:
+        print(f"{args.record}: no change; the record already holds this worksheet, solved in entry {last_solve.seq}")
+        return _solve_outcome(last_solve)
+    if args.note and changed:
+        e = rec.note(args.note)
+        print(f"{args.record}: {_entry_line(e)}")
+    for section, value in changed:
+        e = rec.append_step(section, value)
+        print(f"{args.record}: {_entry_line(e)}")
+    e = rec.append_solve()
+    print(f"{args.record}: {_entry_line(e)}")
+    return _solve_outcome(e)
+
+
+# -- the parser ---------------------------------------------------------------------------
+def _tolerance(text: str) -> float:
+    import argparse
+    import math
+
+    try:
+        value = float(text)
+    except ValueError:
+        value = math.nan
+    if not (math.isfinite(value) and value >= 0):
+        raise argparse.ArgumentTypeError(f"expected a relative tolerance >= 0, like 1e-9; got {text!r}")
+    return value
+
+
+def add_parser(subparsers) -> None:
+    """Add ``record`` and its subcommands to the ``joulebook`` parser (imports nothing heavy)."""
+    top = subparsers.add_parser(
+        "record", help="the audit trail: a signed, hash-chained record of a calculation",
+        description="Build, review, sign and verify a record: the append-only, hash-chained text file "
+                    "of every step of a calculation (README: 'The record').")
+    top.set_defaults(func=lambda args: (top.print_help(), EXIT_OK)[1])
+    sub = top.add_subparsers(dest="record_command")
+    allowed = dict(metavar="FILE", help="OpenSSH allowed-signers file to check signatures against "
+                                        "(default: JOULEBOOK_ALLOWED_SIGNERS or the config file)")
+
+    p = sub.add_parser("import", help="start a record from a worksheet, and solve it")
+    p.add_argument("worksheet", help="worksheet (TOML)")
+    p.add_argument("record", help="the new record file (never overwritten)")
+    p.set_defaults(func=cmd_import)
+
+    p = sub.add_parser("show", help="print every entry of a record")
+    p.add_argument("record")
+    p.add_argument("--data", action="store_true", help="also print each entry's machine-readable part")
+    p.add_argument("--allowed-signers", **allowed)
+    p.set_defaults(func=cmd_show)
+
+    p = sub.add_parser("verify", help="check the hash chain, the sign-off rules and the signatures")
+    p.add_argument("record")
+    p.add_argument("--allowed-signers", **allowed)
+    p.set_defaults(func=cmd_verify)
+
+    p = sub.add_parser("sign", help="sign off the record as it stands")
+    p.add_argument("record")
+    p.add_argument("--role", required=True, help="prepared, checked or approved (in that order)")
+    how = p.add_mutually_exclusive_group(required=True)
+    how.add_argument("--key", metavar="KEYFILE", help="SSH private key (or a public key whose private half is in ssh-agent)")
+    how.add_argument("--unsigned", action="store_true", help="record the sign-off without a signature (reported as unsigned)")
+    p.add_argument("--signer", metavar="ID", help="the signer's identity in the allowed-signers file (default: the author)")
+    p.set_defaults(func=cmd_sign)
+
+    p = sub.add_parser("comment", help="add a review comment on an entry")
+    p.add_argument("record")
+    p.add_argument("entry", type=int, help="number of the entry commented on")
+    p.add_argument("text")
+    p.set_defaults(func=cmd_comment)
+
+    p = sub.add_parser("resolve", help="resolve an open comment")
+    p.add_argument("record")
+    p.add_argument("comment", type=int, help="number of the comment's entry")
+    p.add_argument("note", help="how it was resolved")
+    p.set_defaults(func=cmd_resolve)
+
+    p = sub.add_parser("diff", help="inputs and results that changed between two points of a record")
+    p.add_argument("record")
+    p.add_argument("--from", dest="from_", required=True, metavar="N", help="entry number, or rN: the end of revision N")
+    p.add_argument("--to", metavar="M", help="entry number or rN (default: the last entry)")
+    p.set_defaults(func=cmd_diff)
+
+    p = sub.add_parser("replay", help="rebuild the worksheet, re-solve it and check every recorded result")
+    p.add_argument("record")
+    p.add_argument("--tolerance", type=_tolerance, default=DEFAULT_TOLERANCE,
+                   help=f"relative tolerance (default {DEFAULT_TOLERANCE:g})")
+    p.set_defaults(func=cmd_replay)
+
+    p = sub.add_parser("export", help="a printable calculation report (Markdown or standalone HTML)")
+    p.add_argument("record")
+    p.add_argument("--format", choices=("md", "html"), required=True)
+    p.add_argument("-o", "--output", metavar="FILE", help="write to FILE (default: standard output)")
+    p.add_argument("--allowed-signers", **allowed)
+    p.set_defaults(func=cmd_export)
+
+    p = sub.add_parser("worksheet", help="print the worksheet the record replays to (TOML)")
+    p.add_argument("record")
+    p.set_defaults(func=cmd_worksheet)
+
+    p = sub.add_parser("update", help="append the sections a changed worksheet changes, and solve")
+    p.add_argument("record")
+    p.add_argument("worksheet", help="the edited worksheet (TOML)")
+    p.add_argument("--note", help="a revision note saying why, written before the changes")
+    p.set_defaults(func=cmd_update)
