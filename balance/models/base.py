@@ -18,9 +18,9 @@ from abc import ABC, abstractmethod
 from dataclasses import asdict, dataclass
 
 import numpy as np
-from scipy.optimize import brentq
 
 from ..errors import InputError, TwoPhaseError
+from ..rootfind import brent
 from ..species import Species
 
 #: The intensive properties a state may be fixed by.
@@ -185,7 +185,19 @@ class PropertyModel(ABC):
         Joule-Thomson inversion pressure) the gas-side one is returned.
         """
         grid = np.geomspace(hi, lo, 120)
-        root = bracketed_root(lambda v: point_at(v).get(key) - target, grid, scale=_scale(key, target))
+        scale = _scale(key, target)
+
+        def f(v):
+            return point_at(v).get(key) - target
+
+        try:
+            root = bracketed_root(f, grid, scale=scale)
+        except TwoPhaseError:
+            root = _root_behind_fold(f, grid, scale)
+            if root is None:
+                raise
+        if root is None:
+            root = _root_behind_fold(f, grid, scale)
         if root is None:
             raise InputError(field, f"no state of {self.label}{where} has {key} = {target:.6g}")
         return point_at(root)
@@ -197,12 +209,56 @@ def _scale(key: str, target: float) -> float:
     return max(abs(target), typical)
 
 
+def _root_behind_fold(f, grid, scale: float, rtol: float = 1e-10):
+    """A root the scan of ``grid`` stepped over, or None.
+
+    Near a fold of f (h along an isotherm near the Joule-Thomson inversion
+    pressure, h along a line of constant u where P v is least) f can dip
+    through zero and back between two neighbouring grid points: two states
+    share the pair and no sign change shows on the grid. At each interior
+    grid point where |f| is smallest among its neighbours and all three have
+    one sign, f is minimised (in its sign) between the neighbours; if it
+    crosses zero, the root on the side of ``grid[0]`` is returned.
+    """
+    values = []
+    for x in grid:
+        try:
+            values.append(float(f(x)))
+        except (InputError, ValueError, ZeroDivisionError, FloatingPointError):
+            values.append(math.nan)
+    for i in range(1, len(grid) - 1):
+        fa, fm, fb = values[i - 1], values[i], values[i + 1]
+        if not (math.isfinite(fa) and math.isfinite(fm) and math.isfinite(fb)):
+            continue
+        if not (fa * fm > 0 and fm * fb > 0 and abs(fm) < abs(fa) and abs(fm) <= abs(fb)):
+            continue
+        sign = 1.0 if fm > 0 else -1.0
+
+        def g(x):
+            try:
+                return sign * float(f(x))
+            except (InputError, ValueError, ZeroDivisionError, FloatingPointError):
+                return math.inf
+
+        lo, hi = sorted((float(grid[i - 1]), float(grid[i + 1])))
+        from scipy.optimize import minimize_scalar  # lazy: only a fold needs it (~0.4 s import)
+
+        best = minimize_scalar(g, bounds=(lo, hi), method="bounded",
+                               options={"xatol": 1e-13 * abs(float(grid[i]))})
+        if not best.fun < 0:
+            continue
+        x = brent(f, float(grid[i - 1]), float(best.x), xtol=1e-14, rtol=rtol / 4, maxiter=200)
+        if abs(f(x)) <= 1e-7 * scale:
+            return float(x)
+    return None
+
+
 def bracketed_root(f, grid, scale: float = 1.0, rtol: float = 1e-10):
-    """A root of f found by scanning ``grid`` for a sign change, then brentq.
+    """A root of f found by scanning ``grid`` for a sign change, then Brent's method.
 
     Points where f raises a two-phase error are skipped (a cubic cannot be
     evaluated inside its dome). When the sign changes across a jump (the
-    target lies inside a two-phase region the scan stepped over), brentq
+    target lies inside a two-phase region the scan stepped over), Brent's method
     converges onto the jump; that is detected by the residual and raised as
     a two-phase error rather than returned. Of several roots, the first one
     on the grid that is a true zero is returned.
@@ -228,7 +284,10 @@ def bracketed_root(f, grid, scale: float = 1.0, rtol: float = 1e-10):
             return float(grid[i])
         if fa * fb > 0:
             continue
-        x = brentq(f, grid[i], grid[i + 1], xtol=1e-14, rtol=rtol, maxiter=200)
+        # rootfind.brent stops at 2 rtol |x|, scipy's brentq at rtol |x| / 2:
+        # rtol / 4 keeps the tolerance this function has always had
+        x = brent(f, float(grid[i]), float(grid[i + 1]), xtol=1e-14, rtol=rtol / 4, maxiter=200,
+                  fa=fa, fb=fb)
         if abs(f(x)) <= 1e-7 * scale:
             return float(x)
         jumps += 1
@@ -237,6 +296,20 @@ def bracketed_root(f, grid, scale: float = 1.0, rtol: float = 1e-10):
     if two_phase is not None:
         raise two_phase
     return None
+
+
+def check_arguments(**values: float) -> None:
+    """Reject T [K], P [Pa] or v [m3/mol] that are not finite and positive.
+
+    Called by ``at_TP`` and ``at_Tv``, whose callers may bypass
+    :func:`check_specs`; the error names the argument (``T``, ``P`` or
+    ``v``). Without it a direct call returned a point full of NaN.
+    """
+    for key, value in values.items():
+        if not (math.isfinite(value) and value > 0):
+            what = {"T": "an absolute temperature above 0 K", "P": "an absolute pressure above 0",
+                    "v": "a positive volume"}[key]
+            raise InputError(key, f"must be {what}; got {value:g} in SI units")
 
 
 def check_specs(specs: dict[str, float], field: str) -> None:

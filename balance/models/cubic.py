@@ -38,12 +38,12 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq
 
-from ..errors import TwoPhaseError
+from ..errors import InputError, TwoPhaseError
+from ..rootfind import brent
 from ..species import Species
 from ..units import P_REF, R
-from .base import Point, PropertyModel
+from .base import Point, PropertyModel, check_arguments
 
 SQRT2 = math.sqrt(2.0)
 _CBRT2 = 2.0 ** (1.0 / 3.0)
@@ -207,7 +207,8 @@ class Cubic(PropertyModel):
         h_dep = U_r + P * v - R * T
         s_dep = S_r + R * lnZ
         h_ig = cp_ig.h(T)
-        s_ig = cp_ig.s(T) - R * np.log(P / P_REF)
+        with np.errstate(invalid="ignore"):  # P < 0 (stretched liquid) is refused by the caller
+            s_ig = cp_ig.s(T) - R * np.log(P / P_REF)
         return {
             "T": T, "P": P, "v": v, "Z": Z,
             "u": h_ig - R * T + u_dep, "h": h_ig + h_dep, "s": s_ig + s_dep,
@@ -269,6 +270,7 @@ class Cubic(PropertyModel):
         return lines
 
     def at_TP(self, T: float, P: float) -> Point:
+        check_arguments(T=T, P=P)
         v_lo, v_hi, n, v = self.roots_TP(T, P)
         n, v, v_lo, v_hi = int(n), float(v), float(v_lo), float(v_hi)
         if n == 3:
@@ -279,8 +281,9 @@ class Cubic(PropertyModel):
         return self._point(T, v, how)
 
     def at_Tv(self, T: float, v: float) -> Point:
+        check_arguments(T=T, v=v)
         if v <= self.b:
-            raise TwoPhaseError("v", f"v = {v:.6g} m3/mol is not above the co-volume b = {self.b:.6g} m3/mol of {self.label}")
+            raise InputError("v", self._below_b(v))
         sat = self.saturation(T)
         if sat is not None and sat[1] < v < sat[2]:
             raise TwoPhaseError(
@@ -291,6 +294,15 @@ class Cubic(PropertyModel):
                 "liquid-vapour mixture",
             )
         return self._point(T, v, "given volume")
+
+    def _below_b(self, v: float) -> str:
+        return f"v = {v:.6g} m3/mol is not above the co-volume b = {self.b:.6g} m3/mol of {self.label}"
+
+    def flash(self, specs: dict[str, float], field: str = "state") -> Point:
+        v = specs.get("v")
+        if isinstance(v, (int, float)) and 0 < v <= self.b:
+            raise InputError(f"{field}.v", self._below_b(v))
+        return super().flash(specs, field)
 
     def _point(self, T: float, v: float, how: str) -> Point:
         p = self.props_Tv(T, v)
@@ -379,9 +391,28 @@ def _saturation(model: Cubic, T: float):
                 return float(model.props_Tv(T, v_lo)["ln_phi"] - model.props_Tv(T, v_hi)["ln_phi"])
 
             lo, hi = P_min * (1 + 1e-9), P_max * (1 - 1e-9)
+            # Next to a spinodal two roots nearly coincide and the closed form
+            # can return one real root (diff is then 0: no bracket, e.g. PR
+            # nitrogen at T/Tc = 0.9), and at the lowest pressures a liquid
+            # "root" lost to round-off (PR methane at T/Tc = 0.8967 gave
+            # v_liquid = 5 m3/mol at 3 Pa): step inward until the smallest and
+            # largest roots lie on the liquid and vapour sides of the spinodals.
+            def roots_ok(P):
+                v_lo, v_hi, n, _ = model.roots_TP(T, P)
+                return int(n) == 3 and float(v_lo) < spin[0] and float(v_hi) > spin[1]
+
+            gap = P_max - P_min
+            for step in (1e-7, 1e-5, 1e-3, 1e-2):
+                if roots_ok(lo):
+                    break
+                lo = P_min + step * gap
+            for step in (1e-7, 1e-5, 1e-3, 1e-2):
+                if roots_ok(hi):
+                    break
+                hi = P_max - step * gap
             try:
                 if hi > lo and diff(lo) * diff(hi) < 0:
-                    P = brentq(diff, lo, hi, xtol=1e-12 * hi, rtol=1e-13)
+                    P = brent(diff, lo, hi, xtol=1e-12 * hi, rtol=2.5e-14)  # = brentq's rtol 1e-13
                     v_lo, v_hi, _, _ = model.roots_TP(T, P)
                     result = (P, float(v_lo), float(v_hi))
             except (ValueError, FloatingPointError):

@@ -4,8 +4,9 @@ from __future__ import annotations
 
 import math
 
+from ..errors import InputError
 from ..units import P_REF, R
-from .base import Point, PropertyModel
+from .base import Point, PropertyModel, check_arguments
 
 
 class IdealGas(PropertyModel):
@@ -27,11 +28,26 @@ class IdealGas(PropertyModel):
         ]
 
     def at_Tv(self, T: float, v: float) -> Point:
+        check_arguments(T=T, v=v)
         P = R * T / v
         return self._point(T, P, v)
 
     def at_TP(self, T: float, P: float) -> Point:
+        check_arguments(T=T, P=P)
         return self._point(T, P, R * T / P)
+
+    def flash(self, specs: dict[str, float], field: str = "state") -> Point:
+        # u and h of an ideal gas depend on T alone: two of T, u, h fix one
+        # number, not a state (the generic search would return an arbitrary
+        # volume, every one of which meets the pair).
+        if len(specs) == 2 and set(specs) <= {"T", "u", "h"}:
+            a, b = sorted(specs, key=("T", "u", "h").index)
+            raise InputError(
+                field,
+                f"{a} and {b} do not fix a state of an ideal gas (u and h depend on T alone); "
+                "give P, v or s with one of them",
+            )
+        return super().flash(specs, field)
 
     def _point(self, T: float, P: float, v: float) -> Point:
         cp_ig = self.species.cp_ig
