@@ -131,10 +131,10 @@ class PropertyModel(ABC):
 
         Raises InputError naming ``field`` when the pair cannot be met.
         """
+        check_specs(specs, field)  # first: it names an unknown key before sorting needs it
         keys = tuple(sorted(specs, key=SPEC_KEYS.index))
         if len(keys) != 2:
             raise InputError(field, f"needs exactly two of T, P, v, u, h, s; got {', '.join(keys) or 'none'}")
-        check_specs(specs, field)
         if "x" in keys:
             raise InputError(
                 field,
