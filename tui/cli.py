@@ -126,9 +126,25 @@ def _species_json(sp) -> dict:
 
 
 def cmd_demo(args) -> int:
-    args.file = sample_path(DEMO_SAMPLE)
-    args.json = False
-    return cmd_solve(args)
+    if args.print:
+        args.file = sample_path(DEMO_SAMPLE)
+        args.json = False
+        return cmd_solve(args)
+    from .session import demo_session
+
+    return _run_app(demo_session(sample_path(DEMO_SAMPLE), args.record))
+
+
+def cmd_open(args) -> int:
+    from .session import open_target
+
+    return _run_app(open_target(args.record, must_exist=args.command == "open"))
+
+
+def _run_app(session) -> int:
+    from .app import run  # Textual only for the terminal app
+
+    return run(session)
 
 
 def _pairs(items, flag: str):
@@ -177,15 +193,32 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--json", action="store_true")
     p.set_defaults(func=cmd_species)
 
-    p = sub.add_parser("demo", help="solve the bundled demo worksheet")
+    p = sub.add_parser("demo", help="open the bundled demo worksheet in the terminal app")
+    p.add_argument("--print", action="store_true", help="print the solved demo instead (no terminal app)")
+    p.add_argument("--record", help="keep the demo's record here (default: a temporary folder)")
     p.add_argument("--units", **units)
     p.set_defaults(func=cmd_demo)
+
+    p = sub.add_parser("open", help="open a record (.jbk) or start one from a worksheet (.toml) in the terminal app")
+    p.add_argument("record", help="record file (.jbk) or worksheet (.toml)")
+    p.set_defaults(func=cmd_open)
+    from .record_cli import add_parser as add_record_parser  # `joulebook record …`
+    add_record_parser(sub)
+    parser.set_defaults(commands=tuple(sub.choices))  # a first word not among them is a file to open
     return parser
 
 
 def main(argv: list[str] | None = None) -> int:
     parser = build_parser()
-    args = parser.parse_args(argv)
+    argv = list(sys.argv[1:] if argv is None else argv)
+    if not argv:
+        args = argparse.Namespace(command="new", record=None, func=cmd_open)  # `joulebook`: a new worksheet
+    elif not argv[0].startswith("-") and argv[0] not in parser.get_default("commands"):
+        if len(argv) != 1:  # `joulebook RECORD.jbk` or `joulebook WORKSHEET.toml`
+            parser.error("give one record (.jbk) or worksheet (.toml) to open")
+        args = argparse.Namespace(command="path", record=argv[0], func=cmd_open)
+    else:
+        args = parser.parse_args(argv)
     if not getattr(args, "func", None):
         parser.print_help()
         return EXIT_OK

@@ -60,3 +60,15 @@ def show(value: float | None, kind: str, units: str, digits: int = 6) -> str:
 def per_mass(point_value: float, M: float) -> float:
     """A molar value [x/mol] per unit mass [x/kg]."""
     return point_value / M
+
+
+def converter(kind: str, units: str):
+    """A function taking SI values (mass-based for intensive ones) to the chosen set.
+
+    Every display unit is linear in SI (offset for °C and °F), so two
+    conversions fix it: fast enough for the points of a diagram.
+    """
+    target = UNIT_SETS[units][kind]
+    b = to_unit(0.0, SI[kind], target)
+    a = to_unit(1.0, SI[kind], target) - b
+    return lambda x: a * x + b

@@ -1,0 +1,63 @@
+"""How the command line opens the terminal app: which session each form of
+``joulebook [...]`` starts (the app itself is replaced by a recorder here).
+
+Expected behaviour: the README, "Using the terminal app".
+"""
+
+from __future__ import annotations
+
+import pytest
+
+from tests.test_tui_pilot import SAMPLES, author  # noqa: F401
+from tui import cli
+
+
+@pytest.fixture
+def opened(monkeypatch, tmp_path):
+    """Run the CLI in an empty folder; capture the session the app would open."""
+    monkeypatch.chdir(tmp_path)
+    seen = []
+    monkeypatch.setattr(cli, "_run_app", lambda session: seen.append(session) or 0)
+    return seen
+
+
+def test_no_arguments_opens_a_new_worksheet_here(opened, tmp_path, author):
+    assert cli.main([]) == 0
+    (session,) = opened
+    assert session.path == tmp_path / "worksheet.jbk"
+    assert session.worksheet.heading.title == "" and session.step == "purpose"
+    (tmp_path / "worksheet.jbk.draft").write_text("{}")  # taken: the next one gets a new name
+    assert cli.main([]) == 0
+    assert opened[1].path == tmp_path / "worksheet-2.jbk"
+
+
+def test_a_new_record_path_starts_a_worksheet_there(opened, tmp_path, author):
+    assert cli.main(["pump-test.jbk"]) == 0
+    assert opened[0].path.name == "pump-test.jbk"
+
+
+def test_open_needs_an_existing_record(opened, capsys, author):
+    assert cli.main(["open", "missing.jbk"]) == 2
+    assert "missing.jbk" in capsys.readouterr().err
+    assert opened == []
+
+
+def test_a_worksheet_file_starts_a_record_from_it(opened, tmp_path, author):
+    pytest.importorskip("balance.record")
+    assert cli.main([str(SAMPLES / "argon-membrane-rupture.toml")]) == 0
+    session = opened[0]
+    assert session.path == tmp_path / "argon-membrane-rupture.jbk"
+    assert session.worksheet.fluid.species == "Ar"
+    assert [e.kind for e in session.entries()][0] == "opening"
+    # and `joulebook open` reopens it at its current state
+    assert cli.main(["open", str(session.path)]) == 0
+    assert opened[1].worksheet.to_dict() == session.worksheet.to_dict()
+
+
+def test_demo_opens_the_bundled_sample_and_print_keeps_the_old_output(opened, capsys, tmp_path, author):
+    pytest.importorskip("balance.record")
+    assert cli.main(["demo", "--record", str(tmp_path / "demo.jbk")]) == 0
+    assert opened[0].worksheet.heading.job == "PP-UT-0142"
+    assert cli.main(["demo", "--print", "--units", "si"]) == 0
+    out = capsys.readouterr().out
+    assert "N2 buffer vessel V-101" in out and "Energy balance" in out

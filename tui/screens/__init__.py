@@ -1,0 +1,1 @@
+"""The worksheet steps (one module each) and the app's dialogs."""

@@ -1,0 +1,119 @@
+"""Step 2: the system boundary — what is inside, and where heat crosses."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult, SystemCommand
+from textual.binding import Binding
+from textual.widgets import Label, Static, TextArea
+
+from balance.worksheet import HeatTerm, System, Worksheet
+
+from ..widgets.choice_list import ChoiceList
+from ..widgets.field_row import FieldRow
+from .step import StepScreen
+
+KINDS = [
+    ("closed", "closed: no mass crosses the boundary"),
+    ("open", "open: streams cross it (not available yet)"),
+]
+
+
+def common_boundary_T(ws: Worksheet, default: str) -> tuple[str, bool]:
+    """The boundary temperature shared by every heat term (or the default), and whether they differ."""
+    temps = {h.T_boundary for h in ws.heat}
+    if not temps:
+        return default, False
+    if len(temps) == 1:
+        return temps.pop(), False
+    return "", True
+
+
+def sketch_for(ws: Worksheet) -> str:
+    """A starter sketch of the boundary drawn from the compartments and terms."""
+    boxes = [f"[ {s.name or 'initial'} ]" for s in ws.initial] or ["[ fluid ]"]
+    inside = " ── ".join(boxes)
+    width = max(len(inside) + 4, 30)
+    lines = ["┌" + "─" * (width - 2) + "┐", "│ " + inside.ljust(width - 4) + " │", "└" + "─" * (width - 2) + "┘"]
+    arrows = [f"  ↓ Q '{h.name}'" for h in ws.heat] + [f"  ⇅ W '{w.name}' ({w.kind})" for w in ws.work]
+    return "\n".join(lines + arrows) + "\n  (the box is the boundary)"
+
+
+class BoundaryScreen(StepScreen):
+    STEP = "boundary"
+    HELP = """\
+## System boundary
+
+**What it is for.** Drawing the boundary decides what the balance is
+written for. Everything inside it is the *system*; heat and work are only
+what crosses it.
+
+- *Kind*: a closed system keeps its mass; open systems (streams crossing the
+  boundary) are planned and shown greyed.
+- *Inside*: say in words what the boundary encloses — which vessels, lines,
+  the gas only or the steel as well.
+- *Boundary temperature*: the temperature of the wall or reservoir where
+  heat crosses. The entropy balance needs it (S_gen = ΔS − Σ Q/T_b). It is
+  set for every heat term (step 5 can set each one on its own).
+- *Sketch*: a few lines of text showing the boundary. `ctrl+t` drafts one
+  from the compartments and terms.
+
+**Common mistakes.** Putting the steel inside the boundary but leaving its
+heat capacity out; leaving a vessel that shares the gas outside the boundary
+in a rupture or blow-down; using the *system* temperature as the boundary
+temperature for heat from a hotter jacket (that hides the entropy generated).
+"""
+
+    BINDINGS = [
+        Binding("ctrl+t", "draft_sketch", "Sketch", id="boundary.sketch",
+                tooltip="Draft a text sketch of the boundary from the compartments and terms"),
+    ]
+
+    def compose_form(self) -> ComposeResult:
+        ws = self.worksheet
+        yield Label("Kind of system", classes="form-label")
+        yield ChoiceList(KINDS, ws.system.kind, disabled_values=("open",), id="kind")
+        yield FieldRow("Inside", ws.system.inside, id="inside", placeholder="what the boundary encloses",
+                       tooltip="What the boundary encloses")
+        default = self.app.session.extras.get("T_boundary", "")
+        shared, differs = common_boundary_T(ws, default)
+        yield FieldRow("Boundary T", shared, kind="temperature", field_label="boundary temperature",
+                       positive=True, id="boundary-T",
+                       tooltip="Temperature of the wall or reservoir where heat crosses")
+        yield Static(self._boundary_note(ws, differs), id="boundary-note", classes="hint")
+        yield Label("Sketch (ctrl+t drafts one)", classes="form-label")
+        yield TextArea(ws.system.sketch, id="sketch", soft_wrap=False, tab_behavior="focus",
+                       placeholder="a few lines showing the boundary")
+
+    @staticmethod
+    def _boundary_note(ws: Worksheet, differs: bool) -> str:
+        if differs:
+            return "the heat terms differ: typing here sets all of them (or edit each in step 5)"
+        if not ws.heat:
+            return "no heat terms yet: new heat terms (step 5) start with this temperature"
+        return f"applies to the {len(ws.heat)} heat term(s) of step 5"
+
+    def collect(self, ws: Worksheet) -> Worksheet:
+        q = self.query_one
+        system = System(kind=q("#kind", ChoiceList).value, inside=q("#inside", FieldRow).value,
+                        sketch=q("#sketch", TextArea).text)
+        heat = ws.heat
+        typed = q("#boundary-T", FieldRow).value
+        default = self.app.session.extras.get("T_boundary", "")
+        shared, differs = common_boundary_T(ws, default)
+        if typed != shared and not (differs and typed == ""):
+            self.app.set_extra("T_boundary", typed)
+            heat = tuple(HeatTerm(h.name, h.Q, typed) for h in ws.heat)
+            q("#boundary-note", Static).update(self._boundary_note(ws.with_(heat=heat), False))
+        return ws.with_(system=system, heat=heat)
+
+    def action_draft_sketch(self) -> None:
+        area = self.query_one("#sketch", TextArea)
+        if area.text.strip():
+            self.notify("the sketch is not empty: clear it first to draft a new one", severity="warning")
+            return
+        area.load_text(sketch_for(self.worksheet))
+        area.focus()
+        self.changed()
+
+    def step_commands(self):
+        yield SystemCommand("Draft a sketch", "A text sketch of the boundary (ctrl+t)", self.action_draft_sketch)

@@ -1,0 +1,121 @@
+"""Step 3: the fluid and its property model, with a live adequacy hint."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.content import Content
+from textual.widgets import Label, Static
+
+from balance.worksheet import Fluid, Worksheet
+
+from ..analysis import sig
+from ..widgets.choice_list import ChoiceList
+from ..widgets.species_picker import SpeciesPicker
+from .step import StepScreen
+
+MODELS = [
+    ("ideal-gas", "ideal gas — low pressure, or far above Tc"),
+    ("van-der-waals", "van der Waals — rough bounds"),
+    ("redlich-kwong", "Redlich–Kwong — gases, moderate P"),
+    ("soave-redlich-kwong", "Soave–Redlich–Kwong — gases, supercritical"),
+    ("peng-robinson", "Peng–Robinson — gases, supercritical"),
+    ("incompressible", "incompressible — liquids and solids"),
+    ("reference", "reference EOS (CoolProp) — wet states, any phase"),
+]
+
+
+class FluidScreen(StepScreen):
+    STEP = "fluid"
+    HELP = """\
+## Fluid and property model
+
+**What it is for.** Every number in the balance comes from the property
+model, so choose it for the states you have, not by habit.
+
+- *Species*: type an id, formula, name or alias (`N2`, `nitrogen`,
+  `methane`); ↓ moves into the matches, Enter picks.
+- *Model*: ↑/↓ and Enter. The reference model is greyed for species without
+  a reference equation of state.
+- *Adequacy*: once step 4 has two properties of a state, the hint shows the
+  reduced temperature and pressure, the compressibility Z and the phase at
+  each state, with a recommendation. For an ideal gas it also shows Z from
+  Peng–Robinson, as a yardstick.
+
+**Common mistakes.** An ideal gas at high reduced pressure (Z far from 1:
+a rupture or a fill from a high-pressure cylinder); a cubic equation for a
+wet state (it refuses it: use the reference model); a gas model for a
+liquid (use the incompressible or the reference model).
+"""
+
+    def compose_form(self) -> ComposeResult:
+        f = self.worksheet.fluid
+        yield SpeciesPicker(f.species, id="picker")
+        yield Label("Property model", classes="form-label")
+        yield ChoiceList(MODELS, _canonical(f.model), disabled_values=self._disabled(f.species), id="model")
+        if f.overrides:
+            listed = ", ".join(f"{k} = {v}" for k, v in f.overrides.items())
+            yield Static(f"overrides from the worksheet file (kept): {listed}", classes="hint", markup=False)
+        yield Label("Adequacy at the states given so far", classes="form-label")
+        yield Static("", id="advice", markup=False)
+
+    def on_mount(self) -> None:
+        super().on_mount()
+        self.watch(self.app, "advice", self._show_advice)
+        self.app.start_advice()
+
+    @staticmethod
+    def _disabled(species: str) -> tuple[str, ...]:
+        from balance.errors import InputError
+        from balance.species import lookup
+
+        try:
+            sp = lookup(species, "species")
+        except InputError:
+            return ()
+        return () if sp.coolprop else ("reference",)
+
+    def collect(self, ws: Worksheet) -> Worksheet:
+        species = self.query_one(SpeciesPicker).value
+        model = self.query_one("#model", ChoiceList)
+        model.set_disabled(self._disabled(species))
+        # keep the model's text as typed (an alias such as 'pr') unless another model was chosen
+        value = ws.fluid.model if _canonical(ws.fluid.model) == model.value else model.value
+        return ws.with_(fluid=Fluid(species=species, model=value, overrides=dict(ws.fluid.overrides)))
+
+    def on_species_picker_picked(self, event: SpeciesPicker.Picked) -> None:
+        self.changed()
+        self.query_one("#model", ChoiceList).focus()
+
+    def _show_advice(self, advice) -> None:
+        box = self.query_one("#advice", Static)
+        if advice is None:
+            box.update(Content.styled("checking…", "$text-muted"))
+            return
+        parts: list = []
+        units = self.app.units
+        from ..display import show, unit_label
+
+        for h in advice.states:
+            zr = f", Z(PR) = {sig(h.Z_real, 4)}" if h.Z_real is not None else ""
+            parts.append((f"{h.name}: T = {show(h.T, 'T', units, 5)} {unit_label('T', units)}, "
+                          f"P = {show(h.P, 'P', units, 5)} {unit_label('P', units)}\n", ""))
+            parts.append((f"   Tr = {sig(h.Tr, 3)}, Pr = {sig(h.Pr, 3)}, Z = {sig(h.Z, 4)}{zr}, {h.phase}\n",
+                          "$text-muted"))
+            for note in h.notes:
+                parts.append((f"   • {note}\n", "$text-warning"))
+        for p in advice.problems:
+            parts.append((f"• {p}\n", "$text-warning"))
+        if advice.recommendation:
+            mark, style = ("✓ ", "$text-success") if advice.adequate else ("! ", "bold $text-warning")
+            parts.append((mark + advice.recommendation, style))
+        box.update(Content.assemble(*parts))
+
+
+def _canonical(name: str) -> str:
+    from balance.errors import InputError
+    from balance.models import canonical
+
+    try:
+        return canonical(name) if name.strip() else ""
+    except InputError:
+        return ""

@@ -1,0 +1,127 @@
+"""What every worksheet step shares: the frame, and turning edits into a worksheet.
+
+A step screen shows one part of the worksheet. Its widgets start from
+``app.session.worksheet``; after any change the screen builds a new
+:class:`~balance.worksheet.Worksheet` (``collect``) and hands it to the app,
+which autosaves it and recounts the degrees of freedom. Screens never
+compute thermodynamics and never touch files.
+"""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Input, Static, TextArea
+
+from balance.worksheet import Worksheet
+
+from ..steps import BY_ID
+from ..widgets.choice_list import ChoiceList
+from ..widgets.dof_line import DofLine
+from ..widgets.field_row import FieldRow
+from ..widgets.key_bar import KeyBar
+from ..widgets.step_list import StepList
+from ..widgets.title_bar import TitleBar
+
+
+class StepScreen(Screen):
+    """One step of the worksheet, in the app's frame."""
+
+    STEP = ""
+    SCROLL = True
+    """whether the form scrolls as a whole (the results and review steps manage their own)"""
+    HELP = ""
+    """Markdown: what the step is for, and the common mistakes."""
+
+    AUTO_FOCUS = "#form Input, #form TextArea, #form OptionList, #form Button, #form SelectionList"
+
+    BINDINGS = [
+        Binding("escape", "focus_steps", "Steps", id="step.steps", show=False,
+                tooltip="Move to the list of steps (arrows and Enter, or a digit, to open one)"),
+    ]
+
+    def __init__(self) -> None:
+        super().__init__(name=self.STEP)
+        self._ready = False
+
+    @property
+    def worksheet(self) -> Worksheet:
+        return self.app.session.worksheet
+
+    def compose(self) -> ComposeResult:
+        step = BY_ID[self.STEP]
+        yield TitleBar()
+        with Horizontal(id="frame"):
+            yield StepList(self.STEP, self.app.statuses, id="steps")
+            with Vertical(id="main"):
+                yield Static(f"{step.number}  {step.title}", id="step-heading")
+                with (VerticalScroll if self.SCROLL else Vertical)(id="form"):
+                    yield from self.compose_form()
+        yield DofLine(id="dof")
+        yield KeyBar(id="keys")
+
+    def compose_form(self) -> ComposeResult:
+        yield from ()
+
+    def on_mount(self) -> None:
+        self.call_after_refresh(self._arm)
+
+    def _arm(self) -> None:
+        self._ready = True
+
+    # -- edits -----------------------------------------------------------------
+    def collect(self, ws: Worksheet) -> Worksheet:
+        """``ws`` with this step's sections replaced by what the widgets hold."""
+        return ws
+
+    def changed(self) -> None:
+        if not self._ready:
+            return
+        self.app.edit(self.collect(self.worksheet))
+
+    def on_input_changed(self, event) -> None:
+        self.changed()
+
+    def on_input_submitted(self, event) -> None:
+        # Enter moves on to the next text field, as on a paper form (it never ticks a box
+        # or picks a choice on the way)
+        event.stop()
+        chain = self.focus_chain
+        here = chain.index(event.input) if event.input in chain else -1
+        following = [w for w in chain[here + 1:] if isinstance(w, (Input, TextArea))]
+        if following:
+            following[0].focus()
+        else:
+            self.focus_next()
+
+    def on_text_area_changed(self, event) -> None:
+        self.changed()
+
+    def on_select_changed(self, event) -> None:
+        self.changed()
+
+    def on_checkbox_changed(self, event) -> None:
+        self.changed()
+
+    def on_selection_list_selected_changed(self, event) -> None:
+        self.changed()
+
+    def on_choice_list_chosen(self, event: ChoiceList.Chosen) -> None:
+        self.changed()
+
+    # -- navigation ---------------------------------------------------------------
+    def on_step_list_chosen(self, event: StepList.Chosen) -> None:
+        self.app.goto(event.step)
+
+    def action_focus_steps(self) -> None:
+        self.query_one(StepList).focus()
+
+    def revalidate(self) -> None:
+        """Check every unit-aware field again (after warm-up, or a new atmosphere)."""
+        for row in self.query(FieldRow):
+            row.revalidate()
+
+    def refresh_from_session(self) -> None:
+        """Show the session's worksheet again after a change made elsewhere (override)."""

@@ -1,0 +1,146 @@
+"""A labelled one-line input with its inline message.
+
+With a ``kind`` (see :mod:`tui.fields`) the input is unit-aware: a
+:class:`~tui.validators.UnitValidator` checks it as the user types, and a
+failure shows beneath it, naming the field and the dimension expected. The
+text is never changed or cleared by validation: what was typed stays.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+
+from textual.app import ComposeResult
+from textual.widget import Widget
+from textual.widgets import Input, Label, Static
+
+from .. import fields
+from ..validators import UnitValidator
+
+
+class FieldRow(Widget):
+    """``label [ input ]`` and, when the text is not acceptable, why."""
+
+    DEFAULT_CSS = """
+    FieldRow {
+        height: auto;
+        width: 1fr;
+        min-width: 20;
+        layout: grid;
+        grid-size: 2;
+        grid-columns: 12 1fr;
+        grid-rows: auto;
+        & .field-row--label { color: $text-muted; }
+        & Input { background: $boost; }
+        & Input:focus { background: $primary 20%; }
+        & .field-row--message { column-span: 2; color: $text-error; height: auto; display: none; }
+        &.-invalid .field-row--message { display: block; }
+        &.-invalid .field-row--label { color: $text-error; }
+    }
+    """
+
+    def __init__(
+        self,
+        label: str,
+        value: str = "",
+        *,
+        kind: str | None = None,
+        field_label: str | None = None,
+        allow_unknown: bool = False,
+        required: bool = False,
+        positive: bool = False,
+        placeholder: str | None = None,
+        p_atm: Callable[[], float] | None = None,
+        label_width: int | None = None,
+        id: str | None = None,
+        classes: str | None = None,
+        disabled: bool = False,
+        tooltip: str | None = None,
+    ) -> None:
+        super().__init__(id=id, classes=classes, disabled=disabled)
+        self.label = label
+        self.kind = kind
+        self.field_label = field_label or label
+        self._initial = value
+        self._label_width = label_width
+        validators = []
+        if kind is not None:
+            validators.append(UnitValidator(kind, self.field_label, allow_unknown=allow_unknown,
+                                            required=required, positive=positive, p_atm=p_atm))
+            if placeholder is None:
+                example = fields.KINDS[kind].example
+                placeholder = f"e.g. {example}" + (" or ?" if allow_unknown else "")
+        self._validators = validators
+        self._placeholder = placeholder or ""
+        self._tooltip = tooltip
+
+    def compose(self) -> ComposeResult:
+        yield Label(self.label, classes="field-row--label")
+        # validators are attached once the unit registry is loaded (revalidate): checking
+        # while the first screen is built would import pint and the models on the UI thread
+        inp = Input(self._initial, placeholder=self._placeholder, compact=True,
+                    validate_on=["changed", "blur", "submitted"], select_on_focus=False)
+        if self._tooltip:
+            inp.tooltip = self._tooltip
+        yield inp
+        # the message line is mounted the first time there is something to say
+
+    def on_mount(self) -> None:
+        if self._label_width:
+            self.styles.grid_columns = f"{self._label_width} 1fr"
+        if getattr(self.app, "units_ready", True):
+            self.revalidate()
+
+    @property
+    def input(self) -> Input:
+        return self.query_one(Input)
+
+    @property
+    def value(self) -> str:
+        """The text as typed (before mounting: as given)."""
+        try:
+            return self.query_one(Input).value
+        except Exception:  # not composed yet
+            return self._initial
+
+    @property
+    def message(self) -> str:
+        """The inline message shown, or '' when the text is acceptable."""
+        if not self.has_class("-invalid"):
+            return ""
+        return str(self.query_one(".field-row--message", Static).content)
+
+    def set_value(self, text: str) -> None:
+        inp = self.input
+        if inp.value != text:
+            inp.value = text
+
+    def revalidate(self) -> None:
+        """Check the text again (after the unit registry warms up, or the atmosphere changes)."""
+        if not self._validators:
+            return
+        inp = self.input
+        if not inp.validators:
+            inp.validators = list(self._validators)
+        result = inp.validate(inp.value)
+        self._show(result)
+
+    def _show(self, result) -> None:
+        invalid = result is not None and not result.is_valid
+        text = result.failure_descriptions[0] if invalid and result.failure_descriptions else ""
+        found = self.query(".field-row--message")
+        if found:
+            found.first(Static).update(text)
+        elif invalid:
+            self.mount(Static(text, classes="field-row--message", markup=False))
+        self.set_class(invalid, "-invalid")
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        # validation has already run (validate_on "changed"); show its verdict, let the event bubble
+        self._show(event.validation_result)
+
+    def on_input_blurred(self, event: Input.Blurred) -> None:
+        self._show(event.validation_result)
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        self._show(event.validation_result)

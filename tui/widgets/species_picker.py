@@ -1,0 +1,122 @@
+"""Species picker: type to search by id, formula, name or alias; Enter picks."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.message import Message
+from textual.widget import Widget
+from textual.widgets import Input, OptionList, Static
+from textual.widgets.option_list import Option
+
+from .field_row import FieldRow
+
+MAX_SHOWN = 40
+
+
+def _norm(text: str) -> str:
+    return "".join(ch for ch in text.lower() if ch.isalnum())
+
+
+def matches(query: str):
+    """Species whose id, formula, name, CAS number or an alias contains the query."""
+    from balance.species import catalogue
+
+    q = _norm(query)
+    out = []
+    for sp in catalogue().values():
+        names = (sp.id, sp.formula, sp.name, sp.cas, *(sp.aliases or ()))
+        keys = [_norm(n) for n in names if n]
+        if not q or any(q in k for k in keys):
+            exact = any(q == k for k in keys)
+            out.append((0 if exact else 1, sp))
+    out.sort(key=lambda t: t[0])
+    return [sp for _, sp in out][:MAX_SHOWN]
+
+
+class SpeciesPicker(Widget):
+    """The species field with its search results and what the text resolves to."""
+
+    DEFAULT_CSS = """
+    SpeciesPicker {
+        height: auto;
+        & OptionList { height: auto; max-height: 6; border: none; padding: 0; margin-left: 12;
+                       background: $boost; }
+        & OptionList:focus { background: $primary 15%; }
+        & .species-picker--found { padding-left: 12; color: $text-muted; height: auto; }
+    }
+    """
+
+    BINDINGS = [
+        Binding("down", "to_results", "Results", show=False, id="species.results",
+                tooltip="Move into the list of matching species"),
+    ]
+
+    class Picked(Message):
+        def __init__(self, text: str) -> None:
+            super().__init__()
+            self.text = text
+
+    def __init__(self, value: str = "", id: str | None = None) -> None:
+        super().__init__(id=id)
+        self._initial = value
+
+    def compose(self) -> ComposeResult:
+        yield FieldRow("Species", self._initial, id="species",
+                       placeholder="type to search: N2, nitrogen, methane ...",
+                       tooltip="Species id, formula, name or alias; Enter picks the first match")
+        yield OptionList(id="species-results")
+        yield Static("", classes="species-picker--found", markup=False)
+
+    def on_mount(self) -> None:
+        self._fill(self._initial)
+
+    @property
+    def value(self) -> str:
+        return self.query_one("#species", FieldRow).value
+
+    def _fill(self, query: str) -> None:
+        from balance.errors import InputError
+        from balance.species import lookup
+
+        results = self.query_one("#species-results", OptionList)
+        found = matches(query)
+        results.set_options([Option(f"{sp.id:<8} {sp.name}", id=sp.id) for sp in found])
+        results.display = bool(found)
+        note = self.query_one(".species-picker--found", Static)
+        if not query.strip():
+            note.update(f"{len(found)} species; type to narrow, ↓ to choose")
+            return
+        try:
+            sp = lookup(query, "species")
+        except InputError as exc:
+            note.update(exc.message)
+            return
+        ref = "reference model: yes" if sp.coolprop else "reference model: no"
+        note.update(f"→ {sp.name} ({sp.id}): M = {sp.M * 1e3:.4g} g/mol, Tc = {sp.Tc:.5g} K, "
+                    f"Pc = {sp.Pc / 1e5:.4g} bar, ω = {sp.omega:.3g}; {ref}")
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        self._fill(event.value)
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        event.stop()
+        results = self.query_one("#species-results", OptionList)
+        if results.option_count:
+            self._pick(results.get_option_at_index(results.highlighted or 0).id)
+
+    def action_to_results(self) -> None:
+        results = self.query_one("#species-results", OptionList)
+        if results.option_count:
+            results.focus()
+            results.highlighted = results.highlighted or 0
+
+    def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
+        event.stop()
+        self._pick(event.option.id)
+
+    def _pick(self, species_id: str) -> None:
+        row = self.query_one("#species", FieldRow)
+        row.set_value(species_id)
+        row.input.focus()
+        self.post_message(self.Picked(species_id))

@@ -1,0 +1,125 @@
+"""One state as typed: its name, the properties given or unknown, and the amount."""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+
+from textual.app import ComposeResult
+from textual.containers import Grid, Horizontal
+from textual.widget import Widget
+from textual.widgets import Button, Checkbox, Static
+
+from balance.worksheet import STATE_KEYS, StateInput
+
+from .field_row import FieldRow
+
+LABELS = {"T": "T", "P": "P", "v": "v", "rho": "ρ", "u": "u", "h": "h", "s": "s", "x": "x",
+          "n": "n", "m": "m", "V": "V"}
+TIPS = {
+    "T": "temperature: 500 K, 20 degC, 68 degF",
+    "P": "pressure: 35 bar, 3 barg (gauge), 150 psig, 10 bara",
+    "v": "molar or specific volume: 1 L/mol, 0.5 m3/kg",
+    "rho": "density: 300 kg/m3, 40 mol/m3",
+    "u": "internal energy: 2800 kJ/kg, 10 kJ/mol",
+    "h": "enthalpy: 2800 kJ/kg",
+    "s": "entropy: 6.5 kJ/(kg K)",
+    "x": "vapour quality 0..1 (reference model)",
+    "n": "amount: 2 mol, or a mass",
+    "m": "mass: 2.5 kg, 1.2 g",
+    "V": "volume: 2 m3, 50 L",
+}
+
+
+class StateForm(Widget):
+    """An initial compartment (``role='initial'``) or the final state.
+
+    Blank means not given; ``?`` marks an unknown. Two properties fix a
+    state; the amount is one of n, m or V (a final state takes only V).
+    """
+
+    DEFAULT_CSS = """
+    StateForm {
+        height: auto;
+        border: round $border-blurred;
+        border-title-color: $text-accent;
+        padding: 0 1;
+        margin-bottom: 1;
+        & Grid { grid-size: 2; grid-gutter: 0 2; height: auto; grid-rows: auto; }
+        & .state-form--top { height: auto; }
+        & .state-form--top FieldRow { width: 1fr; }
+        & .state-form--amount { color: $text-muted; height: 1; margin-top: 0; }
+        & Checkbox { border: none; padding: 0; height: 1; background: transparent; }
+        & Button { width: auto; min-width: 0; margin-left: 1; }
+    }
+    StateForm:focus-within { border: round $border; }
+    StateForm.-empty .state-form--props { display: none; }
+    """
+
+    def __init__(self, state: StateInput, role: str, index: int = 0, *, removable: bool = False,
+                 p_atm: Callable[[], float] | None = None, id: str | None = None) -> None:
+        super().__init__(id=id)
+        self.state = state
+        self.role = role
+        self.index = index
+        self.removable = removable
+        self.p_atm = p_atm
+        self.set_class(role == "initial" and state.empty, "-empty")
+
+    @property
+    def where(self) -> str:
+        return f"initial state {self.index + 1}" if self.role == "initial" else "the final state"
+
+    def on_mount(self) -> None:
+        self.border_title = (f"Initial compartment {self.index + 1}" if self.role == "initial"
+                             else "Final state")
+
+    def compose(self) -> ComposeResult:
+        s = self.state
+        initial = self.role == "initial"
+        with Horizontal(classes="state-form--top"):
+            yield FieldRow("Name", s.name, id="name", label_width=6)
+            if self.removable:
+                yield Button("remove", compact=True, id="remove", tooltip="Remove this compartment (ctrl+g)")
+        if initial:
+            yield Checkbox("evacuated: only a volume", s.empty, id="empty", compact=True)
+        with Grid(classes="state-form--props"):
+            for key in STATE_KEYS:
+                yield FieldRow(LABELS[key], s.props.get(key, ""), kind=key, id=f"prop-{key}",
+                               field_label=f"{key} of {self.where}", allow_unknown=not initial,
+                               p_atm=self.p_atm, label_width=3, tooltip=TIPS[key])
+        yield Static("amount: one of n, m, V" if initial else "amount: from the initial states (V may be given)",
+                     classes="state-form--amount")
+        with Grid():
+            keys = ("n", "m", "V") if initial else ("V",)
+            for key in keys:
+                row = FieldRow(LABELS[key], s.amount.get(key, ""), kind=key, id=f"amount-{key}",
+                               field_label=f"{key} of {self.where}",
+                               allow_unknown=(key in ("n", "m")) if initial else True,
+                               positive=True, label_width=3, tooltip=TIPS[key])
+                if initial and key != "V":
+                    row.add_class("state-form--props")
+                yield row
+
+    def collect(self) -> StateInput:
+        """The state as typed now (blank fields left out)."""
+        empty = False
+        if self.role == "initial":
+            empty = self.query_one("#empty", Checkbox).value
+        props = {}
+        if not empty:
+            for key in STATE_KEYS:
+                text = self.query_one(f"#prop-{key}", FieldRow).value
+                if text.strip():
+                    props[key] = text
+        amount = {}
+        keys = ("n", "m", "V") if self.role == "initial" else ("V",)
+        for key in keys:
+            if empty and key != "V":
+                continue
+            text = self.query_one(f"#amount-{key}", FieldRow).value
+            if text.strip():
+                amount[key] = text
+        return StateInput(name=self.query_one("#name", FieldRow).value, props=props, amount=amount, empty=empty)
+
+    def on_checkbox_changed(self, event: Checkbox.Changed) -> None:
+        self.set_class(event.value, "-empty")

@@ -1,0 +1,73 @@
+"""One work term: name, kind, direction and value (or unknown)."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.containers import Grid, Horizontal
+from textual.widget import Widget
+from textual.widgets import Button, Select
+
+from balance.worksheet import WORK_KINDS, WorkTerm
+
+from .. import fields
+from .field_row import FieldRow
+
+DIRECTIONS = [("done on the system", "on"), ("done by the system", "by")]
+
+
+class WorkTermForm(Widget):
+    """The worksheet writes work in its sign convention; the direction picks the sign."""
+
+    DEFAULT_CSS = """
+    WorkTermForm {
+        height: auto;
+        border: round $border-blurred;
+        border-title-color: $text-accent;
+        padding: 0 1;
+        & Grid { grid-size: 2; grid-columns: 1fr 1fr; grid-gutter: 0 2; height: auto; grid-rows: auto; }
+        & Horizontal { height: 1; }
+        & Button { width: auto; min-width: 0; }
+        & .term--spacer { width: 1fr; }
+        & Select { width: 1fr; }
+    }
+    WorkTermForm:focus-within { border: round $border; }
+    """
+
+    def __init__(self, term: WorkTerm, index: int, convention: str, id: str | None = None) -> None:
+        super().__init__(id=id, classes="term")
+        self.term = term
+        self.index = index
+        self.convention = convention
+
+    @property
+    def positive_direction(self) -> str:
+        return "on" if self.convention == "work-on-system" else "by"
+
+    def on_mount(self) -> None:
+        self.border_title = f"Work term {self.index + 1}"
+
+    def compose(self) -> ComposeResult:
+        negative, magnitude = fields.split_sign(self.term.W)
+        other = "by" if self.positive_direction == "on" else "on"
+        with Grid():
+            yield FieldRow("Name", self.term.name, id="name", label_width=6)
+            with Horizontal():
+                yield Select([(k, k) for k in WORK_KINDS], value=self.term.kind, allow_blank=False,
+                             compact=True, id="kind", tooltip="shaft, stirring, electrical, boundary or other")
+                yield Button("remove", compact=True, id="remove", tooltip="Remove this term (ctrl+g)")
+            yield FieldRow("W", magnitude, kind="energy", id="value", allow_unknown=True, required=True,
+                           field_label=f"W of work term {self.index + 1}", label_width=6,
+                           tooltip="The work, e.g. 15 kJ, or ? to solve for it")
+            yield Select(DIRECTIONS, value=other if negative else self.positive_direction, allow_blank=False,
+                         compact=True, id="direction",
+                         tooltip="Whether the work is done on the system or by it")
+
+    def collect(self) -> WorkTerm:
+        direction = self.query_one("#direction", Select).value
+        magnitude = self.query_one("#value", FieldRow).value
+        kind = self.query_one("#kind", Select).value
+        if magnitude.strip().startswith("-"):
+            W = magnitude
+        else:
+            W = fields.join_sign(direction != self.positive_direction, magnitude)
+        return WorkTerm(name=self.query_one("#name", FieldRow).value, kind=kind, W=W)
