@@ -267,6 +267,8 @@ class Cubic(PropertyModel):
             "u = u_ig(T) + (T a' - a) I;  s = s_ig(T, P) + R ln(1 - b/v) + a' I + R ln Z",
             "cv = cv_ig(T) + T a'' I;  cp = cv - T (∂P/∂T)_v² / (∂P/∂v)_T",
         ]
+        if f.alpha == "one":
+            lines.append("a'' = 0 for van der Waals: cv = cv_ig(T), no departure in cv")
         return lines
 
     def at_TP(self, T: float, P: float) -> Point:
