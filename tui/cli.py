@@ -142,9 +142,32 @@ def cmd_open(args) -> int:
 
 
 def _run_app(session) -> int:
+    _preload_reference(session.worksheet.fluid.model)
     from .app import run  # Textual only for the terminal app
 
     return run(session)
+
+
+def _preload_reference(model: str) -> None:
+    """Import CoolProp before the app starts when the worksheet uses it.
+
+    Its import holds the interpreter for seconds, in any thread; done here
+    the app never freezes for it mid-edit (a worksheet switched to the
+    reference model later still pays it once, with the indicator shown).
+    """
+    from balance.errors import InputError
+    from balance.models import canonical
+
+    try:
+        if canonical(model) != "reference":
+            return
+    except InputError:
+        return
+    print("joulebook: loading the reference equations of state (CoolProp) ...", file=sys.stderr, flush=True)
+    try:
+        import CoolProp.CoolProp  # noqa: F401
+    except ImportError:
+        pass  # the model reports the missing library itself, in the app
 
 
 def _pairs(items, flag: str):
