@@ -4,43 +4,28 @@ from __future__ import annotations
 
 from textual.app import ComposeResult
 from textual.containers import Grid, Horizontal
-from textual.widget import Widget
 from textual.widgets import Button, Select, Static
 
 from balance.worksheet import HeatTerm
 
 from .. import fields
 from .field_row import FieldRow
+from .term_form import TermForm
 
 DIRECTIONS = [("into the system", "in"), ("out of the system", "out")]
 
 
-class HeatTermForm(Widget):
+class HeatTermForm(TermForm):
     """Heat *to* the system is positive in the worksheet; the direction picks the sign."""
 
+    NOUN = "Heat term"
     DEFAULT_CSS = """
-    HeatTermForm {
-        height: auto;
-        border: round $border-blurred;
-        border-title-color: $text-accent;
-        padding: 0 1;
-        & Grid { grid-size: 2; grid-columns: 1fr 1fr; grid-gutter: 0 2; height: auto; grid-rows: auto; }
-        & Horizontal { height: 1; }
-        & Button { width: auto; min-width: 0; }
-        & .term--spacer { width: 1fr; }
-        & .term--label { width: 10; color: $text-muted; }
-        & Select { width: 1fr; }
-    }
-    HeatTermForm:focus-within { border: round $border; }
+    HeatTermForm .term--label { width: 10; color: $text-muted; }
     """
 
     def __init__(self, term: HeatTerm, index: int, id: str | None = None) -> None:
-        super().__init__(id=id, classes="term")
+        super().__init__(index, id=id)
         self.term = term
-        self.index = index
-
-    def on_mount(self) -> None:
-        self.border_title = f"Heat term {self.index + 1}"
 
     def compose(self) -> ComposeResult:
         negative, magnitude = fields.split_sign(self.term.Q)

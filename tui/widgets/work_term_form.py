@@ -4,47 +4,30 @@ from __future__ import annotations
 
 from textual.app import ComposeResult
 from textual.containers import Grid, Horizontal
-from textual.widget import Widget
 from textual.widgets import Button, Select
 
 from balance.worksheet import WORK_KINDS, WorkTerm
 
 from .. import fields
 from .field_row import FieldRow
+from .term_form import TermForm
 
 DIRECTIONS = [("done on the system", "on"), ("done by the system", "by")]
 
 
-class WorkTermForm(Widget):
+class WorkTermForm(TermForm):
     """The worksheet writes work in its sign convention; the direction picks the sign."""
 
-    DEFAULT_CSS = """
-    WorkTermForm {
-        height: auto;
-        border: round $border-blurred;
-        border-title-color: $text-accent;
-        padding: 0 1;
-        & Grid { grid-size: 2; grid-columns: 1fr 1fr; grid-gutter: 0 2; height: auto; grid-rows: auto; }
-        & Horizontal { height: 1; }
-        & Button { width: auto; min-width: 0; }
-        & .term--spacer { width: 1fr; }
-        & Select { width: 1fr; }
-    }
-    WorkTermForm:focus-within { border: round $border; }
-    """
+    NOUN = "Work term"
 
     def __init__(self, term: WorkTerm, index: int, convention: str, id: str | None = None) -> None:
-        super().__init__(id=id, classes="term")
+        super().__init__(index, id=id)
         self.term = term
-        self.index = index
         self.convention = convention
 
     @property
     def positive_direction(self) -> str:
         return "on" if self.convention == "work-on-system" else "by"
-
-    def on_mount(self) -> None:
-        self.border_title = f"Work term {self.index + 1}"
 
     def compose(self) -> ComposeResult:
         negative, magnitude = fields.split_sign(self.term.W)
