@@ -26,6 +26,9 @@ HEADLESS = [
     "balance.worksheet",
     "balance.problem",
     "balance.closed",
+    "balance.adequacy",
+    "balance.paths",
+    "balance.record",
     "tui.cli",
 ]
 

@@ -61,7 +61,7 @@ class Outcome:
     """balance.closed.Result when solved"""
     error: str = ""
     trace: object | None = None
-    """tui.analysis.Trace once the diagrams are computed"""
+    """balance.paths.Trace once the diagrams are computed"""
     seconds: float = 0.0
 
 
@@ -303,7 +303,7 @@ class JoulebookApp(App):
 
     @work(thread=True, exclusive=True, group="advice", exit_on_error=False)
     def _advice_worker(self, ws: Worksheet) -> None:
-        from .analysis import advise
+        from balance.adequacy import advise
 
         self._let_the_indicator_show(ws)
         self.post_message(Advised(ws, advise(ws)))
@@ -416,7 +416,9 @@ class JoulebookApp(App):
 
     @work(thread=True, exclusive=True, group="solve", exit_on_error=False)
     def _solve_worker(self, ws: Worksheet) -> None:
-        from .analysis import solve, trace
+        from balance.paths import trace
+
+        from .analysis import solve
 
         self._let_the_indicator_show(ws)
         t0 = time.perf_counter()

@@ -1,0 +1,69 @@
+"""The model-adequacy advice and the diagram paths, from the domain directly.
+
+The thresholds are the product's own rules (common practice, no source):
+Pr < 0.1 or (Tr > 2.5 and |Z - 1| < 1 %) lets the ideal gas through; a wet
+state needs a model with two phases.
+"""
+
+from __future__ import annotations
+
+import pytest
+
+from balance.adequacy import advise
+from balance.closed import solve_worksheet
+from balance.paths import trace
+from tests.helpers import sample, sheet
+
+
+def fluid(model: str, T: str, P: str, species: str = "N2"):
+    return sheet(f"""
+[fluid]
+species = "{species}"
+model = "{model}"
+[[initial]]
+T = "{T}"
+P = "{P}"
+n = "1 mol"
+""")
+
+
+def test_ideal_gas_refused_at_high_reduced_pressure():
+    advice = advise(fluid("ideal-gas", "300 K", "150 bar"))
+    assert not advice.adequate
+    assert "Peng-Robinson" in advice.recommendation
+    hint = advice.states[0]
+    assert hint.Pr == pytest.approx(150e5 / 33.958e5, rel=1e-3)  # Pc of N2, 33.958 bar (CoolProp 8.0)
+    assert hint.Z_real is not None and hint.Z_real != 1.0
+
+
+def test_ideal_gas_fine_at_low_pressure():
+    assert advise(fluid("ideal-gas", "300 K", "1 bar")).adequate
+
+
+def test_wet_state_with_a_cubic_points_to_the_reference_model():
+    ws = sheet("""
+[fluid]
+species = "H2O"
+model = "peng-robinson"
+[[initial]]
+T = "100 degC"
+v = "1 m3/kg"
+m = "1 kg"
+""")
+    advice = advise(ws)
+    assert not advice.adequate and "reference model" in advice.recommendation
+
+
+def test_rigid_path_keeps_the_volume():
+    r = solve_worksheet(sample("co2-cylinder-hot-store.toml"))
+    t = trace(r)
+    path = [c for c in t.curves if c.style == "path"][0]
+    v0 = r.initial[0].point.v
+    assert all(v == pytest.approx(v0, rel=1e-9) for v in path.v)
+    assert any(c.style == "dome" for c in t.curves)  # the reference model has two phases
+
+
+def test_free_expansion_is_drawn_as_a_jump():
+    t = trace(solve_worksheet(sample("n2-buffer-into-receiver.toml")))
+    assert [c.style for c in t.curves] == ["jump"]
+    assert "no quasi-static path" in t.note
