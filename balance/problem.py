@@ -132,7 +132,7 @@ def prepare(ws: Worksheet) -> Problem:
     if "membrane-rupture" in constraints:
         constraints.add("rigid")
     if not ws.initial:
-        raise InputError("initial", "give the initial state ([[initial]] with two properties and an amount)")
+        raise InputError("initial", "give the initial state: two properties and an amount")
 
     compartments, n_total = _compartments(ws, model, p_atm)
     gases = [c for c in compartments if c.state is not None]

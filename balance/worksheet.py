@@ -158,7 +158,8 @@ class Worksheet:
         out["initial"] = [_state_dict(s) for s in self.initial]
         out["final"] = _state_dict(self.final)
         if self.heat:
-            out["heat"] = [{k: v for k, v in asdict(h).items() if v != ""} for h in self.heat]
+            # Q stays even when blank: dropped, it would come back as the default '?'
+            out["heat"] = [{k: v for k, v in asdict(h).items() if v != "" or k == "Q"} for h in self.heat]
         if self.work:
             out["work"] = [asdict(w) for w in self.work]
         proc = {k: v for k, v in asdict(self.process).items() if v not in ("", ())}

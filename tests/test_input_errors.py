@@ -11,6 +11,8 @@ import subprocess
 import sys
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from balance.closed import solve_worksheet
 from balance.errors import InputError, SpecificationError, TwoPhaseError
@@ -182,3 +184,28 @@ constraints = ["rigid"]
 
     out = run_cli("state", "N2", "--model", "pr", "--given", "T=300 K")
     assert out.returncode == 2 and "exactly two" in out.stderr
+
+
+def test_blank_heat_value_is_not_turned_into_an_unknown():
+    # Regression: a blank Q written out and read back must stay blank (an error
+    # to fix), not become '?' (an unknown the solver would silently solve for).
+    from balance.worksheet import Worksheet
+
+    heated = ws(constraints='"rigid"').with_(heat=(HeatTerm("heater", "", "400 K"),))
+    again = Worksheet.from_toml(heated.to_toml())
+    assert again.heat[0].Q == ""
+    with pytest.raises(InputError) as err:
+        prepare(again)
+    assert err.value.field == "heat 'heater'.Q"
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.text(max_size=30), st.sampled_from(["temperature", "pressure", "volume", "energy", "molar_volume"]))
+def test_any_typed_text_is_a_value_or_a_clear_error(text, dimension):
+    # Fuzz (hypothesis): whatever is typed, parse returns a float or raises InputError naming the field.
+    try:
+        value = parse(text, dimension, "field")
+    except InputError as exc:
+        assert exc.field == "field"
+    else:
+        assert isinstance(value, float)
