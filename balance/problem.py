@@ -216,7 +216,7 @@ def prepare(ws: Worksheet) -> Problem:
             raise InputError("process.n", f"expected a polytropic exponent >= 0; got {ws.process.n!r}")
 
     reversible = "reversible" in constraints
-    heat = tuple(_heat(ws, i, p_atm, constraints, first) for i in range(len(ws.heat)))
+    heat = tuple(_heat(ws, i, constraints, first) for i in range(len(ws.heat)))
     if "adiabatic" in constraints and heat:
         raise InputError("heat", f"the process is adiabatic but heat term '{ws.heat[0].name}' is given: remove one")
     if reversible:
@@ -314,7 +314,7 @@ def _final_volume(ws: Worksheet, p_atm: float) -> float | None:
     return V
 
 
-def _heat(ws: Worksheet, i: int, p_atm: float, constraints: set, first) -> Heat:
+def _heat(ws: Worksheet, i: int, constraints: set, first) -> Heat:
     h = ws.heat[i]
     where = f"heat '{h.name}'"
     Q = None if h.Q.strip() == UNKNOWN else parse(h.Q, "energy", f"{where}.Q")

@@ -17,3 +17,16 @@ def sheet(text: str) -> Worksheet:
 
 def sample(name: str) -> Worksheet:
     return Worksheet.load(SAMPLES / name)
+
+
+#: Water at 100 degC and 1 m3/kg with Peng-Robinson: between saturated liquid and
+#: vapour (IAPWS-IF97 steam tables, from memory: vg = 1.673 m3/kg), so a wet state.
+WET_WATER_PR = """
+[fluid]
+species = "H2O"
+model = "peng-robinson"
+[[initial]]
+T = "100 degC"
+v = "1 m3/kg"
+m = "1 kg"
+"""

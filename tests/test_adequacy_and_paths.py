@@ -12,7 +12,7 @@ import pytest
 from balance.adequacy import advise
 from balance.closed import solve_worksheet
 from balance.paths import trace
-from tests.helpers import sample, sheet
+from tests.helpers import WET_WATER_PR, sample, sheet
 
 
 def fluid(model: str, T: str, P: str, species: str = "N2"):
@@ -41,15 +41,7 @@ def test_ideal_gas_fine_at_low_pressure():
 
 
 def test_wet_state_with_a_cubic_points_to_the_reference_model():
-    ws = sheet("""
-[fluid]
-species = "H2O"
-model = "peng-robinson"
-[[initial]]
-T = "100 degC"
-v = "1 m3/kg"
-m = "1 kg"
-""")
+    ws = sheet(WET_WATER_PR)
     advice = advise(ws)
     assert not advice.adequate and "reference model" in advice.recommendation
 

@@ -19,7 +19,7 @@ from balance.errors import InputError, SpecificationError, TwoPhaseError
 from balance.problem import prepare
 from balance.units import parse
 from balance.worksheet import HeatTerm
-from tests.helpers import ROOT, sheet
+from tests.helpers import ROOT, WET_WATER_PR, sheet
 
 BASE = """
 [fluid]
@@ -115,16 +115,7 @@ def test_over_specified_equations():
 
 
 def test_two_phase_state_with_a_cubic_is_refused_with_advice():
-    # Water at 100 degC and 1 m3/kg lies between saturated liquid and vapour
-    # (IAPWS-IF97 steam tables, from memory: vg = 1.673 m3/kg).
-    text = """
-[fluid]
-species = "H2O"
-model = "peng-robinson"
-[[initial]]
-T = "100 degC"
-v = "1 m3/kg"
-m = "1 kg"
+    text = WET_WATER_PR + """
 [final]
 T = "?"
 [process]
