@@ -215,6 +215,11 @@ def prepare(ws: Worksheet) -> Problem:
         if n_poly < 0:
             raise InputError("process.n", f"expected a polytropic exponent >= 0; got {ws.process.n!r}")
 
+    for kind, terms in (("heat", ws.heat), ("work", ws.work)):
+        names = [t.name for t in terms]
+        twice = sorted({n for n in names if names.count(n) > 1})
+        if twice:
+            raise InputError(kind, f"two {kind} terms are named {twice[0]!r}: give each its own name")
     reversible = "reversible" in constraints
     heat = tuple(_heat(ws, i, constraints, first) for i in range(len(ws.heat)))
     if "adiabatic" in constraints and heat:

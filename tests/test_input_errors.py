@@ -200,3 +200,10 @@ def test_any_typed_text_is_a_value_or_a_clear_error(text, dimension):
         assert exc.field == "field"
     else:
         assert isinstance(value, float)
+
+
+def test_terms_need_distinct_names():
+    # Regression: two heat terms with one name shared a single unknown.
+    twins = ws(constraints='"rigid"').with_(heat=(HeatTerm("jacket", "?", "400 K"), HeatTerm("jacket", "5 kJ", "400 K")))
+    with pytest.raises(InputError, match="two heat terms are named 'jacket'"):
+        prepare(twins)
