@@ -77,6 +77,9 @@ def advise(ws: Worksheet) -> Advice:
     from .state import read_specs
 
     f = ws.fluid
+    if not f.species.strip() or not f.model.strip():
+        missing = "a species" if not f.species.strip() else "a property model"
+        return Advice(f.model, problems=(f"choose {missing} to see how well the model fits",), adequate=False)
     try:
         species, params = with_overrides(lookup(f.species, "fluid.species"), dict(f.overrides))
         name = canonical(f.model)

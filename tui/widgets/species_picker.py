@@ -31,7 +31,7 @@ def matches(query: str):
             exact = any(q == k for k in keys)
             out.append((0 if exact else 1, sp))
     out.sort(key=lambda t: t[0])
-    return [sp for _, sp in out][:MAX_SHOWN]
+    return [sp for _, sp in out]
 
 
 class SpeciesPicker(Widget):
@@ -81,11 +81,13 @@ class SpeciesPicker(Widget):
 
         results = self.query_one("#species-results", OptionList)
         found = matches(query)
-        results.set_options([Option(f"{sp.id:<8} {sp.name}", id=sp.id) for sp in found])
+        shown = found[:MAX_SHOWN]
+        results.set_options([Option(f"{sp.id:<8} {sp.name}", id=sp.id) for sp in shown])
         results.display = bool(found)
         note = self.query_one(".species-picker--found", Static)
         if not query.strip():
-            note.update(f"{len(found)} species; type to narrow, ↓ to choose")
+            first = f" (first {len(shown)} listed)" if len(shown) < len(found) else ""
+            note.update(f"{len(found)} species{first}; type to narrow, ↓ to choose")
             return
         try:
             sp = lookup(query, "species")
