@@ -141,7 +141,7 @@ def solve(p: Problem) -> Result:
         raise SpecificationError(dof.message)
     solver = _Solver(p)
     final, lin, method = solver.run()
-    return _result(p, final, lin, solver.evaluations, method)
+    return _result(solver, final, lin, method)
 
 
 # -- the equations ---------------------------------------------------------------
@@ -266,7 +266,7 @@ class _Solver:
 
         theta, jumps, skipped = scan_root(f, grid, start=start, skip=(InputError, ValueError, ArithmeticError))
         if theta is None:
-            if jumps or isinstance(skipped, TwoPhaseError):
+            if jumps or any(isinstance(exc, TwoPhaseError) for exc in skipped):
                 raise TwoPhaseError(
                     "final",
                     f"the balance puts the final state inside the two-phase region of {model.label}; "
@@ -284,7 +284,6 @@ class _Solver:
 
     def _two(self):
         first = self.p.gases[0].state.point
-        model = self.p.model
 
         def f(z):
             final = self.state({"T": math.exp(z[0]), "v": math.exp(z[1])})
@@ -315,8 +314,9 @@ def _best_rows(A: np.ndarray, k: int):
 
 
 # -- result, check and explanation -------------------------------------------------
-def _result(p: Problem, final_point: Point, lin: dict, evaluations: int, method: str) -> Result:
-    s = _Solver(p)
+def _result(s: _Solver, final_point: Point, lin: dict, method: str) -> Result:
+    p = s.p
+    evaluations = s.evaluations
     n = s.amount(lin)
     initial = tuple(
         c.state if p.n is not None else State(c.state.name, c.state.model, c.state.point, n)

@@ -92,24 +92,26 @@ def scan_root(f, grid, start: float | None = None, scale: float = 1.0, skip=(Val
     (f is discontinuous across a two-phase region), not a root: it is
     counted and the scan goes on.
 
-    Returns (root or None, number of jumps seen, last skipped exception).
+    Returns (root or None, number of jumps seen, the skipped exceptions in
+    the order they were raised).
     """
     n = len(grid)
     values: dict[int, float] = {}
-    skipped = None
+    skipped: list[Exception] = []
 
     def value(i: int) -> float:
-        nonlocal skipped
         if i not in values:
             try:
                 values[i] = float(f(grid[i]))
             except skip as exc:
-                skipped = exc
+                skipped.append(exc)
                 values[i] = math.nan
         return values[i]
 
     def try_interval(i: int):
         fa, fb = value(i), value(i + 1)
+        if fa == 0.0:
+            return float(grid[i])
         if not (math.isfinite(fa) and math.isfinite(fb)) or fa * fb > 0:
             return None
         x = brent(f, float(grid[i]), float(grid[i + 1]), rtol=rtol, fa=fa, fb=fb)

@@ -21,7 +21,7 @@ from importlib import resources
 import numpy as np
 
 from .errors import InputError
-from .units import P_REF, R, T_REF
+from .units import R, T_REF
 
 DATA_FILE = "species.toml"
 
@@ -315,5 +315,4 @@ __all__ = [
     "lookup",
     "with_overrides",
     "data_hash",
-    "P_REF",
 ]

@@ -26,6 +26,7 @@ import pytest
 
 from balance.record import Record, export_markdown
 from balance.record.format import parse
+from balance.record.replay import _scales  # the per-unit scales replay judges by
 from tests.test_record_support import Clock, new_record, sample_names
 
 GOLDEN = Path(__file__).resolve().parent / "golden"
@@ -39,18 +40,6 @@ _NUMBER = re.compile(r"(?<![\w.])-?(?:\d+\.\d*(?:[eE][-+]?\d+)?|\d+[eE][-+]?\d+)
 def _text_line(line: str) -> str:
     line = _HEX.sub("<sha256>", line)
     return _NUMBER.sub(lambda m: "≈0" if abs(float(m.group(0))) < 1e-6 else m.group(0), line)
-
-
-def _scales(value, out: dict) -> dict:
-    if isinstance(value, dict):
-        if set(value) == {"value", "unit"} and isinstance(value["value"], float):
-            out[value["unit"]] = max(out.get(value["unit"], 0.0), abs(value["value"]))
-        for v in value.values():
-            _scales(v, out)
-    elif isinstance(value, list):
-        for v in value:
-            _scales(v, out)
-    return out
 
 
 def _data_lines(value, path: str, scales: dict, out: list) -> list:

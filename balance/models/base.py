@@ -20,7 +20,7 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from ..errors import InputError, TwoPhaseError
-from ..rootfind import brent
+from ..rootfind import brent, scan_root
 from ..species import Species
 
 #: The intensive properties a state may be fixed by.
@@ -263,38 +263,17 @@ def bracketed_root(f, grid, scale: float = 1.0, rtol: float = 1e-10):
     a two-phase error rather than returned. Of several roots, the first one
     on the grid that is a true zero is returned.
     """
-    values = []
-    two_phase: TwoPhaseError | None = None
-    for x in grid:
-        try:
-            values.append(float(f(x)))
-        except TwoPhaseError as exc:
-            two_phase = exc
-            values.append(math.nan)
-        except (InputError, ValueError, ZeroDivisionError, FloatingPointError):
-            values.append(math.nan)
-    jumps = 0
-    for i in range(len(grid) - 1):
-        fa, fb = values[i], values[i + 1]
-        if not (math.isfinite(fa) and math.isfinite(fb)):
-            if math.isfinite(fa) and fa == 0.0:
-                return float(grid[i])
-            continue
-        if fa == 0.0:
-            return float(grid[i])
-        if fa * fb > 0:
-            continue
-        # rootfind.brent stops at 2 rtol |x|, scipy's brentq at rtol |x| / 2:
-        # rtol / 4 keeps the tolerance this function has always had
-        x = brent(f, float(grid[i]), float(grid[i + 1]), xtol=1e-14, rtol=rtol / 4, maxiter=200,
-                  fa=fa, fb=fb)
-        if abs(f(x)) <= 1e-7 * scale:
-            return float(x)
-        jumps += 1
+    # rootfind.brent stops at 2 rtol |x|, scipy's brentq at rtol |x| / 2:
+    # rtol / 4 keeps the tolerance this function has always had
+    root, jumps, skipped = scan_root(f, grid, scale=scale, rtol=rtol / 4,
+                                     skip=(InputError, ValueError, ZeroDivisionError, FloatingPointError))
+    if root is not None:
+        return root
     if jumps:
         raise TwoPhaseError("state", "the requested state lies inside the two-phase region of this model")
-    if two_phase is not None:
-        raise two_phase
+    two_phase = [exc for exc in skipped if isinstance(exc, TwoPhaseError)]
+    if two_phase:
+        raise two_phase[-1]
     return None
 
 

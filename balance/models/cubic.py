@@ -146,7 +146,7 @@ class Cubic(PropertyModel):
             self.Tc_eos = 8.0 * self.a_c / (27.0 * R * self.b)
         else:
             self.Tc_eos = sp.Tc if not (self.a_given or self.b_given) else _critical_T(self)
-        self.vc_eos = form.Zc * R * sp.Tc / sp.Pc * (self.b / (form.omega_b * R * sp.Tc / sp.Pc))
+        self.vc_eos = form.Zc / form.omega_b * self.b  # = Zc R Tc/Pc scaled by a given b
 
     # -- a(T) and its temperature derivatives ------------------------------
     def a_T(self, T):
