@@ -159,6 +159,26 @@ async def test_purpose_boundary_and_process_fields_reject_bad_text(tmp_path, aut
         assert app.is_running
 
 
+async def test_keys_typed_ahead_of_the_screen_land_in_the_next_field(tmp_path, author, draft_only):
+    """A burst of keys (a fast typist, a slow SSH link): after Enter, the rest goes to the next field.
+
+    The keys are queued all at once, before the app has handled any, as a
+    terminal delivers them when the link stalls (common practice, no source).
+    """
+    from textual import events
+
+    app = app_on(tmp_path, "purpose")
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        await fill(pilot, in_row("title"), "")
+        for key in [*"V-7", "enter", *"J-12", "enter", *"dP?"]:
+            app.post_message(events.Key(key, key if len(key) == 1 else None))
+        await settle(pilot)
+        heading = app.session.worksheet.heading
+        assert (heading.title, heading.job, heading.purpose) == ("V-7", "J-12", "dP?")
+        assert in_row("purpose")(app.focused)
+
+
 async def test_an_unknown_species_is_named_and_the_step_marked_invalid(tmp_path, author, draft_only):
     app = app_on(tmp_path, "fluid")
     async with app.run_test(size=SIZE) as pilot:

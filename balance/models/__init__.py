@@ -13,14 +13,20 @@ reference                   ref, helmholtz                multiparameter EOS (Co
 ==========================  ============================  =========================
 
 The reference model is imported only when asked for (CoolProp's import
-costs over a second).
+costs over a second). Importing this package is light (no numpy): the
+names and :func:`canonical` serve the terminal app before anything heavy
+is loaded; the models load in :func:`make_model`.
 """
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from ..errors import InputError
-from ..species import Species
-from .base import Point, PropertyModel
+
+if TYPE_CHECKING:
+    from ..species import Species
+    from .base import Point, PropertyModel
 
 MODEL_NAMES = (
     "ideal-gas",
@@ -91,6 +97,14 @@ def make_model(name: str, species: Species, params: dict[str, float] | None = No
     from .reference import Reference
 
     return Reference(species)
+
+
+def __getattr__(name: str):
+    if name in ("Point", "PropertyModel"):  # the interface, loaded with numpy on first use
+        from . import base
+
+        return getattr(base, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
 _CUBICS = ("van-der-waals", "redlich-kwong", "soave-redlich-kwong", "peng-robinson")
