@@ -171,11 +171,11 @@ async def test_keys_typed_ahead_of_the_screen_land_in_the_next_field(tmp_path, a
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
         await fill(pilot, in_row("title"), "")
-        for key in [*"V-7", "enter", *"J-12", "enter", *"dP?"]:
+        for key in [*"V-7", "enter", *"J-12", "enter", *" (rig)"]:
             app.post_message(events.Key(key, key if len(key) == 1 else None))
         await settle(pilot)
         heading = app.session.worksheet.heading
-        assert (heading.title, heading.job, heading.purpose) == ("V-7", "J-12", "dP?")
+        assert (heading.title, heading.job, heading.purpose) == ("V-7", "J-12", "input checks (rig)")
         assert in_row("purpose")(app.focused)
 
 

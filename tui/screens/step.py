@@ -10,6 +10,7 @@ compute thermodynamics and never touch files.
 from __future__ import annotations
 
 from textual.app import ComposeResult
+from textual.actions import SkipAction
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import Screen
@@ -40,6 +41,8 @@ class StepScreen(Screen):
     BINDINGS = [
         Binding("escape", "focus_steps", "Steps", id="step.steps", show=False,
                 tooltip="Move to the list of steps (arrows and Enter, or a digit, to open one)"),
+        Binding("enter", "next_field", "Next field", id="form.next-field", show=False, priority=True,
+                tooltip="From a field, on to the next field"),
     ]
 
     def __init__(self) -> None:
@@ -84,17 +87,19 @@ class StepScreen(Screen):
     def on_input_changed(self, event) -> None:
         self.changed()
 
-    def on_input_submitted(self, event) -> None:
-        # Enter moves on to the next text field, as on a paper form (it never ticks a box
-        # or picks a choice on the way)
-        event.stop()
+    def action_next_field(self) -> None:
+        """Enter in a form field: on to the next text field, as on a paper form.
+
+        It never ticks a box or picks a choice on the way. A priority binding, so
+        the focus moves as the key is read: keys typed ahead of the screen (a fast
+        typist, a slow SSH link) go to the next field, not this one.
+        """
+        field = self.focused
+        if not (isinstance(field, Input) and isinstance(field.parent, FieldRow) and field.parent.enter_moves_on):
+            raise SkipAction()  # Enter does what it does elsewhere (search, choose, press)
         chain = self.focus_chain
-        here = chain.index(event.input) if event.input in chain else -1
-        following = [w for w in chain[here + 1:] if isinstance(w, (Input, TextArea))]
-        if following:
-            following[0].focus()
-        else:
-            self.focus_next()
+        following = [w for w in chain[chain.index(field) + 1:] if isinstance(w, (Input, TextArea))]
+        self.set_focus(following[0] if following else chain[(chain.index(field) + 1) % len(chain)])
 
     def on_text_area_changed(self, event) -> None:
         self.changed()

@@ -11,31 +11,27 @@ from __future__ import annotations
 from collections.abc import Callable
 
 from textual.app import ComposeResult
+from textual.content import Content
 from textual.widget import Widget
-from textual.widgets import Input, Label, Static
+from textual.widgets import Input, Static
 
 from .. import fields
 from ..validators import UnitValidator
 
 
 class FieldRow(Widget):
-    """``label [ input ]`` and, when the text is not acceptable, why."""
+    """``label [ input ]`` and, when the text is not acceptable, why (on the line below)."""
 
     DEFAULT_CSS = """
     FieldRow {
         height: auto;
         width: 1fr;
         min-width: 20;
-        layout: grid;
-        grid-size: 2;
-        grid-columns: 12 1fr;
-        grid-rows: auto;
-        & .field-row--label { color: $text-muted; }
-        & Input { background: $boost; }
+        color: $text-muted;
+        & Input { margin-left: 12; background: $boost; }
         & Input:focus { background: $primary 20%; }
-        & .field-row--message { column-span: 2; color: $text-error; height: auto; display: none; }
-        &.-invalid .field-row--message { display: block; }
-        &.-invalid .field-row--label { color: $text-error; }
+        & .field-row--message { color: $text-error; height: auto; }
+        &.-invalid { color: $text-error; }
     }
     """
 
@@ -56,6 +52,7 @@ class FieldRow(Widget):
         classes: str | None = None,
         disabled: bool = False,
         tooltip: str | None = None,
+        enter_moves_on: bool = True,
     ) -> None:
         super().__init__(id=id, classes=classes, disabled=disabled)
         self.label = label
@@ -73,13 +70,18 @@ class FieldRow(Widget):
         self._validators = validators
         self._placeholder = placeholder or ""
         self._tooltip = tooltip
+        self.enter_moves_on = enter_moves_on
+        """Enter goes on to the next field (the step's rule); False: Enter submits the input"""
+
+    def render(self) -> Content:
+        # the label, drawn by the row itself in the input's left margin: one widget fewer per field
+        return Content(self.label)
 
     def compose(self) -> ComposeResult:
-        yield Label(self.label, classes="field-row--label")
         # validators are attached once the unit registry is loaded (revalidate): checking
         # while the first screen is built would import pint and the models on the UI thread
         inp = Input(self._initial, placeholder=self._placeholder, compact=True,
-                    validate_on=["changed", "blur", "submitted"], select_on_focus=False)
+                    validate_on=["changed", "blur"], select_on_focus=False)
         if self._tooltip:
             inp.tooltip = self._tooltip
         yield inp
@@ -87,7 +89,7 @@ class FieldRow(Widget):
 
     def on_mount(self) -> None:
         if self._label_width:
-            self.styles.grid_columns = f"{self._label_width} 1fr"
+            self.input.styles.margin = (0, 0, 0, self._label_width)
         if getattr(self.app, "units_ready", True):
             self.revalidate()
 
@@ -140,7 +142,4 @@ class FieldRow(Widget):
         self._show(event.validation_result)
 
     def on_input_blurred(self, event: Input.Blurred) -> None:
-        self._show(event.validation_result)
-
-    def on_input_submitted(self, event: Input.Submitted) -> None:
         self._show(event.validation_result)

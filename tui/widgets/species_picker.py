@@ -62,7 +62,7 @@ class SpeciesPicker(Widget):
         self._initial = value
 
     def compose(self) -> ComposeResult:
-        yield FieldRow("Species", self._initial, id="species",
+        yield FieldRow("Species", self._initial, id="species", enter_moves_on=False,
                        placeholder="type to search: N2, nitrogen, methane ...",
                        tooltip="Species id, formula, name or alias; Enter picks the first match")
         yield OptionList(id="species-results")
