@@ -3,17 +3,24 @@
 Target: ratio <= 1.5. Each run is a fresh process that imports what it
 needs, builds the app, runs it headless (``App.run_test``) and stops the
 clock when the first screen has been painted (the first refresh after
-mount), then exits. Prints the best of N for each, and the ratio measured in
-this one run. Not a test: machines here are shared and noisy.
+mount), then exits. The cases take turns for N rounds; prints the best and
+the median of each, and the ratios measured in this one run. Not a test:
+machines here are shared and noisy.
 
-    python benchmarks/bench_tui_startup.py [N]
+    python benchmarks/bench_tui_startup.py [N]     (N rounds, default 9)
 
 joulebook is measured opening a new worksheet (``joulebook``) and, for
-information, an existing record (``joulebook open RECORD``).
+information, an existing record (``joulebook open RECORD``), each built by
+``tui.cli.app_for`` as the command builds it. Both sides run as installed:
+the bytecode of ``balance`` and ``tui`` is compiled first (pip does that on
+install; Textual's is), whatever PYTHONDONTWRITEBYTECODE says.
 """
 
 from __future__ import annotations
 
+import compileall
+import os
+import statistics
 import subprocess
 import sys
 import tempfile
@@ -57,47 +64,58 @@ class Bare(App):
 app = Bare()
 """
 
+# what `joulebook` and `joulebook open RECORD` do up to App.run (tui.cli.cmd_open)
 JOULEBOOK_NEW = """
 import os, tempfile
-from tui.session import Session
-from tui.app import JoulebookApp
-app = JoulebookApp(Session.new(directory=tempfile.mkdtemp()))
+os.chdir(tempfile.mkdtemp())
+from tui.session import open_target
+from tui.cli import app_for
+app = app_for(open_target(None))
 """
 
 JOULEBOOK_OPEN = """
 from tui.session import open_target
-from tui.app import JoulebookApp
-app = JoulebookApp(open_target(sys.argv[1], must_exist=True))
+from tui.cli import app_for
+app = app_for(open_target(sys.argv[1], must_exist=True))
 """
 
 
 def once(build: str, *args: str) -> float:
     code = HARNESS.format(build=textwrap.indent(textwrap.dedent(build), "").strip())
+    env = {**os.environ, "PYTHONPATH": str(ROOT)}
+    env.pop("PYTHONDONTWRITEBYTECODE", None)
     out = subprocess.run([sys.executable, "-c", code, *args], capture_output=True, text=True, cwd=ROOT,
-                         check=True)
+                         check=True, env=env)
     return float(out.stdout.strip().splitlines()[-1])
 
 
-def best_of(build: str, n: int, *args: str) -> float:
-    return min(once(build, *args) for _ in range(n))
-
-
 def main() -> None:
-    n = int(sys.argv[1]) if len(sys.argv) > 1 else 5
+    n = int(sys.argv[1]) if len(sys.argv) > 1 else 9
     folder = Path(tempfile.mkdtemp(prefix="jb-bench-"))
     record = folder / "bench.jbk"
     from balance.worksheet import Worksheet
     from tui.session import Session
 
     Session.from_worksheet(Worksheet.load(ROOT / "samples" / "n2-buffer-into-receiver.toml"), record)
-    bare = best_of(BARE, n)
-    new = best_of(JOULEBOOK_NEW, n)
-    opened = best_of(JOULEBOOK_OPEN, n, str(record))
-    print(f"bare Textual app, first screen      : {bare * 1e3:8.1f} ms (best of {n})")
-    print(f"joulebook, new worksheet            : {new * 1e3:8.1f} ms (best of {n})")
-    print(f"joulebook open RECORD (demo record) : {opened * 1e3:8.1f} ms (best of {n})")
-    print(f"ratio new worksheet / bare          : {new / bare:8.2f}x  (target <= 1.5x)")
-    print(f"ratio open record / bare            : {opened / bare:8.2f}x  (for information)")
+    # as installed: pip compiles the bytecode at install time, Textual's included
+    for package in ("balance", "tui"):
+        compileall.compile_dir(ROOT / package, quiet=1)
+    cases = {
+        "bare Textual app": (BARE, ()),
+        "joulebook, new worksheet": (JOULEBOOK_NEW, ()),
+        "joulebook open RECORD": (JOULEBOOK_OPEN, (str(record),)),
+    }
+    times: dict[str, list[float]] = {name: [] for name in cases}
+    for _ in range(n):  # interleaved, so that a slow spell of a shared machine hits every case
+        for name, (build, args) in cases.items():
+            times[name].append(once(build, *args))
+    for name, seen in times.items():
+        print(f"{name:26s}: best {min(seen) * 1e3:7.1f} ms, median {statistics.median(seen) * 1e3:7.1f} ms (of {n})")
+    bare = times["bare Textual app"]
+    for name, label in (("joulebook, new worksheet", "target <= 1.5x"), ("joulebook open RECORD", "for information")):
+        best = min(times[name]) / min(bare)
+        median = statistics.median(times[name]) / statistics.median(bare)
+        print(f"ratio {name.removeprefix('joulebook').strip(', ')} / bare: best {best:5.2f}x, median {median:5.2f}x ({label})")
 
 
 if __name__ == "__main__":

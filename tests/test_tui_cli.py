@@ -61,3 +61,35 @@ def test_demo_opens_the_bundled_sample_and_print_keeps_the_old_output(opened, ca
     assert cli.main(["demo", "--print", "--units", "si"]) == 0
     out = capsys.readouterr().out
     assert "N2 buffer vessel V-101" in out and "Energy balance" in out
+
+
+def test_the_first_word_is_told_from_a_file_without_building_the_parser(opened):
+    """`joulebook` skips building its parser on the way to the app; the short list it reads
+    instead must name exactly the subcommands the parser has."""
+    import argparse
+
+    parser = cli.build_parser()
+    (sub,) = [a for a in parser._actions if isinstance(a, argparse._SubParsersAction)]
+    assert tuple(sub.choices) == cli.COMMANDS
+
+
+def test_app_for_pauses_the_collector_until_the_first_screen(monkeypatch, tmp_path, author):
+    """Start-up runs with the garbage collector paused; the app resumes it once painted."""
+    import asyncio
+    import gc
+
+    from tui.session import Session
+
+    monkeypatch.setattr(gc, "freeze", lambda: None)  # keep the test process's heap as it is
+    app = cli.app_for(Session.new(tmp_path / "gc.jbk"))
+    try:
+        assert not gc.isenabled()
+
+        async def show() -> None:
+            async with app.run_test(size=(80, 24)) as pilot:
+                await pilot.pause()
+                assert gc.isenabled()
+
+        asyncio.run(show())
+    finally:
+        gc.enable()

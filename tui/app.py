@@ -16,6 +16,7 @@ pint and the models load in a warm-up worker after it.
 
 from __future__ import annotations
 
+import gc
 import sys
 import time
 from dataclasses import dataclass, replace
@@ -143,9 +144,10 @@ class JoulebookApp(App):
     dirty: reactive[tuple] = reactive(tuple, init=False)
     busy = reactive("", init=False)
 
-    def __init__(self, session: Session, *, warm: bool = True) -> None:
+    def __init__(self, session: Session, *, warm: bool = True, gc_paused: bool = False) -> None:
         super().__init__()
         self.session = session
+        self._gc_paused = gc_paused
         self.units_ready = False
         self._warm_first = warm
         self._version = 0
@@ -158,18 +160,27 @@ class JoulebookApp(App):
             self.theme = session.extras["theme"]
 
     # -- start ---------------------------------------------------------------
-    def on_mount(self) -> None:
+    def get_default_screen(self):
+        # The first step is the bottom of the stack (no empty screen beneath it to build
+        # and restyle first); steps replace each other there with switch_screen, which
+        # pops a result callback from the screen it replaces, as any pushed screen has
+        # (Textual 8.2). Give this one the same.
         self._visit(self.session.step)
-        # steps replace each other above the (empty) default screen
-        self.push_screen(self.make_screen(self.session.step))
+        screen = self.make_screen(self.session.step)
+        screen._push_result_callback(self, None)
+        return screen
+
+    def on_mount(self) -> None:
         for note in self.session.notes:
             self.notify(note, timeout=8)
-        if self._warm_first:
-            # after the first screen is painted: the imports compete with it for the GIL
-            self.set_timer(0.15, self._start_warm_up)
+        self.screen.call_after_refresh(self._first_screen_shown)
 
-    def _start_warm_up(self) -> None:
-        self.run_worker(self._warm_up, thread=True, group="warm", exit_on_error=False)
+    def _first_screen_shown(self) -> None:
+        if self._gc_paused:
+            gc.enable()  # paused for the start-up by tui.cli.app_for
+        if self._warm_first:
+            # only now: the imports would compete with the first screen for the GIL
+            self.run_worker(self._warm_up, thread=True, group="warm", exit_on_error=False)
 
     def _warm_up(self) -> None:
         from balance import problem  # noqa: F401  numpy, scipy, the models
@@ -517,12 +528,12 @@ class JoulebookApp(App):
             yield from extra()
 
 
-def run(session: Session) -> int:
-    """Run the app on a session; 0 when it closes normally."""
+def run(app: JoulebookApp) -> int:
+    """Run the app; 0 when it closes normally."""
     try:
-        JoulebookApp(session).run()
+        app.run()
     finally:
-        session.flush()
+        app.session.flush()
     return 0
 
 

@@ -10,6 +10,7 @@ compute thermodynamics and never touch files.
 from __future__ import annotations
 
 from textual.app import ComposeResult
+from textual import events
 from textual.actions import SkipAction
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
@@ -67,6 +68,13 @@ class StepScreen(Screen):
 
     def compose_form(self) -> ComposeResult:
         yield from ()
+
+    def on_screen_resume(self, event: events.ScreenResume) -> None:
+        # Runs before Textual's own handler. The first resume comes as the step opens: its
+        # widgets are styled as they mount, and restyling the whole tree again would cost
+        # about a fifth of the time to show it. Later resumes (back from a dialog) restyle.
+        if self.stack_updates == 0:
+            event.refresh_styles = False
 
     def on_mount(self) -> None:
         self.call_after_refresh(self._arm)

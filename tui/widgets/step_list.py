@@ -59,7 +59,7 @@ class StepList(OptionList):
 
     def on_mount(self) -> None:
         self.highlighted = [s.id for s in STEPS].index(self.current)
-        self.watch(self.app, "statuses", self.show_statuses)
+        self.watch(self.app, "statuses", self.show_statuses, init=False)  # built with them
 
     def show_statuses(self, statuses: dict[str, str]) -> None:
         self._statuses = dict(statuses)
