@@ -37,7 +37,7 @@ class StepScreen(Screen):
     HELP = ""
     """Markdown: what the step is for, and the common mistakes."""
 
-    AUTO_FOCUS = "#form Input, #form TextArea, #form OptionList, #form Button, #form SelectionList"
+    AUTO_FOCUS = "#form Input, #form TextArea, #form LineList, #form OptionList, #form Button, #form SelectionList"
 
     BINDINGS = [
         Binding("escape", "focus_steps", "Steps", id="step.steps", show=False,

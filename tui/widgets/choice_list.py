@@ -3,27 +3,25 @@
 from __future__ import annotations
 
 from textual.binding import Binding
+from textual.content import Content
 from textual.message import Message
-from textual.widgets import OptionList
-from textual.widgets.option_list import Option
+
+from .line_list import LineList
 
 
-class ChoiceList(OptionList):
-    """Up/down to move, Enter or space to choose; disabled choices are greyed."""
+class ChoiceList(LineList):
+    """Up/down to move, Enter or space to choose; disabled choices are greyed and skipped."""
 
     DEFAULT_CSS = """
     ChoiceList {
-        height: auto;
         max-height: 10;
-        border: none;
-        padding: 0;
+        padding: 0 1;
         background: $boost;
-        & > .option-list--option { padding: 0 1; }
     }
-    ChoiceList:focus { background: $primary 15%; border: none; }
+    ChoiceList:focus { background: $primary 15%; }
     """
 
-    BINDINGS = [Binding("space", "select", "Choose", show=False, id="choice.choose",
+    BINDINGS = [Binding("space", "choose", "Choose", show=False, id="choice.choose",
                         tooltip="Choose the highlighted option")]
 
     class Chosen(Message):
@@ -39,36 +37,33 @@ class ChoiceList(OptionList):
     def __init__(self, choices: list[tuple[str, str]], value: str = "", *, disabled_values=(),
                  id: str | None = None) -> None:
         """``choices``: (value, label) pairs."""
+        super().__init__(id=id)
         self.choices = list(choices)
         self.value = value
         self.disabled_values = set(disabled_values)
-        super().__init__(*self._options(), id=id)
-
-    def _options(self) -> list[Option]:
-        return [
-            Option(f"{'●' if v == self.value else '○'} {label}", id=v, disabled=v in self.disabled_values)
-            for v, label in self.choices
-        ]
-
-    def on_mount(self) -> None:
         ids = [v for v, _ in self.choices]
-        if self.value in ids:
-            self.highlighted = ids.index(self.value)
+        if value in ids:
+            self.set_reactive(ChoiceList.cursor, ids.index(value))
+
+    def line_count(self) -> int:
+        return len(self.choices)
+
+    def line(self, index: int) -> Content:
+        v, label = self.choices[index]
+        return Content(f"{'●' if v == self.value else '○'} {label}")
+
+    def enabled(self, index: int) -> bool:
+        return self.choices[index][0] not in self.disabled_values
 
     def set_value(self, value: str) -> None:
         self.value = value
-        for i, (v, label) in enumerate(self.choices):
-            self.replace_option_prompt_at_index(i, f"{'●' if v == value else '○'} {label}")
+        self.redraw()
 
     def set_disabled(self, values) -> None:
         self.disabled_values = set(values)
-        for i, (v, _) in enumerate(self.choices):
-            if v in self.disabled_values:
-                self.disable_option_at_index(i)
-            else:
-                self.enable_option_at_index(i)
+        self.redraw()
 
-    def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
-        event.stop()
-        self.set_value(event.option.id)
-        self.post_message(self.Chosen(self, event.option.id))
+    def chosen(self, index: int) -> None:
+        value = self.choices[index][0]
+        self.set_value(value)
+        self.post_message(self.Chosen(self, value))

@@ -2,13 +2,12 @@
 
 from __future__ import annotations
 
-from textual.content import Content
 from textual.binding import Binding
+from textual.content import Content
 from textual.message import Message
-from textual.widgets import OptionList
-from textual.widgets.option_list import Option
 
 from ..steps import STEPS
+from .line_list import LineList
 
 #: marker and style of each status (the style names are theme variables)
 MARKS = {
@@ -18,19 +17,17 @@ MARKS = {
 }
 
 
-class StepList(OptionList):
+class StepList(LineList):
     """The eight steps with a status mark each; Enter (or a digit) opens one."""
 
     DEFAULT_CSS = """
     StepList {
         width: 18;
         height: 1fr;
-        border: none;
-        padding: 0;
+        padding: 0 0 0 1;
         background: $panel;
-        & > .option-list--option { padding: 0 0 0 1; }
     }
-    StepList:focus { background-tint: $primary 10%; border: none; }
+    StepList:focus { background-tint: $primary 10%; }
     """
 
     BINDINGS = [
@@ -47,31 +44,32 @@ class StepList(OptionList):
             self.step = step
 
     def __init__(self, current: str, statuses: dict[str, str] | None = None, id: str | None = None) -> None:
+        super().__init__(id=id)
         self.current = current
         self._statuses = dict(statuses or {})
-        super().__init__(*[Option(self._prompt(s), id=s.id) for s in STEPS], id=id)
+        self.set_reactive(StepList.cursor, [s.id for s in STEPS].index(current))
 
-    def _prompt(self, step) -> Content:
-        status = self._statuses.get(step.id, "incomplete")
-        mark, style = MARKS[status]
+    def line_count(self) -> int:
+        return len(STEPS)
+
+    def line(self, index: int) -> Content:
+        step = STEPS[index]
+        mark, style = MARKS[self.status_of(step.id)]
         here = step.id == self.current
         return Content.assemble((f"{mark} ", style), (f"{step.number} {step.short}", "bold underline" if here else ""))
 
     def on_mount(self) -> None:
-        self.highlighted = [s.id for s in STEPS].index(self.current)
         self.watch(self.app, "statuses", self.show_statuses, init=False)  # built with them
 
     def show_statuses(self, statuses: dict[str, str]) -> None:
         self._statuses = dict(statuses)
-        for i, step in enumerate(STEPS):
-            self.replace_option_prompt_at_index(i, self._prompt(step))
+        self.redraw()
 
     def status_of(self, step: str) -> str:
         return self._statuses.get(step, "incomplete")
 
-    def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
-        event.stop()
-        self.post_message(self.Chosen(event.option.id))
+    def chosen(self, index: int) -> None:
+        self.post_message(self.Chosen(STEPS[index].id))
 
     def action_choose_number(self, number: int) -> None:
         self.post_message(self.Chosen(STEPS[number - 1].id))
