@@ -22,7 +22,6 @@ A value of ``"?"`` marks an unknown to be solved for.
 
 from __future__ import annotations
 
-import tomllib
 from dataclasses import asdict, dataclass, field, fields, replace
 
 from .errors import InputError
@@ -176,6 +175,8 @@ class Worksheet:
 
     @classmethod
     def from_toml(cls, text: str, source: str = "worksheet") -> "Worksheet":
+        import tomllib  # here: a new worksheet in the app reads no TOML
+
         try:
             data = tomllib.loads(text)
         except tomllib.TOMLDecodeError as exc:
