@@ -159,6 +159,19 @@ async def test_purpose_boundary_and_process_fields_reject_bad_text(tmp_path, aut
         assert app.is_running
 
 
+async def test_the_message_goes_when_the_text_is_put_right(tmp_path, author, draft_only):
+    app = app_on(tmp_path, "purpose")
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        row = await type_bad(pilot, in_row("atmosphere"), "1 barr", "atmosphere", "a pressure")
+        assert row.outer_size.height == 2  # the field, and its message beneath
+        await fill(pilot, in_row("atmosphere"), "1 bar")
+        await settle(pilot)
+        assert not row.has_class("-invalid") and row.message == ""
+        assert row.outer_size.height == 1
+        assert app.session.worksheet.heading.atmosphere == "1 bar"
+
+
 async def test_keys_typed_ahead_of_the_screen_land_in_the_next_field(tmp_path, author, draft_only):
     """A burst of keys (a fast typist, a slow SSH link): after Enter, the rest goes to the next field.
 

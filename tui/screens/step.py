@@ -9,9 +9,9 @@ compute thermodynamics and never touch files.
 
 from __future__ import annotations
 
-from textual.app import ComposeResult
 from textual import events
 from textual.actions import SkipAction
+from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import Screen

@@ -30,8 +30,8 @@ class FieldRow(Widget):
         color: $text-muted;
         & Input { margin-left: 12; background: $boost; }
         & Input:focus { background: $primary 20%; }
-        & .field-row--message { color: $text-error; height: auto; }
-        &.-invalid { color: $text-error; }
+        & .field-row--message { color: $text-error; height: auto; display: none; }
+        &.-invalid { color: $text-error; & .field-row--message { display: block; } }
     }
     """
 
