@@ -93,3 +93,20 @@ def test_app_for_pauses_the_collector_until_the_first_screen(monkeypatch, tmp_pa
         asyncio.run(show())
     finally:
         gc.enable()
+
+
+def test_a_reference_worksheet_says_it_is_solving_before_the_app_opens(opened, capsys, author):
+    """Starting a record from a .toml on the reference model waits for that model's process:
+    the terminal is told, not left silent (other models open at once, with nothing printed)."""
+    pytest.importorskip("balance.record")
+    pytest.importorskip("CoolProp")
+    from tui import offload
+
+    try:
+        assert cli.main([str(SAMPLES / "n2-buffer-into-receiver.toml")]) == 0
+        assert capsys.readouterr().err == ""
+        assert cli.main([str(SAMPLES / "steam-kettle-wet.toml")]) == 0
+        assert "solving the worksheet with the reference model" in capsys.readouterr().err
+        assert [e.kind for e in opened[1].entries()][-1] == "solve"
+    finally:
+        offload.shutdown()

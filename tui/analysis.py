@@ -2,11 +2,12 @@
 
 Every function here takes a :class:`~balance.worksheet.Worksheet` (or a
 result) and returns a frozen answer the screens only display. They are
-called from Textual thread workers: they may be slow (the reference model
-imports CoolProp and solves with it) and must never touch the UI.
+called from Textual thread workers, or for the reference model in its own
+process (:mod:`tui.offload`): they may be slow and must never touch the UI.
 
 * :func:`check`    — degrees of freedom in words, and each step's status
 * :func:`solve`    — the balance, through :func:`balance.closed.solve`
+* :func:`trace`    — the diagrams' paths, through :func:`balance.paths.trace`
 
 The engineering judgement lives in ``balance``: the model's adequacy in
 :func:`balance.adequacy.advise`, the diagrams' paths in
@@ -184,6 +185,20 @@ def solve(ws: Worksheet):
     from balance.closed import solve_worksheet
 
     return solve_worksheet(ws)
+
+
+def trace(result):
+    """The P-v and T-s diagrams' lines (:class:`balance.paths.Trace`); raises BalanceError.
+
+    numpy's floating-point warnings are off while the paths are sampled:
+    the lines are a sketch, and a terminal app has nowhere to print them.
+    """
+    import numpy as np
+
+    from balance.paths import trace as paths_trace
+
+    with np.errstate(all="ignore"):
+        return paths_trace(result)
 
 
 def sig(x: float, digits: int = 4) -> str:

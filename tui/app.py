@@ -6,9 +6,11 @@ degrees-of-freedom check, the step statuses, the latest solve, the display
 units, what is uncommitted, and what is running in the background.
 
 Work that may be slow runs in thread workers and reports back with a
-message: the check (prepare + DOF count; CoolProp for the reference model),
-the adequacy hint, the solve and the diagram. Errors from workers end up in
-one place, :meth:`JoulebookApp.on_worker_state_changed`.
+message: the check (prepare + DOF count), the adequacy hint, the solve and
+the diagram. For the reference model the workers hand the work to its own
+process (:mod:`tui.offload`) and wait: CoolProp is never imported here.
+Errors from workers end up in one place,
+:meth:`JoulebookApp.on_worker_state_changed`.
 
 Nothing heavy is imported before the first screen is shown: numpy, scipy,
 pint and the models load in a warm-up worker after it.
@@ -17,7 +19,6 @@ pint and the models load in a warm-up worker after it.
 from __future__ import annotations
 
 import gc
-import sys
 import time
 from dataclasses import dataclass, replace
 from importlib import import_module
@@ -32,6 +33,7 @@ from textual.worker import Worker, WorkerState
 from balance.errors import BalanceError
 from balance.worksheet import Worksheet
 
+from . import offload
 from .session import Session
 from .steps import BY_ID, ORDER, STEPS, neighbour
 
@@ -48,9 +50,6 @@ SCREENS_BY_STEP = {
     "results": ("tui.screens.results", "ResultsScreen"),
     "review": ("tui.screens.review", "ReviewScreen"),
 }
-
-#: model names (and aliases) whose work goes to a worker with a visible indicator
-SLOW_MODELS = ("reference", "ref", "helmholtz")
 
 
 @dataclass(frozen=True)
@@ -181,6 +180,7 @@ class JoulebookApp(App):
         if self._warm_first:
             # only now: the imports would compete with the first screen for the GIL
             self.run_worker(self._warm_up, thread=True, group="warm", exit_on_error=False)
+        offload.warm(self.session.worksheet.fluid.model)
 
     def _warm_up(self) -> None:
         from balance import problem  # noqa: F401  numpy, scipy, the models
@@ -201,6 +201,7 @@ class JoulebookApp(App):
 
     def on_unmount(self) -> None:
         self.session.flush()  # the latest draft is on disk before the app goes
+        offload.shutdown()
 
     @staticmethod
     def make_screen(step: str):
@@ -215,7 +216,7 @@ class JoulebookApp(App):
         else:
             tasks.pop(key, None)
         self._busy_tasks = tasks
-        self.busy = "; ".join(tasks.values())
+        self.busy = "; ".join(dict.fromkeys(tasks.values()))  # the same words once
 
     @property
     def solving(self) -> bool:
@@ -242,19 +243,13 @@ class JoulebookApp(App):
         self.session.set_extra(key, value)
 
     def _slow(self, ws: Worksheet) -> bool:
-        return ws.fluid.model.strip().lower() in SLOW_MODELS
+        """Whether the work goes to the reference-model process (with the indicator shown)."""
+        return offload.uses_reference(ws.fluid.model)
 
     def _slow_text(self, doing: str) -> str:
-        if "CoolProp" not in sys.modules:
-            # importing CoolProp holds the interpreter for seconds, even in a worker thread
-            return "loading CoolProp for the reference model (once, a few seconds)"
+        if not offload.ready():
+            return "starting the reference-model process (once, a few seconds)"
         return f"{doing} with the reference model"
-
-    @staticmethod
-    def _let_the_indicator_show(ws: Worksheet) -> None:
-        """Before the first CoolProp import (it blocks every thread): give the UI a frame to paint."""
-        if ws.fluid.model.strip().lower() in SLOW_MODELS and "CoolProp" not in sys.modules:
-            time.sleep(0.15)
 
     def start_check(self) -> None:
         if not self.units_ready:
@@ -267,10 +262,17 @@ class JoulebookApp(App):
 
     @work(thread=True, exclusive=True, group="check", exit_on_error=False)
     def _check_worker(self, ws: Worksheet, version: int, visited: frozenset) -> None:
-        from .analysis import check
+        from .analysis import Check, check, statuses
 
-        self._let_the_indicator_show(ws)
-        self.post_message(Checked(version, check(ws, visited)))
+        if not self._slow(ws):
+            self.post_message(Checked(version, check(ws, visited)))
+            return
+        try:
+            answer = offload.check(ws, visited)
+        except offload.OffloadError as exc:
+            self.notify(str(exc), title="not checked", severity="error", timeout=10, markup=False)
+            answer = Check(ws, False, f"not checked: {exc}", statuses(ws, visited))
+        self.post_message(Checked(version, answer))
 
     def on_checked(self, message: Checked) -> None:
         if message.version != self._version:
@@ -314,10 +316,16 @@ class JoulebookApp(App):
 
     @work(thread=True, exclusive=True, group="advice", exit_on_error=False)
     def _advice_worker(self, ws: Worksheet) -> None:
-        from balance.adequacy import advise
+        from balance.adequacy import Advice, advise
 
-        self._let_the_indicator_show(ws)
-        self.post_message(Advised(ws, advise(ws)))
+        if not self._slow(ws):
+            self.post_message(Advised(ws, advise(ws)))
+            return
+        try:
+            answer = offload.advise(ws)
+        except offload.OffloadError as exc:
+            answer = Advice(ws.fluid.model, problems=(str(exc),), adequate=False)
+        self.post_message(Advised(ws, answer))
 
     def on_advised(self, message: Advised) -> None:
         if message.worksheet.fluid != self.session.worksheet.fluid:
@@ -427,34 +435,41 @@ class JoulebookApp(App):
 
     @work(thread=True, exclusive=True, group="solve", exit_on_error=False)
     def _solve_worker(self, ws: Worksheet) -> None:
-        from balance.paths import trace
+        from . import analysis
 
-        from .analysis import solve
-
-        self._let_the_indicator_show(ws)
+        slow = self._slow(ws)
+        via = offload if slow else analysis
         t0 = time.perf_counter()
         try:
-            result = solve(ws)
+            result = via.solve(ws)
+        except offload.OffloadError as exc:  # not solved at all: nothing to record
+            self.post_message(Solved(Outcome(ws, error=str(exc), seconds=time.perf_counter() - t0)))
+            return
         except BalanceError as exc:
             self.post_message(Solved(Outcome(ws, error=str(exc), seconds=time.perf_counter() - t0)))
-            self._record_solve()
+            self._record_solve(slow)
             return
         self.post_message(Solved(Outcome(ws, result, seconds=time.perf_counter() - t0)))
-        self._record_solve()
+        self._record_solve(slow)
         try:
-            import numpy as np
-
-            with np.errstate(all="ignore"):
-                drawn = trace(result)
+            drawn = via.trace(result)
         except BalanceError as exc:
-            self.call_from_thread(self.notify, f"diagram not drawn: {exc}", severity="warning")
+            self.notify(f"diagram not drawn: {exc}", severity="warning", markup=False)
             drawn = None
         self.post_message(Traced(ws, drawn))
 
-    def _record_solve(self) -> None:
-        """Append the solve to the record (from the solve worker: the record solves again)."""
+    def _record_solve(self, slow: bool) -> None:
+        """Append the solve to the record (from the solve worker: the record solves again).
+
+        For the reference model the record's worksheet is solved in that model's
+        process, and the session is not held meanwhile.
+        """
         try:
-            entry = self.session.append_solve()
+            sections = self.session.solve_due() if slow else None
+            if sections is not None:
+                entry = self.session.append_solve(offload.solve_data(sections), sections)
+            else:
+                entry = self.session.append_solve()
         except BalanceError as exc:
             self.post_message(Recorded(None, str(exc)))
             return

@@ -139,7 +139,26 @@ def cmd_demo(args) -> int:
 def cmd_open(args) -> int:
     from .session import open_target
 
+    _announce_reference_solve(args.record)
     return _run_app(open_target(args.record, must_exist=args.command == "open"))
+
+
+def _announce_reference_solve(target: str | None) -> None:
+    """A new record from a worksheet is solved before the app opens: on the reference model that
+    waits for its process (seconds), so say so rather than sit silent."""
+    if not (target and target.endswith(".toml")):
+        return
+    from balance.worksheet import Worksheet
+
+    from .offload import uses_reference
+
+    try:
+        model = Worksheet.load(target).fluid.model
+    except BalanceError:
+        return  # opening it reports the problem
+    if uses_reference(model):
+        print("joulebook: solving the worksheet with the reference model (CoolProp, in its own process) ...",
+              file=sys.stderr, flush=True)
 
 
 def _run_app(session) -> int:
@@ -158,35 +177,12 @@ def app_for(session):
     time the app is built (modules, classes) lives for the whole run and is
     frozen out of later collections. The start-up benchmark measures this path.
     """
-    _preload_reference(session.worksheet.fluid.model)
     gc.disable()
     from .app import JoulebookApp  # Textual only for the terminal app
 
     app = JoulebookApp(session, gc_paused=True)
     gc.freeze()
     return app
-
-
-def _preload_reference(model: str) -> None:
-    """Import CoolProp before the app starts when the worksheet uses it.
-
-    Its import holds the interpreter for seconds, in any thread; done here
-    the app never freezes for it mid-edit (a worksheet switched to the
-    reference model later still pays it once, with the indicator shown).
-    """
-    from balance.errors import InputError
-    from balance.models import canonical
-
-    try:
-        if canonical(model) != "reference":
-            return
-    except InputError:
-        return
-    print("joulebook: loading the reference equations of state (CoolProp) ...", file=sys.stderr, flush=True)
-    try:
-        import CoolProp.CoolProp  # noqa: F401
-    except ImportError:
-        pass  # the model reports the missing library itself, in the app
 
 
 def _pairs(items, flag: str):

@@ -43,6 +43,8 @@ from balance.worksheet import (
     WorkTerm,
 )
 
+from . import offload
+
 #: The record file's extension.
 RECORD_SUFFIX = ".jbk"
 #: Appended to the record's path for the autosaved draft.
@@ -179,7 +181,9 @@ class Session:
         session = cls(path=path, worksheet=ws, extras={"visited": list(STEP_SECTIONS)})
         rec = record_module()
         if rec is not None:
-            session.record = rec.Record.create(str(path), author=session.author, worksheet=ws)
+            # the reference model solves in its own process (started here, warm for the app)
+            solver = offload.solve_data if offload.uses_reference(ws.fluid.model) else None
+            session.record = rec.Record.create(str(path), author=session.author, worksheet=ws, solver=solver)
             session.committed = session.record.worksheet()
         else:
             session.committed = ws
@@ -311,17 +315,29 @@ class Session:
                 return True
         return False
 
-    def append_solve(self):
+    def solve_due(self) -> dict | None:
+        """The record's worksheet sections when a solve entry is due (:meth:`needs_solve`), else None."""
+        with self._lock:
+            return self.record.sections() if self.needs_solve() else None
+
+    def append_solve(self, data: dict | None = None, sections: dict | None = None):
         """Append a solve entry when the record's inputs changed since its last one.
 
-        Call :meth:`commit` first (on the UI thread). The record solves its own
-        worksheet, which may take seconds with the reference model: the app
-        calls this from a worker. Returns the entry, or None.
+        Call :meth:`commit` first (on the UI thread). ``data`` is the entry's data
+        worked out elsewhere from ``sections`` (what :meth:`solve_due` returned): the
+        app gets it from the reference-model process without holding the session
+        meanwhile. It is appended only while the record still holds those sections
+        (a newer commit wants its own solve). Without ``data`` the record's worksheet
+        is solved now, in the reference-model process when it uses that model, which
+        may take seconds: the app calls this from a worker. Returns the entry, or None.
         """
         with self._lock:
-            if not self.needs_solve():
+            due = self.solve_due()
+            if due is None or (data is not None and sections != due):
                 return None
-            entry = self.record.append_solve(author=self.author)
+            if data is None and offload.uses_reference(due.get("fluid", {}).get("model", "")):
+                data = offload.solve_data(due)
+            entry = self.record.append_solve(author=self.author, data=data)
             self.save_draft()
             return entry
 

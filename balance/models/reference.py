@@ -4,7 +4,10 @@ state, evaluated by CoolProp's HEOS backend.
 CoolProp is imported only inside methods (its import costs over a second),
 and each model instance owns one low-level ``AbstractState``, created on
 first use. Every method updates that state before reading it, so no result
-depends on what was computed before.
+depends on what was computed before. A pickled model leaves the state
+behind (CoolProp's object does not pickle; it is made again on first use);
+once used, it takes its constants and reference state along: the terminal
+app solves in another process and shows the result without CoolProp.
 
 Input pairs
 -----------
@@ -188,6 +191,13 @@ class Reference(PropertyModel):
                     f"CoolProp name, or use one of the {_OTHER_MODELS} models",
                 ) from None
         return self._state
+
+    def __getstate__(self) -> dict:
+        """The model without its AbstractState; once used, with its constants and reference state."""
+        if self._state is not None:
+            # cached here while CoolProp is loaded, so the receiving process needs none to read them
+            self.__dict__.update(_c=self._c, reference_state=self.reference_state)
+        return {**self.__dict__, "_state": None}
 
     @cached_property
     def _c(self) -> _Constants:
@@ -613,7 +623,7 @@ class Reference(PropertyModel):
         return f"CoolProp could not solve {self.fluid} at {_fmt_specs(specs)}{why}{hint}"
 
     # -- record ------------------------------------------------------------------
-    @property
+    @cached_property
     def reference_state(self) -> str:
         """Where u, h, s are measured from: CoolProp's default for the fluid,
         named when it is one of the usual conventions, with one value."""

@@ -86,6 +86,10 @@ class Record:
         """The current worksheet: the replay of every step entry (raises InputError naming the field)."""
         return worksheet_of(self._entries)
 
+    def sections(self) -> dict:
+        """The current worksheet's sections as plain data: what a solve entry is worked out from."""
+        return fold(self._entries)
+
     def open_comments(self) -> list[Entry]:
         return open_comments(self._entries)
 
@@ -102,11 +106,13 @@ class Record:
     # -- making --------------------------------------------------------------------------
     @classmethod
     def create(cls, path, author: str | None = None, worksheet: Worksheet | None = None, *,
-               clock: Clock | None = None, roles=None) -> "Record":
+               clock: Clock | None = None, roles=None, solver: Callable[[dict], dict] | None = None) -> "Record":
         """A new record file: the opening entry, then (given a worksheet) one step entry per
         section and a solve entry. Written in one atomic step; refuses an existing file.
 
         ``roles`` overrides the sign-off roles and their order (pinned in the opening).
+        ``solver`` works out the solve entry's data from the sections: :func:`solve_data`
+        by default, or the same in another process (the terminal app keeps CoolProp out of its own).
         """
         path = Path(path)
         if path.exists():
@@ -123,7 +129,7 @@ class Record:
             for section in STEP_ORDER:
                 if section in sheet:
                     rec._stage(SECTION_KINDS[section], {section: sheet[section]}, None)
-            rec._stage(SOLVE, solve_data(fold(rec._entries)), None)
+            rec._stage(SOLVE, (solver or solve_data)(fold(rec._entries)), None)
         store.create(path, rec._raw)
         return rec
 
@@ -219,9 +225,16 @@ class Record:
         Worksheet.from_dict({section: data})  # raises InputError naming the field
         return self._append(SECTION_KINDS[section], {section: data}, author)
 
-    def append_solve(self, author: str | None = None) -> Entry:
-        """Solve the current worksheet and record the result (or the error: a failed solve is recorded)."""
-        return self._append(SOLVE, solve_data(fold(self._entries)), author)
+    def append_solve(self, author: str | None = None, *, data: dict | None = None) -> Entry:
+        """Solve the current worksheet and record the result (or the error: a failed solve is recorded).
+
+        ``data`` is the entry's data when worked out elsewhere, by :func:`solve_data` from
+        :meth:`sections` as they are now (the terminal app solves the reference model in another
+        process); None solves here.
+        """
+        if data is None:
+            data = solve_data(fold(self._entries))
+        return self._append(SOLVE, data, author)
 
     def note(self, text: str, author: str | None = None) -> Entry:
         """A revision note: why the calculation changes (counts as a change of the calculation)."""
