@@ -13,7 +13,7 @@ from __future__ import annotations
 import pytest
 
 from balance.worksheet import Worksheet
-from tests.test_tui_pilot import SIZE, author, fill, in_row, ready, settle  # noqa: F401
+from tests.test_tui_pilot import SIZE, author, fill, in_row, ready, settle, wait_until  # noqa: F401
 from tui.app import JoulebookApp
 from tui.session import Session
 from tui.widgets.field_row import FieldRow
@@ -209,28 +209,17 @@ async def test_an_unknown_species_is_named_and_the_step_marked_invalid(tmp_path,
         assert app.is_running
 
 
-async def test_dof_recount_after_an_edit_is_fast_for_a_cubic(tmp_path, author, draft_only):
-    """The live degrees-of-freedom line: under 100 ms after an edit for a cubic model.
-
-    Measured as the time from the edit reaching the app to the new count
-    being shown; the budget is the issue's (under 100 ms).
-    """
-    import time
-
+async def test_dof_recount_follows_every_edit(tmp_path, author, draft_only):
+    """The live degrees-of-freedom line follows each edit (its speed, under 100 ms for a
+    cubic, is measured by benchmarks/bench_tui_recount.py, not here)."""
     app = app_on(tmp_path, "states")
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
         ws = app.session.worksheet
-        times = []
-        # best of three edits: the machines here are shared, one slow tick is not the app's
-        for P2 in ("?", "25 bar", "?"):
-            final = ws.final.__class__(name="end", props={"T": "?", "P": P2})
-            t0 = time.perf_counter()
-            app.edit(ws.with_(final=final))
-            while app.check.worksheet != app.session.worksheet:
-                await pilot.pause(0.002)
-            times.append(time.perf_counter() - t0)
-        assert app.check.message.startswith("3 unknowns, 2 equations")
-        assert min(times) < 0.1, f"the recount took {min(times) * 1e3:.0f} ms at best"
-        await pilot.pause()
-        assert app.screen.query_one("#dof").text.endswith(app.check.message)
+        for P2, expected in (("?", "3 unknowns, 2 equations"), ("25 bar", "2 unknowns, 2 equations"),
+                             ("?", "3 unknowns, 2 equations")):
+            app.edit(ws.with_(final=ws.final.__class__(name="end", props={"T": "?", "P": P2})))
+            await wait_until(pilot, lambda: app.check.worksheet == app.session.worksheet, what="the recount")
+            assert app.check.message.startswith(expected)
+            await pilot.pause()
+            assert app.screen.query_one("#dof").text.endswith(app.check.message)
