@@ -8,12 +8,11 @@ process), 2 bad input (message on stderr).
 
 from __future__ import annotations
 
-import argparse
 import gc
 import json
 import sys
-from importlib import resources
 from pathlib import Path
+from types import SimpleNamespace
 
 from balance.errors import BalanceError, InputError, SolveError, SpecificationError
 
@@ -38,6 +37,8 @@ def sample_path(name: str) -> str:
     The wheel carries ``samples/`` inside the ``tui`` package; a source
     checkout has it at the top of the tree.
     """
+    from importlib import resources
+
     bundled = resources.files("tui").joinpath("samples", name)
     if bundled.is_file():
         return str(bundled)
@@ -194,7 +195,10 @@ def _pairs(items, flag: str):
 
 
 # -- the parser --------------------------------------------------------------------
-def build_parser() -> argparse.ArgumentParser:
+def build_parser():
+    """The argparse parser of every subcommand (the app's own start builds none)."""
+    import argparse
+
     from balance import __version__
 
     parser = argparse.ArgumentParser(
@@ -253,11 +257,11 @@ def main(argv: list[str] | None = None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
     # opening the app builds no parser: its first screen is timed (benchmarks/bench_tui_startup.py)
     if not argv:
-        args = argparse.Namespace(command="new", record=None, func=cmd_open)  # `joulebook`: a new worksheet
+        args = SimpleNamespace(command="new", record=None, func=cmd_open)  # `joulebook`: a new worksheet
     elif not argv[0].startswith("-") and argv[0] not in COMMANDS:
         if len(argv) != 1:  # `joulebook RECORD.jbk` or `joulebook WORKSHEET.toml`
             build_parser().error("give one record (.jbk) or worksheet (.toml) to open")
-        args = argparse.Namespace(command="path", record=argv[0], func=cmd_open)
+        args = SimpleNamespace(command="path", record=argv[0], func=cmd_open)
     else:
         args = build_parser().parse_args(argv)
     if not getattr(args, "func", None):
