@@ -177,8 +177,11 @@ class JoulebookApp(App):
     def _first_screen_shown(self) -> None:
         if self._gc_paused:
             gc.enable()  # paused for the start-up by tui.cli.app_for
+        # a moment later: the imports would compete for the GIL with the first frame's writing
+        self.set_timer(0.05, self._start_background)
+
+    def _start_background(self) -> None:
         if self._warm_first:
-            # only now: the imports would compete with the first screen for the GIL
             self.run_worker(self._warm_up, thread=True, group="warm", exit_on_error=False)
         offload.warm(self.session.worksheet.fluid.model)
 
