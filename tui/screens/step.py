@@ -13,7 +13,7 @@ from textual import events
 from textual.actions import SkipAction
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.containers import Vertical, VerticalScroll
 from textual.screen import Screen
 from textual.widgets import Input, Static, TextArea
 
@@ -56,13 +56,12 @@ class StepScreen(Screen):
 
     def compose(self) -> ComposeResult:
         step = BY_ID[self.STEP]
+        # laid out by the screen's grid (app.tcss): no containers for the frame
         yield TitleBar()
-        with Horizontal(id="frame"):
-            yield StepList(self.STEP, self.app.statuses, id="steps")
-            with Vertical(id="main"):
-                yield Static(f"{step.number}  {step.title}", id="step-heading")
-                with (VerticalScroll if self.SCROLL else Vertical)(id="form"):
-                    yield from self.compose_form()
+        yield StepList(self.STEP, self.app.statuses, id="steps")
+        yield Static(f"{step.number}  {step.title}", id="step-heading")
+        with (VerticalScroll if self.SCROLL else Vertical)(id="form"):
+            yield from self.compose_form()
         yield DofLine(id="dof")
         yield KeyBar(id="keys")
 
