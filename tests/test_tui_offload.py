@@ -149,7 +149,7 @@ def test_the_ui_keeps_running_while_the_process_starts(run):
     # the worksheet typed is the sample, so the solve below can be compared with it
     assert run["worksheet"] == Worksheet.load(SAMPLES / CO2).to_dict()
     # the check was sent before the process was up: the wait covered the start
-    assert "starting the reference-model process (once, a few seconds)" in run["busy"]
+    assert "starting the reference model (seconds)" in run["busy"]
     ticks = run["ticks"]
     gaps = [b - a for a, b in zip(ticks, ticks[1:])]
     assert len(ticks) >= 0.25 * run["wait"] / TICK, (len(ticks), run["wait"])
@@ -157,7 +157,7 @@ def test_the_ui_keeps_running_while_the_process_starts(run):
 
 
 def test_the_indicator_says_what_is_happening(run):
-    assert any("starting the reference-model process" in line for line in run["dof"])
+    assert any(line.endswith("starting the reference model (seconds)") for line in run["dof"])
     assert run["check"] == "1 unknown, 1 equation: ready to solve"  # as `joulebook check` counts the sample
 
 

@@ -251,7 +251,7 @@ class JoulebookApp(App):
 
     def _slow_text(self, doing: str) -> str:
         if not offload.ready():
-            return "starting the reference-model process (once, a few seconds)"
+            return "starting the reference model (seconds)"  # once a session; fits at 80 columns
         return f"{doing} with the reference model"
 
     def start_check(self) -> None:
