@@ -233,6 +233,39 @@ def test_solve_data_worked_out_for_older_sections_is_not_recorded(tmp_path, auth
     assert session.solve_due() is None
 
 
+async def test_a_sign_off_waits_for_its_solve_in_a_worker(tmp_path, author):
+    """A sign-off covers a solve: one due on the reference model is recorded from a worker
+    (the UI thread never waits for the process), and the sign-off follows it."""
+    from balance.record.replay import solve_data
+    from tui.app import JoulebookApp
+
+    session = Session.from_worksheet(Worksheet.load(SAMPLES / STEAM), tmp_path / "kettle.jbk")
+    heading = session.worksheet.heading
+    session.edit(session.worksheet.with_(heading=replace(heading, title="kettle, second look")))
+    session.set_step("review")  # the edit is committed when the sign-off starts: a solve is due
+    app = JoulebookApp(session)
+    waited: list[bool] = []
+    ask = app.solve_before_signing
+    app.solve_before_signing = lambda then: waited.append(ask(then)) or waited[-1]
+    try:
+        async with app.run_test(size=SIZE) as pilot:
+            await ready(pilot)
+            await pilot.press("ctrl+g")
+            await pilot.pause(0.2)
+            await focus(pilot, is_widget("unsigned"))
+            await pilot.press("space")
+            await focus(pilot, is_widget("sign"))
+            await pilot.press("enter")
+            await wait_until(pilot, lambda: session.entries()[-1].kind == "sign-off", what="the sign-off")
+            assert waited == [True]
+            *_, solve, sign_off = session.entries()
+            # the record's own solve of what it holds, worked out here (CoolProp HEOS), is the reference
+            assert solve.kind == "solve" and solve.data == solve_data(session.record.sections())
+            assert (sign_off.data["role"], sign_off.data.get("unsigned")) == ("prepared", True)
+    finally:
+        offload.shutdown()
+
+
 # -- pickling -----------------------------------------------------------------------------------------
 READ_BACK = """
 import io, json, pickle, sys

@@ -478,6 +478,30 @@ class JoulebookApp(App):
             return
         self.post_message(Recorded(entry))
 
+    def solve_before_signing(self, then) -> bool:
+        """A sign-off covers a solve: when one is due on the reference model, record it in a
+        worker (the indicator shown) and call ``then`` on the UI thread after; False when no
+        solve has to wait for that model's process (the sign-off then solves as it goes).
+
+        Commit first: what is due is worked out from the record.
+        """
+        if not (self._slow(self.session.worksheet) and self.session.solve_due() is not None):
+            return False
+        self._set_busy("sign", self._slow_text("solving before the sign-off"))
+        self._sign_solve_worker(then)
+        return True
+
+    @work(thread=True, exclusive=True, group="sign", exit_on_error=False)
+    def _sign_solve_worker(self, then) -> None:
+        try:
+            self._record_solve(True)  # a failure is reported by on_recorded
+        finally:
+            self.call_from_thread(self._set_busy, "sign", None)
+        if self.session.solve_due() is None:
+            self.call_from_thread(then)
+        else:
+            self.notify("not signed off: the solve it covers was not recorded", severity="error", timeout=10)
+
     def on_solved(self, message: Solved) -> None:
         self._set_busy("solve", None)
         self.outcome = message.outcome

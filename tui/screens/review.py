@@ -183,6 +183,11 @@ that starts a new revision, which needs signing again.
     def _sign(self, request: SignRequest | None) -> None:
         if request is None:
             return
+        self.app.commit_all(quiet=True)
+        if not self.app.solve_before_signing(lambda: self._sign_now(request)):
+            self._sign_now(request)
+
+    def _sign_now(self, request: SignRequest) -> None:
         session = self.app.session
 
         def sign():
@@ -203,7 +208,8 @@ that starts a new revision, which needs signing again.
         if entry is not None:
             self.notify(f"signed off: {request.role} by {entry.data.get('signer')} (entry {entry.seq})")
         self.app.after_record_change()
-        self.reload()
+        if self.is_attached:  # the user may have moved on while the solve ran
+            self.reload()
 
     def action_verify(self) -> None:
         v = self._guard(self.app.session.verify)
