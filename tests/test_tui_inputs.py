@@ -172,6 +172,24 @@ async def test_the_message_goes_when_the_text_is_put_right(tmp_path, author, dra
         assert app.session.worksheet.heading.atmosphere == "1 bar"
 
 
+async def test_overrides_are_typed_in_the_fluid_step_and_a_bad_one_is_named(tmp_path, author, draft_only):
+    """Overrides replace species constants (NAME = VALUE; ...). The check names a bad one, the
+    fluid step is marked invalid, and the text stays as typed."""
+    app = app_on(tmp_path, "fluid")
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        await fill(pilot, in_row("overrides"), "Tc = 126.2 degX; omega = 0.04")
+        await settle(pilot)
+        assert app.session.worksheet.fluid.overrides == {"Tc": "126.2 degX", "omega": "0.04"}
+        assert app.check.message.startswith("not ready (step 3): fluid.overrides.Tc: must be a temperature")
+        assert app.statuses["fluid"] == "invalid"
+        assert app.screen.query_one("#overrides", FieldRow).value == "Tc = 126.2 degX; omega = 0.04"
+        await fill(pilot, in_row("overrides"), "Tc = 126.2 K; omega = 0.04")
+        await settle(pilot)
+        assert app.session.worksheet.fluid.overrides == {"Tc": "126.2 K", "omega": "0.04"}
+        assert app.statuses["fluid"] == "complete" and not app.check.message.startswith("not ready (step 3)")
+
+
 async def test_keys_typed_ahead_of_the_screen_land_in_the_next_field(tmp_path, author, draft_only):
     """A burst of keys (a fast typist, a slow SSH link): after Enter, the rest goes to the next field.
 

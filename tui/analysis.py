@@ -111,7 +111,7 @@ def statuses(ws: Worksheet, visited: frozenset[str] = frozenset(), error_field: 
         out["boundary"] = INVALID
     else:
         out["boundary"] = COMPLETE if ws.system.inside.strip() else INCOMPLETE
-    out["fluid"] = _fluid_status(ws)
+    out["fluid"] = INVALID if step_of_field(error_field) == 3 else _fluid_status(ws)  # e.g. an override
     if state_problems(ws):
         out["states"] = INVALID
     elif ws.initial and all(_state_complete(s, False) for s in ws.initial) and _state_complete(ws.final, True):

@@ -10,6 +10,7 @@ from balance.worksheet import Fluid, Worksheet
 
 from ..analysis import sig
 from ..widgets.choice_list import ChoiceList
+from ..widgets.field_row import FieldRow
 from ..widgets.species_picker import SpeciesPicker
 from .step import StepScreen
 
@@ -36,6 +37,11 @@ model, so choose it for the states you have, not by habit.
   `methane`); ↓ moves into the matches, Enter picks.
 - *Model*: ↑/↓ and Enter. The reference model is greyed for species without
   a reference equation of state.
+- *Overrides*: constants that replace the species data, `NAME = VALUE`
+  separated by `;` — `M`, `Tc`, `Pc`, `omega`; a constant `cp` or `cv`
+  (molar or specific) in place of the ideal-gas polynomial; the cubic's
+  `a` and `b`; the liquid's `rho`. They travel with the record; a wrong
+  name or unit shows on the degrees-of-freedom line, naming the override.
 - *Adequacy*: once step 4 has two properties of a state, the hint shows the
   reduced temperature and pressure, the compressibility Z and the phase at
   each state, with a recommendation. For an ideal gas it also shows Z from
@@ -52,9 +58,9 @@ liquid (use the incompressible or the reference model).
         yield SpeciesPicker(f.species, id="picker")
         yield Label("Property model", classes="form-label")
         yield ChoiceList(MODELS, _canonical(f.model), disabled_values=self._disabled(f.species), id="model")
-        if f.overrides:
-            listed = ", ".join(f"{k} = {v}" for k, v in f.overrides.items())
-            yield Static(f"overrides from the worksheet file (kept): {listed}", classes="hint", markup=False)
+        yield FieldRow("Overrides", overrides_text(f.overrides), id="overrides",
+                       placeholder="none; e.g. Tc = 126.2 K; omega = 0.04",
+                       tooltip="Constants that replace the data's, NAME = VALUE; separated by ;")
         yield Label("Adequacy at the states given so far", classes="form-label")
         yield Static("", id="advice", markup=False)
 
@@ -80,7 +86,8 @@ liquid (use the incompressible or the reference model).
         model.set_disabled(self._disabled(species))
         # keep the model's text as typed (an alias such as 'pr') unless another model was chosen
         value = ws.fluid.model if _canonical(ws.fluid.model) == model.value else model.value
-        return ws.with_(fluid=Fluid(species=species, model=value, overrides=dict(ws.fluid.overrides)))
+        overrides = parse_overrides(self.query_one("#overrides", FieldRow).value)
+        return ws.with_(fluid=Fluid(species=species, model=value, overrides=overrides))
 
     def on_species_picker_picked(self, event: SpeciesPicker.Picked) -> None:
         self.changed()
@@ -109,6 +116,25 @@ liquid (use the incompressible or the reference model).
             mark, style = ("✓ ", "$text-success") if advice.adequate else ("! ", "bold $text-warning")
             parts.append((mark + advice.recommendation, style))
         box.update(Content.assemble(*parts))
+
+
+def overrides_text(overrides: dict[str, str]) -> str:
+    """The worksheet's overrides as one line: ``Tc = 126.2 K; omega = 0.04``."""
+    return "; ".join(f"{k} = {v}" if v else k for k, v in overrides.items())
+
+
+def parse_overrides(text: str) -> dict[str, str]:
+    """``NAME = VALUE`` pairs separated by ``;``, each kept as typed.
+
+    A piece without ``=`` is kept whole as a name with no value, so the
+    check names it (and nothing typed is dropped).
+    """
+    out: dict[str, str] = {}
+    for piece in text.split(";"):
+        name, _, value = piece.partition("=")
+        if name.strip() or value.strip():
+            out[name.strip()] = value.strip()
+    return out
 
 
 def _canonical(name: str) -> str:
