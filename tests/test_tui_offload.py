@@ -389,8 +389,12 @@ async def test_a_dead_process_is_reported_and_started_again(tmp_path, author):
                 assert time.perf_counter() < deadline, ("no check from a new process", app.check.message, app.busy)
                 await pilot.pause(0.05)
             await pilot.press("ctrl+r")
+            # the whole solve worker: the result, its solve entry (worked out in the process too)
+            # and the diagrams; the entries are counted only once nothing more is on its way
             await wait_until(pilot, lambda: app.outcome is not None and app.outcome.result is not None
+                             and app.outcome.trace is not None and kinds(session)[-1] == "solve"
                              and not app.busy, what="the solve")
+            await settle(pilot)
             entries = len(session.entries())
 
             os.kill(_child().pid, signal.SIGKILL)
