@@ -440,8 +440,7 @@ class JoulebookApp(App):
     def _solve_worker(self, ws: Worksheet) -> None:
         from . import analysis
 
-        slow = self._slow(ws)
-        via = offload if slow else analysis
+        via = offload if self._slow(ws) else analysis
         t0 = time.perf_counter()
         try:
             result = via.solve(ws)
@@ -450,10 +449,10 @@ class JoulebookApp(App):
             return
         except BalanceError as exc:
             self.post_message(Solved(Outcome(ws, error=str(exc), seconds=time.perf_counter() - t0)))
-            self._record_solve(slow)
+            self._record_solve()
             return
         self.post_message(Solved(Outcome(ws, result, seconds=time.perf_counter() - t0)))
-        self._record_solve(slow)
+        self._record_solve()
         try:
             drawn = via.trace(result)
         except BalanceError as exc:
@@ -461,18 +460,11 @@ class JoulebookApp(App):
             drawn = None
         self.post_message(Traced(ws, drawn))
 
-    def _record_solve(self, slow: bool) -> None:
-        """Append the solve to the record (from the solve worker: the record solves again).
-
-        For the reference model the record's worksheet is solved in that model's
-        process, and the session is not held meanwhile.
-        """
+    def _record_solve(self) -> None:
+        """Append the solve to the record (from a worker: the record's worksheet is solved
+        again, by :meth:`Session.append_solve`)."""
         try:
-            sections = self.session.solve_due() if slow else None
-            if sections is not None:
-                entry = self.session.append_solve(offload.solve_data(sections), sections)
-            else:
-                entry = self.session.append_solve()
+            entry = self.session.append_solve()
         except BalanceError as exc:
             self.post_message(Recorded(None, str(exc)))
             return
@@ -494,7 +486,7 @@ class JoulebookApp(App):
     @work(thread=True, exclusive=True, group="sign", exit_on_error=False)
     def _sign_solve_worker(self, then) -> None:
         try:
-            self._record_solve(True)  # a failure is reported by on_recorded
+            self._record_solve()  # a failure is reported by on_recorded
         finally:
             self.call_from_thread(self._set_busy, "sign", None)
         if self.session.solve_due() is None:

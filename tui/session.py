@@ -83,6 +83,15 @@ def record_module():
     return record
 
 
+def _solve_data(sections: dict) -> dict:
+    """A solve entry's data for a record's sections: the reference model's in its own process."""
+    if offload.uses_reference(sections.get("fluid", {}).get("model", "")):
+        return offload.solve_data(sections)
+    from balance.record.replay import solve_data
+
+    return solve_data(sections)
+
+
 def section_data(ws: Worksheet, section: str):
     """One section of ``ws.to_dict()`` as the record stores it."""
     data = ws.to_dict()
@@ -324,19 +333,21 @@ class Session:
         """Append a solve entry when the record's inputs changed since its last one.
 
         Call :meth:`commit` first (on the UI thread). ``data`` is the entry's data
-        worked out elsewhere from ``sections`` (what :meth:`solve_due` returned): the
-        app gets it from the reference-model process without holding the session
-        meanwhile. It is appended only while the record still holds those sections
-        (a newer commit wants its own solve). Without ``data`` the record's worksheet
-        is solved now, in the reference-model process when it uses that model, which
-        may take seconds: the app calls this from a worker. Returns the entry, or None.
+        worked out from ``sections`` (what :meth:`solve_due` returned); without it,
+        it is worked out here from the sections due, in the reference-model process
+        when the worksheet uses that model. Either way the session is not held while
+        the data is worked out (seconds, for the reference model: the app calls this
+        from a worker), and the entry is appended only while the record still holds
+        those sections (a newer commit wants its own solve). Returns the entry, or None.
         """
-        with self._lock:
-            due = self.solve_due()
-            if due is None or (data is not None and sections != due):
+        if data is None:
+            sections = self.solve_due()
+            if sections is None:
                 return None
-            if data is None and offload.uses_reference(due.get("fluid", {}).get("model", "")):
-                data = offload.solve_data(due)
+            data = _solve_data(sections)
+        with self._lock:
+            if sections is None or sections != self.solve_due():
+                return None
             entry = self.record.append_solve(author=self.author, data=data)
             self.save_draft()
             return entry
