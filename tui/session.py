@@ -191,8 +191,7 @@ class Session:
         rec = record_module()
         if rec is not None:
             # the reference model solves in its own process (started here, warm for the app)
-            solver = offload.solve_data if offload.uses_reference(ws.fluid.model) else None
-            session.record = rec.Record.create(str(path), author=session.author, worksheet=ws, solver=solver)
+            session.record = rec.Record.create(str(path), author=session.author, worksheet=ws, solver=_solve_data)
             session.committed = session.record.worksheet()
         else:
             session.committed = ws
