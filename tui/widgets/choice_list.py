@@ -57,11 +57,11 @@ class ChoiceList(LineList):
 
     def set_value(self, value: str) -> None:
         self.value = value
-        self.redraw()
+        self.refresh()
 
     def set_disabled(self, values) -> None:
         self.disabled_values = set(values)
-        self.redraw()
+        self.refresh()
 
     def chosen(self, index: int) -> None:
         value = self.choices[index][0]

@@ -77,10 +77,6 @@ class LineList(Widget, can_focus=True):
     def get_content_height(self, container, viewport, width: int) -> int:
         return self.line_count()
 
-    def redraw(self) -> None:
-        """The lines changed (same count): draw them again."""
-        self.refresh()
-
     # -- moving and choosing -----------------------------------------------------------------
     def watch_cursor(self) -> None:
         self.refresh()

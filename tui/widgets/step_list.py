@@ -63,7 +63,7 @@ class StepList(LineList):
 
     def show_statuses(self, statuses: dict[str, str]) -> None:
         self._statuses = dict(statuses)
-        self.redraw()
+        self.refresh()
 
     def status_of(self, step: str) -> str:
         return self._statuses.get(step, "incomplete")
