@@ -4,11 +4,17 @@ Each record is made with a fixed clock and author, so it is the same on
 every run except for numbers in their last binary digits (other numpy,
 scipy or CoolProp builds). The comparison therefore reads both records and
 compares, entry by entry, the header, the text and the data with numbers
-rounded: data values to 8 significant digits, and round-off (a value below
-1e-9 of the largest of its unit in the entry, a residual below 1e-7, a
-number below 1e-6 in the text) shown as "≈0". The seals, which hash the
-exact digits, are left out; the golden files themselves are real records
-and must verify. A report golden is compared the same way, line by line.
+rounded: data values to 8 significant digits, and round-off shown as "≈0".
+Round-off is a residual below 1e-7, a number below 1e-6 in the text, and a
+data value below 1e-9 of its unit's scale in the entry: the largest value of
+that unit there, but never less than the entry's own physical scale (n R for
+J/K, n R T for J and R T for J/mol, n and T from the entry's data), because
+in some processes every value of a unit is round-off (ΔS_system and S_gen of
+a reversible adiabatic stroke, ±1e-15 J/K). A text table with a round-off
+cell is compared cell by cell: that cell's printed width sets its column's
+width. The seals, which hash the exact digits, are left out; the golden
+files themselves are real records and must verify. A report golden is
+compared the same way, line by line.
 
 After a deliberate change, regenerate and read every diff:
 
@@ -33,6 +39,9 @@ GOLDEN = Path(__file__).resolve().parent / "golden"
 UPDATE = os.environ.get("JOULEBOOK_UPDATE_GOLDEN") == "1"
 AUTHOR = "golden.author"
 
+#: The molar gas constant [J/(mol K)], CODATA 2018 (exact since the 2019 SI: N_A k).
+R = 8.314462618
+
 _HEX = re.compile(r"\b[0-9a-f]{64}\b")
 _NUMBER = re.compile(r"(?<![\w.])-?(?:\d+\.\d*(?:[eE][-+]?\d+)?|\d+[eE][-+]?\d+)(?![\w.])")
 
@@ -40,6 +49,55 @@ _NUMBER = re.compile(r"(?<![\w.])-?(?:\d+\.\d*(?:[eE][-+]?\d+)?|\d+[eE][-+]?\d+)
 def _text_line(line: str) -> str:
     line = _HEX.sub("<sha256>", line)
     return _NUMBER.sub(lambda m: "≈0" if abs(float(m.group(0))) < 1e-6 else m.group(0), line)
+
+
+_RULE = re.compile(r"^\s*-+(?:  -+)*$")
+
+
+def _text_lines(lines: list[str]) -> list[str]:
+    """The entry's text lines to compare; a table holding a round-off cell as its cells.
+
+    A table (``text.table``) is a header, a rule of dashes and rows up to
+    the next blank line; each column is as wide as its widest cell. A
+    round-off cell's printed width ("8.1532e-19", "-1.68615e-18") is itself
+    round-off, so such a table is compared by its stripped cells, cut at the
+    rule's column spans.
+    """
+    out = [_text_line(line) for line in lines]
+    i = 1
+    while i < len(lines):
+        if not _RULE.match(lines[i]):
+            i += 1
+            continue
+        end = next((k for k in range(i + 1, len(lines)) if not lines[k].strip()), len(lines))
+        spans = [m.span() for m in re.finditer(r"-+", lines[i])]
+        if any("≈0" in out[k] and "≈0" not in lines[k] for k in range(i + 1, end)):
+            for k in [i - 1, *range(i + 1, end)]:
+                cuts = [a for a, _ in spans[1:]]
+                cells = [lines[k][a:b].strip() for a, b in zip([0, *cuts], [*cuts, len(lines[k])])]
+                out[k] = "table: " + " | ".join(_text_line(c) for c in cells)
+            out[i] = f"table: rule of {len(spans)} columns"
+        i = end
+    return out
+
+
+def _physical_scales(data: dict) -> dict:
+    """The least scale of each unit that a round-off-only unit is judged against."""
+    n = data.get("n")
+    if not (isinstance(n, dict) and isinstance(n.get("value"), (int, float))):
+        return {}
+    temps = [abs(float(s["T"]["value"])) for s in (data.get("states") or {}).values()
+             if isinstance(s, dict) and isinstance(s.get("T"), dict)]
+    T = max(temps, default=0.0)
+    nR = abs(float(n["value"])) * R
+    return {"J/K": nR, "J": nR * T, "J/mol": R * T}
+
+
+def _unit_scales(data: dict) -> dict:
+    scales = _scales(data, {})
+    for unit, least in _physical_scales(data).items():
+        scales[unit] = max(scales.get(unit, 0.0), least)
+    return scales
 
 
 def _data_lines(value, path: str, scales: dict, out: list) -> list:
@@ -71,8 +129,8 @@ def comparable(text: str, name: str) -> list[str]:
     out = []
     for e in parse(text.encode("utf-8"), name).entries:
         out.append(f"entry {e.seq}: {e.kind} at {e.time} by {e.author}")
-        out += ["| " + _text_line(line) for line in e.text.split("\n")]
-        out += [": " + line for line in _data_lines(e.data, "", _scales(e.data, {}), [])]
+        out += ["| " + line for line in _text_lines(e.text.split("\n"))]
+        out += [": " + line for line in _data_lines(e.data, "", _unit_scales(e.data), [])]
     return out
 
 
