@@ -1,42 +1,90 @@
-"""Ideal-gas heat capacities from the species data against JANAF-type table values.
+"""Ideal-gas heat capacities from the species data against the reference equations of state.
 
-The table values are from memory of the JANAF thermochemical tables
-(cp° in J/(mol K) at 1 bar); each is marked so. Tolerance 0.2 %.
+Our cp° are NASA 7-coefficient polynomials (NASA Glenn coefficients, as
+Cantera 3.2.0's nasa_gas.yaml ships them; balance/data/build_species.py).
+The check values are computed here: the ideal-gas part of each fluid's
+reference EOS in CoolProp 8.0 (HEOS, ``cp0molar`` at 1 Pa), which comes
+from the EOS's own publication, not from the NASA tables (CoolProp's
+BibTeX-EOS keys: Span-JPCRD-2000 for nitrogen, Schmidt-FPE-1985 for oxygen,
+Span-JPCRD-1996 for CO2, Setzmann-JPCRD-1991 for methane, Wagner-JPCRD-2002
+(IAPWS-95) for water, Tegeler-JPCRD-1999 for argon). Points are taken only
+inside the EOS's stated temperature range (``Tmin``-``Tmax``).
+
+The two are separate fits and agree to about 0.1-0.3 %. Measured with these data (|ours/CoolProp - 1|, worst of
+the row's temperatures): N2 0.23 %, O2 0.23 %, CO2 0.26 %, CH4 0.22 %
+(200-500 K), H2O 0.07 % (to 1000 K), Ar 6e-6 (both 5/2 R; the EOS uses the
+older R = 8.31451 J/(mol K)). Tolerances: 0.3 % for the molecules, 0.1 % for
+water to 1000 K, 2e-5 for argon; the rows the tolerance does not cover are
+listed at EXCLUDED with the measured difference, not hidden in a looser
+tolerance.
 """
 
 from __future__ import annotations
 
+import CoolProp
 import pytest
 
 from balance.species import lookup
 
-# (species, T [K], cp° [J/(mol K)])
-JANAF = [
-    ("N2", 300.0, 29.125),   # from memory (JANAF)
-    ("N2", 500.0, 29.580),   # from memory (JANAF)
-    ("N2", 1000.0, 32.697),  # from memory (JANAF)
-    ("O2", 300.0, 29.385),   # from memory (JANAF)
-    ("O2", 500.0, 31.091),   # from memory (JANAF)
-    ("O2", 1000.0, 34.870),  # from memory (JANAF)
-    ("CO2", 300.0, 37.221),  # from memory (JANAF)
-    ("CO2", 500.0, 44.627),  # from memory (JANAF)
-    ("CO2", 1000.0, 54.308), # from memory (JANAF)
-    ("H2O", 300.0, 33.596),  # from memory (JANAF)
-    ("H2O", 500.0, 35.226),  # from memory (JANAF)
-    ("H2O", 1000.0, 41.268), # from memory (JANAF)
-    ("CH4", 300.0, 35.765),  # from memory (JANAF)
-    # Methane above 300 K is left out: the values remembered from the older JANAF
-    # table (71.8 at 1000 K) differ by 2.5 % from both the NASA polynomial in the
-    # data (73.6) and CoolProp's extrapolated ideal part (72.8), so memory is not
-    # a good enough source there; tests/test_species_data.py checks it against CoolProp.
-    ("Ar", 300.0, 20.786),   # from memory (JANAF; monatomic, 5/2 R)
-    ("Ar", 1000.0, 20.786),  # from memory (JANAF; monatomic, 5/2 R)
+# (species, temperatures [K], relative tolerance)
+ROWS = [
+    ("N2", (200.0, 250.0, 298.15, 400.0, 500.0, 700.0, 1000.0, 1500.0, 2000.0), 3e-3),
+    ("O2", (200.0, 250.0, 298.15, 400.0, 500.0, 700.0, 1000.0, 1500.0, 2000.0), 3e-3),
+    ("CO2", (250.0, 298.15, 400.0, 500.0, 700.0, 1000.0, 1500.0, 2000.0), 3e-3),
+    ("CH4", (200.0, 250.0, 298.15, 400.0, 500.0), 3e-3),
+    ("H2O", (298.15, 400.0, 500.0, 700.0, 1000.0), 1e-3),
+    ("Ar", (200.0, 298.15, 500.0, 1000.0, 2000.0), 2e-5),
 ]
 
+#: Measured, and not checked at the tolerances above (kept as a record of why):
+EXCLUDED = {
+    # IAPWS-95's ideal part (also iapws 1.5 IAPWS95: 47.090 J/(mol K) at 1500 K)
+    # is below the NASA polynomial by 0.52 % at 1500 K and 0.97 % at 2000 K.
+    ("H2O", 1500.0): 5.2e-3,
+    ("H2O", 2000.0): 9.7e-3,
+    # methane near the EOS's upper limit (625 K): 0.45 % at 600 K.
+    ("CH4", 600.0): 4.5e-3,
+}
 
-@pytest.mark.parametrize("name, T, cp", JANAF)
-def test_cp_matches_janaf(name, T, cp):
-    assert float(lookup(name).cp_ig.cp(T)) == pytest.approx(cp, rel=2e-3)
+CASES = [(name, T, rel) for name, temps, rel in ROWS for T in temps]
+
+
+@pytest.fixture(scope="module")
+def ideal_part():
+    states = {}
+
+    def cp0(name: str, T: float) -> float:
+        fluid = lookup(name).coolprop
+        st = states.setdefault(fluid, CoolProp.AbstractState("HEOS", fluid))
+        assert st.Tmin() <= T <= st.Tmax(), f"{T} K is outside the {fluid} EOS's range"
+        st.update(CoolProp.PT_INPUTS, 1.0, T)  # 1 Pa: the ideal gas; cp0 does not depend on P
+        return st.cp0molar()
+
+    return cp0
+
+
+@pytest.mark.parametrize("name, T, rel", CASES)
+def test_cp_matches_the_reference_eos_ideal_part(ideal_part, name, T, rel):
+    cp_ig = lookup(name).cp_ig
+    assert cp_ig.nasa.T_min <= T <= cp_ig.nasa.T_max
+    # CoolProp 8.0 HEOS, ideal-gas part of the fluid's reference EOS
+    assert float(cp_ig.cp(T)) == pytest.approx(ideal_part(name, T), rel=rel)
+
+
+@pytest.mark.parametrize("name, T", sorted(EXCLUDED))
+def test_excluded_rows_differ_as_recorded(ideal_part, name, T):
+    # The rows left out are left out for the measured reason, not a guessed one.
+    diff = abs(float(lookup(name).cp_ig.cp(T)) / ideal_part(name, T) - 1.0)
+    assert diff == pytest.approx(EXCLUDED[(name, T)], abs=0.5e-3)
+
+
+def test_argon_is_monatomic():
+    # cp° = 5/2 R for a monatomic ideal gas (kinetic theory, a published closed form)
+    from balance.units import R
+
+    cp_ig = lookup("Ar").cp_ig
+    for T in (200.0, 1000.0, 5000.0):
+        assert float(cp_ig.cp(T)) == pytest.approx(2.5 * R, rel=1e-9)
 
 
 def test_h_and_s_follow_from_cp():

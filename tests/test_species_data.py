@@ -175,48 +175,81 @@ def test_fitted_entries_state_their_error_and_reference(key):
     assert s_R(a, T_REF) == pytest.approx(0.0, abs=1e-9)
 
 
-# cp° of the ideal gas at 298.15 K [J/(mol K)]
-CP_298 = {
-    "N2": 29.12,   # from memory
-    "CO2": 37.13,  # from memory
-    "CH4": 35.69,  # from memory
-    "H2O": 33.58,  # from memory
-    "Ar": 20.786,  # from memory
-    "O2": 29.38,   # from memory
-    "H2": 28.84,   # from memory
-    "CO": 29.14,   # from memory
-}
-
-
-@pytest.mark.parametrize("key, expected", CP_298.items())
-def test_cp_at_298_15(key, expected):
-    e = DATA[key]
-    assert R * cp_R(coeffs(e, T_REF), T_REF) == pytest.approx(expected, rel=5e-3)
-
-
 # --- against CoolProp ---------------------------------------------------------
+#
+# The ideal-gas part of each fluid's reference EOS in CoolProp 8.0 (HEOS,
+# cp0molar) comes from the EOS's publication. It is an independent check of
+# the entries whose cp° are NASA polynomials (Cantera's nasa_gas.yaml); for
+# the entries FITTED to it by build_species.py it is the source, so those are
+# checked against the error their source string states, not called agreement.
+# Points only inside the EOS's stated range (Tmin-Tmax) and the polynomial's.
 
-CHECK_T = (300.0, 500.0, 800.0)
-LOW_P = 100.0  # Pa: every species is a gas there at 300 K and above
+NASA_COOLPROP_KEYS = [k for k in COOLPROP_KEYS if not DATA[k]["source"]["cp"].startswith("fitted")]
+FITTED_COOLPROP_KEYS = [k for k in COOLPROP_KEYS if DATA[k]["source"]["cp"].startswith("fitted")]
 
 
-@pytest.mark.parametrize("key", COOLPROP_KEYS)
-def test_cp_matches_coolprop_ideal_part(key):
-    pytest.importorskip("CoolProp")
-    from CoolProp.CoolProp import PropsSI
+def eos_cp0(fluid: str, T: float, extrapolate: bool = False) -> float | None:
+    """CoolProp 8.0 HEOS ideal-gas cp0 [J/(mol K)] at T [K]; None outside the EOS's range
+    unless ``extrapolate`` (the ideal part is a closed form that can be evaluated beyond it)."""
+    CoolProp = pytest.importorskip("CoolProp")
+    st = CoolProp.AbstractState("HEOS", fluid)
+    if not extrapolate and not st.Tmin() <= T <= st.Tmax():
+        return None
+    st.update(CoolProp.DmolarT_INPUTS, 1e-6, T)  # ~1e-6 mol/m3: the ideal gas; cp0 does not depend on it
+    return st.cp0molar()
 
+
+# cp° at 298.15 K of the common gases, straight from the file's coefficients.
+# Measured |ours/CoolProp - 1|: at most 0.05 % (CH4); N2, O2, CO, H2, H2O
+# below 0.01 %; Ar 6e-6 (the argon EOS's R = 8.31451 J/(mol K)).
+CP_298 = ("N2", "CO2", "CH4", "H2O", "Ar", "O2", "H2", "CO")
+
+
+@pytest.mark.parametrize("key", CP_298)
+def test_cp_at_298_15_matches_coolprop_ideal_part(key):
+    e = DATA[key]
+    # CoolProp 8.0 HEOS ideal part of the fluid's reference EOS
+    assert R * cp_R(coeffs(e, T_REF), T_REF) == pytest.approx(eos_cp0(e["coolprop"], T_REF), rel=1e-3)
+
+
+CHECK_T = (300.0, 400.0, 500.0, 600.0, 800.0)
+
+
+@pytest.mark.parametrize("key", NASA_COOLPROP_KEYS)
+def test_nasa_cp_matches_coolprop_ideal_part(key):
+    # 1 % on 300-800 K is build_species.py's NASA_AGREEMENT, the test a NASA
+    # polynomial passed to be kept. Measured with these data: at most 0.81 %
+    # (R22 at 500 K), then neopentane 0.62 %, dimethyl ether 0.59 %, propane 0.58 %;
+    # N2, O2, CO2, H2O, Ar within 0.14 % (tests/test_ideal_gas_cp.py holds those tighter).
     e = DATA[key]
     Tmin, _, Tmax = e["cp"]["T"]
     checked = 0
     for T in CHECK_T:
-        if not Tmin <= T <= Tmax:
-            continue  # a polynomial says nothing outside its own range
-        # CoolProp 8.0 reference EOS ideal part
-        ref = PropsSI("Cp0molar", "T", T, "P", LOW_P, e["coolprop"])
-        ours = R * cp_R(coeffs(e, T), T)
-        assert ours == pytest.approx(ref, rel=1e-2), f"{key} at {T} K"
+        ref = eos_cp0(e["coolprop"], T)  # CoolProp 8.0 HEOS ideal part
+        if ref is None or not Tmin <= T <= Tmax:
+            continue
+        assert R * cp_R(coeffs(e, T), T) == pytest.approx(ref, rel=1e-2), f"{key} at {T} K"
         checked += 1
-    assert checked >= 1
+    assert checked >= 1, f"{key}: no temperature inside both ranges"
+
+
+@pytest.mark.parametrize("key", FITTED_COOLPROP_KEYS)
+def test_fitted_cp_holds_its_stated_error(key):
+    # The fit's source string states its max cp error against CoolProp's cp0 on
+    # a 1 K grid of its range (which may run past the EOS's Tmax: fit_limits in
+    # build_species.py); any point of the range must be within it (the stated
+    # value is rounded to 2 significant digits: 5 % of it, and 1e-9, for that).
+    e = DATA[key]
+    stated = float(re.search(r"max cp error ([0-9.e+-]+) %", e["source"]["cp"]).group(1)) / 100
+    Tmin, Tmid, Tmax = e["cp"]["T"]
+    checked = 0
+    for T in (Tmin, 250.0, T_REF, 350.0, Tmid, 500.0, 800.0, 1200.0, Tmax):
+        if not Tmin <= T <= Tmax:
+            continue
+        ref = eos_cp0(e["coolprop"], T, extrapolate=True)  # CoolProp 8.0 HEOS ideal part (the fit's source)
+        assert abs(R * cp_R(coeffs(e, T), T) / ref - 1.0) <= stated * 1.05 + 1e-9, f"{key} at {T} K"
+        checked += 1
+    assert checked >= 3, f"{key}: fewer than 3 temperatures inside both ranges"
 
 
 @pytest.mark.parametrize("key", COOLPROP_KEYS)
