@@ -20,7 +20,8 @@ def sample(name: str) -> Worksheet:
 
 
 #: Water at 100 degC and 1 m3/kg with Peng-Robinson: between saturated liquid and
-#: vapour (IAPWS-IF97 steam tables, from memory: vg = 1.673 m3/kg), so a wet state.
+#: vapour (iapws 1.5 IAPWS95: v'' = 1.6718 m3/kg; checked in
+#: tests/test_reference_model.py, test_the_wet_water_sample_state_is_wet), so a wet state.
 WET_WATER_PR = """
 [fluid]
 species = "H2O"

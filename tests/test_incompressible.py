@@ -28,7 +28,8 @@ WATER = lookup("H2O")
 
 def steel() -> Species:
     """A solid with no data of its own: M of iron (55.845 g/mol, IUPAC atomic weight,
-    from memory); Tc, Pc, omega and cp° are required fields the model never reads."""
+    from memory: an input only, every check on it is per kilogram and holds for any M);
+    Tc, Pc, omega and cp° are required fields the model never reads."""
     return Species(id="steel", name="carbon steel", formula="Fe", M=0.055845, Tc=9000.0, Pc=1e9,
                    omega=0.0, cp_ig=IdealGasHeatCapacity(constant_cp=25.0))
 
