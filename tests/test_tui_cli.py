@@ -12,27 +12,32 @@ from tests.test_tui_pilot import SAMPLES, author  # noqa: F401
 from tui import cli
 
 
+#: What the recorder returns as the app's exit code: not 0, so that a test sees
+#: the command line pass on the app's own code rather than a 0 of its own.
+APP_EXIT = 3
+
+
 @pytest.fixture
 def opened(monkeypatch, tmp_path):
     """Run the CLI in an empty folder; capture the session the app would open."""
     monkeypatch.chdir(tmp_path)
     seen = []
-    monkeypatch.setattr(cli, "_run_app", lambda session: seen.append(session) or 0)
+    monkeypatch.setattr(cli, "_run_app", lambda session: seen.append(session) or APP_EXIT)
     return seen
 
 
 def test_no_arguments_opens_a_new_worksheet_here(opened, tmp_path, author):
-    assert cli.main([]) == 0
+    assert cli.main([]) == APP_EXIT
     (session,) = opened
     assert session.path == tmp_path / "worksheet.jbk"
     assert session.worksheet.heading.title == "" and session.step == "purpose"
     (tmp_path / "worksheet.jbk.draft").write_text("{}")  # taken: the next one gets a new name
-    assert cli.main([]) == 0
+    assert cli.main([]) == APP_EXIT
     assert opened[1].path == tmp_path / "worksheet-2.jbk"
 
 
 def test_a_new_record_path_starts_a_worksheet_there(opened, tmp_path, author):
-    assert cli.main(["pump-test.jbk"]) == 0
+    assert cli.main(["pump-test.jbk"]) == APP_EXIT
     assert opened[0].path.name == "pump-test.jbk"
 
 
@@ -44,19 +49,19 @@ def test_open_needs_an_existing_record(opened, capsys, author):
 
 def test_a_worksheet_file_starts_a_record_from_it(opened, tmp_path, author):
     pytest.importorskip("balance.record")
-    assert cli.main([str(SAMPLES / "argon-membrane-rupture.toml")]) == 0
+    assert cli.main([str(SAMPLES / "argon-membrane-rupture.toml")]) == APP_EXIT
     session = opened[0]
     assert session.path == tmp_path / "argon-membrane-rupture.jbk"
     assert session.worksheet.fluid.species == "Ar"
     assert [e.kind for e in session.entries()][0] == "opening"
     # and `joulebook open` reopens it at its current state
-    assert cli.main(["open", str(session.path)]) == 0
+    assert cli.main(["open", str(session.path)]) == APP_EXIT
     assert opened[1].worksheet.to_dict() == session.worksheet.to_dict()
 
 
 def test_demo_opens_the_bundled_sample_and_print_keeps_the_old_output(opened, capsys, tmp_path, author):
     pytest.importorskip("balance.record")
-    assert cli.main(["demo", "--record", str(tmp_path / "demo.jbk")]) == 0
+    assert cli.main(["demo", "--record", str(tmp_path / "demo.jbk")]) == APP_EXIT
     assert opened[0].worksheet.heading.job == "PP-UT-0142"
     assert cli.main(["demo", "--print", "--units", "si"]) == 0
     out = capsys.readouterr().out
@@ -103,9 +108,9 @@ def test_a_reference_worksheet_says_it_is_solving_before_the_app_opens(opened, c
     from tui import offload
 
     try:
-        assert cli.main([str(SAMPLES / "n2-buffer-into-receiver.toml")]) == 0
+        assert cli.main([str(SAMPLES / "n2-buffer-into-receiver.toml")]) == APP_EXIT
         assert capsys.readouterr().err == ""
-        assert cli.main([str(SAMPLES / "steam-kettle-wet.toml")]) == 0
+        assert cli.main([str(SAMPLES / "steam-kettle-wet.toml")]) == APP_EXIT
         assert "solving the worksheet with the reference model" in capsys.readouterr().err
         assert [e.kind for e in opened[1].entries()][-1] == "solve"
     finally:
