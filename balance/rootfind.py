@@ -135,3 +135,67 @@ def scan_root(f, grid, start: float | None = None, scale: float = 1.0, skip=(Val
                     continue
                 return x, jumps, skipped
     return None, jumps, skipped
+
+
+def newton_bracketed(fdf, lo: float, hi: float, x0: float | None = None, *, flo: float | None = None,
+                     fhi: float | None = None, xtol: float = 0.0, rtol: float = 1e-14,
+                     maxiter: int = 100) -> float:
+    """A root of f in [lo, hi] by Newton's method kept inside a bracket.
+
+    The safeguarded Newton iteration ("rtsafe"): each Newton step from the
+    current point is taken when it stays strictly inside the bracket and
+    halves the bracket's width at least every other step; otherwise the
+    step bisects. The bracket shrinks to the side where f changes sign, so
+    the iteration cannot leave it and converges quadratically once close.
+
+    Parameters
+    ----------
+    fdf : callable  x -> (f(x), f'(x)); f' may be None where unknown (bisect)
+    lo, hi : float  the bracket; f(lo) and f(hi) must differ in sign
+    x0 : float, optional  the first point (default: the bracket's middle)
+    flo, fhi : float, optional  f(lo) and f(hi) when already known
+    xtol, rtol : float  stop when a step is below xtol + rtol |x|
+
+    Raises NoBracket when f(lo) and f(hi) have the same sign.
+
+    >>> round(newton_bracketed(lambda x: (x * x - 2.0, 2.0 * x), 0.0, 2.0), 12)
+    1.414213562373
+    """
+    if flo is None:
+        flo = fdf(lo)[0]
+    if fhi is None:
+        fhi = fdf(hi)[0]
+    if flo == 0.0:
+        return lo
+    if fhi == 0.0:
+        return hi
+    if flo * fhi > 0:
+        raise NoBracket(f"f({lo:g}) and f({hi:g}) have the same sign")
+    if flo > 0:  # orient: f(neg) < 0 < f(pos)
+        neg, pos = hi, lo
+    else:
+        neg, pos = lo, hi
+    x = 0.5 * (lo + hi) if x0 is None or not (min(lo, hi) < x0 < max(lo, hi)) else x0
+    dx = dx_old = abs(hi - lo)
+    for _ in range(maxiter):
+        f, df = fdf(x)
+        if f == 0.0:
+            return x
+        if f < 0:
+            neg = x
+        else:
+            pos = x
+        a, b = (neg, pos) if neg < pos else (pos, neg)
+        # Newton when its step lands inside the bracket and shrinks fast enough
+        # (|f / f'| below half the step before last); bisection otherwise
+        if (df is not None and df != 0.0 and math.isfinite(df) and a < x - f / df < b
+                and abs(2.0 * f) <= abs(dx_old * df)):
+            dx_old, dx = dx, f / df
+            new = x - dx
+        else:
+            dx_old, new = dx, 0.5 * (a + b)
+            dx = x - new
+        if abs(dx) <= xtol + rtol * abs(new) or b - a <= xtol + rtol * abs(new):
+            return new
+        x = new
+    raise RuntimeError(f"newton_bracketed did not converge in {maxiter} iterations")

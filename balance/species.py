@@ -13,6 +13,7 @@ s = 0. Balances use changes only, so the choice cancels; the output names it.
 from __future__ import annotations
 
 import hashlib
+import math
 import tomllib
 from dataclasses import dataclass, field, replace
 from functools import lru_cache
@@ -24,6 +25,19 @@ from .errors import InputError
 from .units import R, T_REF
 
 DATA_FILE = "species.toml"
+
+
+def _nasa_terms(t, a, log):
+    """cp/R, h/(R T) and s/R [-] of one NASA-7 range at t [K].
+
+    One formula set for both paths: ``t`` and the coefficients ``a`` are
+    floats (``log`` is ``math.log``) or numpy arrays (``numpy.log``).
+    """
+    a1, a2, a3, a4, a5, a6, a7 = a
+    cp = a1 + t * (a2 + t * (a3 + t * (a4 + t * a5)))
+    h = a1 + t * (a2 / 2 + t * (a3 / 3 + t * (a4 / 4 + t * a5 / 5))) + a6 / t
+    s = a1 * log(t) + t * (a2 + t * (a3 / 2 + t * (a4 / 3 + t * a5 / 4))) + a7
+    return cp, h, s
 
 
 @dataclass(frozen=True)
@@ -42,34 +56,40 @@ class Nasa7:
     low: tuple[float, ...]
     high: tuple[float, ...]
 
-    def _coeffs(self, T):
+    def coefficients(self, T):
+        """The seven coefficients that apply at T [K]: a tuple of floats, or of arrays for an array T."""
+        if isinstance(T, float):
+            return self.low if T <= self.T_mid else self.high
+        below = np.asarray(T) <= self.T_mid
+        return tuple(np.where(below, lo, hi) for lo, hi in zip(self.low, self.high))
+
+    def terms(self, T):
+        """(cp/R, h/(R T), s/R) [-] at T [K], absolute (with a6, a7); floats or arrays."""
+        if isinstance(T, float):
+            return _nasa_terms(T, self.coefficients(T), math.log)
         T = np.asarray(T, dtype=float)
-        lo = np.asarray(self.low)[:, None]
-        hi = np.asarray(self.high)[:, None]
-        c = np.where(T.reshape(-1) <= self.T_mid, lo, hi)
-        return T.reshape(-1), c
+        return _nasa_terms(T, self.coefficients(T), np.log)
 
     def cp_R(self, T):
         """cp/R [-] at T [K]."""
-        t, a = self._coeffs(T)
-        out = a[0] + t * (a[1] + t * (a[2] + t * (a[3] + t * a[4])))
-        return out.reshape(np.shape(T))
+        return self.terms(_arg(T))[0]
 
     def h_RT(self, T):
         """absolute h/(R T) [-] of the polynomial (with its a6)."""
-        t, a = self._coeffs(T)
-        out = a[0] + t * (a[1] / 2 + t * (a[2] / 3 + t * (a[3] / 4 + t * a[4] / 5))) + a[5] / t
-        return out.reshape(np.shape(T))
+        return self.terms(_arg(T))[1]
 
     def s_R(self, T):
         """absolute s°/R [-] of the polynomial (with its a7), at 1 bar."""
-        t, a = self._coeffs(T)
-        out = a[0] * np.log(t) + t * (a[1] + t * (a[2] / 2 + t * (a[3] / 3 + t * a[4] / 4))) + a[6]
-        return out.reshape(np.shape(T))
+        return self.terms(_arg(T))[2]
 
     @property
     def label(self) -> str:
         return f"NASA 7-coefficient polynomials, {self.T_min:g}-{self.T_mid:g}-{self.T_max:g} K"
+
+
+def _arg(T):
+    """A Python float stays a float (the scalar path); anything else becomes an array."""
+    return T if isinstance(T, float) else np.asarray(T, dtype=float)
 
 
 @dataclass(frozen=True)
@@ -77,32 +97,51 @@ class IdealGasHeatCapacity:
     """cp°(T) of the ideal gas and the h°, s° that follow from it.
 
     Either the species' NASA polynomials or a constant (a worksheet may set
-    a constant cp or cv to reproduce a checker's numbers).
+    a constant cp or cv to reproduce a checker's numbers). :meth:`terms`
+    gives all three at once; a Python float T takes the scalar path (plain
+    floats, no numpy), an array the vectorised one, through one formula set.
     """
 
     nasa: Nasa7 | None = None
     constant_cp: float | None = None
     """constant molar heat capacity at constant pressure [J/(mol K)]"""
+    _ref: tuple[float, float] = field(init=False, repr=False, compare=False)
+    """h/R and s/R [K], [-] of the polynomial at T_REF, subtracted to measure from the reference state"""
+
+    def __post_init__(self):
+        if self.nasa is not None:
+            cp, h_RT, s_R = self.nasa.terms(float(T_REF))
+            object.__setattr__(self, "_ref", (T_REF * h_RT, s_R))
+        else:
+            object.__setattr__(self, "_ref", (0.0, 0.0))
+
+    def terms(self, T):
+        """(cp° [J/(mol K)], h° [J/mol], s° at 1 bar [J/(mol K)]) at T [K], from the reference state.
+
+        >>> cp, h, s = IdealGasHeatCapacity(constant_cp=29.0).terms(398.15)
+        >>> round(cp, 6), round(h, 6), round(s, 6)
+        (29.0, 2900.0, 8.387731)
+        """
+        T = _arg(T)
+        log = math.log if isinstance(T, float) else np.log
+        if self.constant_cp is not None:
+            c = self.constant_cp
+            return c + 0.0 * T, c * (T - T_REF), c * log(T / T_REF)
+        cp_R, h_RT, s_R = self.nasa.terms(T)
+        h_ref, s_ref = self._ref
+        return R * cp_R, R * (T * h_RT - h_ref), R * (s_R - s_ref)
 
     def cp(self, T):
         """cp° [J/(mol K)] at T [K] (float or array)."""
-        if self.constant_cp is not None:
-            return self.constant_cp + 0.0 * np.asarray(T, dtype=float)
-        return R * self.nasa.cp_R(T)
+        return self.terms(T)[0]
 
     def h(self, T):
         """h° [J/mol] relative to the ideal gas at 298.15 K."""
-        if self.constant_cp is not None:
-            return self.constant_cp * (np.asarray(T, dtype=float) - T_REF)
-        n = self.nasa
-        return R * (np.asarray(T, dtype=float) * n.h_RT(T) - T_REF * float(n.h_RT(T_REF)))
+        return self.terms(T)[1]
 
     def s(self, T):
         """s° [J/(mol K)] at 1 bar relative to the ideal gas at 298.15 K, 1 bar."""
-        if self.constant_cp is not None:
-            return self.constant_cp * np.log(np.asarray(T, dtype=float) / T_REF)
-        n = self.nasa
-        return R * (n.s_R(T) - float(n.s_R(T_REF)))
+        return self.terms(T)[2]
 
     def in_range(self, T: float) -> bool:
         if self.constant_cp is not None:

@@ -24,7 +24,7 @@ import numpy as np
 import pytest
 from scipy.integrate import quad
 
-from balance.models.cubic import FORMS, Cubic, _spinodals
+from balance.models.cubic import FORMS, Cubic
 from balance.units import R
 from tests.test_cubic_vs_coolprop import species_from
 
@@ -92,7 +92,7 @@ def test_three_root_region_picks_the_lower_fugacity_root(model, Tr):
     equals the Gibbs difference / (R T) to 1e-9.
     """
     T = Tr * model.Tc_eos
-    spin = _spinodals(model, T)
+    spin = model.spinodal_volumes(T)
     assert spin is not None
     P_lo = max(float(model.pressure(T, spin[0])), 1e-3 * float(model.pressure(T, spin[1])))
     P_hi = float(model.pressure(T, spin[1]))

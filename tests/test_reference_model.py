@@ -34,7 +34,7 @@ from iapws import IAPWS95
 
 from balance.errors import InputError
 from balance.models import make_model
-from balance.models.reference import AmbiguousStateError, Reference
+from balance.models.reference import Reference
 from balance.species import lookup
 from tests.helpers import ROOT
 
@@ -241,33 +241,40 @@ def test_every_pair_round_trips(models, sid, T, P, x, pair):
         with pytest.raises(InputError, match="give T and quality x, or P and x"):
             m.flash(specs)
         return
-    try:
-        q = m.flash(specs)
-    except AmbiguousStateError as err:
-        assert pair in MAY_BE_AMBIGUOUS, str(err)
-        assert len(err.states) >= 2
-        assert any(close(s.T, base.T, 1e-6) and close(s.P, base.P, 1e-6) for s in err.states), str(err)
-        for s in err.states:
-            _check_meets(FLUIDS[sid], s, specs)
-        for s1, s2 in itertools.combinations(err.states, 2):
-            assert not (close(s1.P, s2.P, 1e-5) and close(s1.v, s2.v, 1e-5))
+    q = m.flash(specs)
+    _check_meets(FLUIDS[sid], q, specs)
+    if q.note:  # several states meet the pair: the largest volume is taken and the others named
+        assert pair in MAY_BE_AMBIGUOUS, q.note
+        others = _others(q.note)
+        assert others and all(v <= q.v * (1 + 1e-9) for _, _, v in others), q.note
+        if not (close(q.T, base.T, 1e-6) and close(q.P, base.P, 1e-6)):
+            assert any(close(T, base.T, 1e-5) and close(P, base.P, 1e-5) for T, P, _ in others), q.note
         return
     assert close(q.T, base.T, 1e-6) and close(q.P, base.P, 1e-6), (q.T, q.P)
 
 
-def test_compressed_liquid_T_h_is_ambiguous(models):
+_OTHER = re.compile(r"T = ([-+0-9.e]+) K, P = ([-+0-9.e]+) Pa, v = ([-+0-9.e]+) m3/mol")
+
+
+def _others(note: str) -> list[tuple[float, float, float]]:
+    """(T, P, v) of the states a note names beside the one taken (printed to 6 digits)."""
+    also = note.split("; also ", 1)[-1] if "; also " in note else note.split("also ", 1)[-1]
+    return [tuple(float(g) for g in m.groups()) for m in _OTHER.finditer(also)]
+
+
+def test_compressed_liquid_T_h_takes_the_wet_state_and_names_the_liquid(models):
     # Liquid water at 300 K and 1 MPa has h above the saturated liquid's at
-    # 300 K (CoolProp 8.0 HEOS), so a wet state at 300 K has the same h too.
+    # 300 K (CoolProp 8.0 HEOS), so a wet state at 300 K has the same h too;
+    # the wet one has the larger volume (the one rule of balance.models.base).
     m = models["H2O"]
     liquid = m.at_TP(300.0, 1e6)
     assert liquid.h > props("Water", "Hmolar", "T", 300.0, "Q", 0.0)
-    with pytest.raises(AmbiguousStateError) as err:
-        m.flash({"T": 300.0, "h": liquid.h})
-    phases = sorted(s.phase for s in err.value.states)
-    assert phases == ["liquid", "two-phase"]
-    wet = next(s for s in err.value.states if s.phase == "two-phase")
-    assert close(wet.P, props("Water", "P", "T", 300.0, "Q", 0.0), 1e-9)
-    assert "do not fix one state of Water" in str(err.value)
+    q = m.flash({"T": 300.0, "h": liquid.h})
+    assert q.phase == "two-phase" and q.v > liquid.v
+    assert close(q.P, props("Water", "P", "T", 300.0, "Q", 0.0), 1e-9)
+    (T, P, v), = _others(q.note)
+    assert close(P, liquid.P, 1e-5) and close(v, liquid.v, 1e-5) and "(liquid)" in q.note
+    assert q.note in m.warnings(q)  # said beside the result
 
 
 def _iapws_root(f, a: float, b: float) -> float:
@@ -277,35 +284,35 @@ def _iapws_root(f, a: float, b: float) -> float:
     return brentq(f, a, b, xtol=1e-9, rtol=1e-13)
 
 
-def test_saturated_vapour_enthalpy_maximum_makes_h_x_ambiguous(models):
+def test_saturated_vapour_enthalpy_maximum_h_x_takes_the_larger_volume(models):
     # h'' of water has a maximum on the saturation curve (near 510 K, 3.2 MPa in
     # iapws 1.5 IAPWS95): h'' at 100 °C recurs on the other side of it.
     m = models["H2O"]
     h_g = m.flash({"T": 373.15, "x": 1.0}).h
-    with pytest.raises(AmbiguousStateError) as err:
-        m.flash({"h": h_g, "x": 1.0})
-    Ts = sorted(s.T for s in err.value.states)
-    assert len(Ts) == 2 and close(Ts[0], 373.15, 1e-9)
+    q = m.flash({"h": h_g, "x": 1.0})  # the vapour at 100 °C has the larger volume: taken
+    assert close(q.T, 373.15, 1e-9)
+    (T_other, _, v_other), = _others(q.note)
+    assert v_other < q.v
     # iapws 1.5 IAPWS95: the other saturation temperature with that h'' [kJ/kg]
     target = h_g / lookup("H2O").M / 1e3
     other = _iapws_root(lambda T: IAPWS95(T=T, x=1.0).h - target, 520.0, 640.0)
-    assert close(Ts[1], other, 1e-8)
-    assert close(props("Water", "Hmolar", "T", Ts[1], "Q", 1.0), h_g, 1e-8)
+    assert close(T_other, other, 1e-5)  # the note prints 6 digits
+    assert close(props("Water", "Hmolar", "T", other, "Q", 1.0), h_g, 1e-8)
 
 
-def test_density_maximum_makes_P_v_ambiguous(models):
+def test_density_maximum_P_v_takes_the_warmer_state(models):
     # Water at 1 bar is densest near 4 °C: the density at 2 °C recurs a few
     # kelvin above the maximum.
     m = models["H2O"]
-    v = m.at_TP(275.15, 1e5).v
-    with pytest.raises(AmbiguousStateError) as err:
-        m.flash({"P": 1e5, "v": v})
-    Ts = sorted(s.T for s in err.value.states)
-    assert len(Ts) == 2 and close(Ts[0], 275.15, 1e-6)
+    cold = m.at_TP(275.15, 1e5)
+    q = m.flash({"P": 1e5, "v": cold.v})
+    # equal volumes: the state of higher entropy, the warmer one, is taken (the one rule)
+    (T_other, _, _), = _others(q.note)
+    assert close(T_other, 275.15, 1e-5) and q.s > cold.s
     # iapws 1.5 IAPWS95: the warmer temperature of that density at 0.1 MPa
-    rho = lookup("H2O").M / v
+    rho = lookup("H2O").M / cold.v
     other = _iapws_root(lambda T: IAPWS95(T=T, P=0.1).rho - rho, 278.0, 290.0)
-    assert close(Ts[1], other, 1e-7)
+    assert close(q.T, other, 1e-7)
 
 
 def test_gas_P_v_is_not_scanned_and_is_unique(models):

@@ -20,6 +20,7 @@ is loaded; the models load in :func:`make_model`.
 
 from __future__ import annotations
 
+from functools import lru_cache
 from typing import TYPE_CHECKING
 
 from ..errors import InputError
@@ -64,14 +65,23 @@ def canonical(name: str, field: str = "fluid.model") -> str:
 
 def make_model(name: str, species: Species, params: dict[str, float] | None = None,
                field: str = "fluid.model") -> PropertyModel:
-    """A model instance for a species.
+    """The model instance for a species (one per model, species and parameters).
 
     ``params`` carries model-level overrides from a worksheet: the cubic's
     ``a`` and ``b``, the incompressible model's ``rho`` and heat capacity
     (``cp`` or ``cv``, molar [J/(mol K)]).
+
+    Models are immutable once built, apart from what they work out once and
+    keep (a cubic's saturation curve, the reference model's CoolProp state
+    and constants), so one instance serves every solve that asks for the
+    same model: a second solve pays for none of it again.
     """
-    key = canonical(name, field)
-    params = dict(params or {})
+    return _model(canonical(name, field), species, tuple(sorted((params or {}).items())))
+
+
+@lru_cache(maxsize=64)
+def _model(key: str, species: Species, items: tuple) -> PropertyModel:
+    params = dict(items)
     heat_capacity = {k: params.pop(k) for k in ("cp", "cv") if k in params}
     allowed = {"a", "b"} if key in _CUBICS else {"rho"} if key == "incompressible" else set()
     extra = set(params) - allowed

@@ -1,12 +1,18 @@
-"""The ideal-gas model: P v = R T, with cp°(T) from the species' polynomials."""
+"""The ideal-gas model: P v = R T, with cp°(T) from the species' polynomials.
+
+Every input pair is solved directly or by one safeguarded Newton iteration
+in T on a function that rises with T (h, u, and s along an isobar or an
+isochore), in plain floats.
+"""
 
 from __future__ import annotations
 
 import math
 
 from ..errors import InputError
+from ..rootfind import NoBracket, newton_bracketed
 from ..units import P_REF, R
-from .base import Point, PropertyModel, check_arguments
+from .base import Point, PropertyModel, check_arguments, fmt_spec
 
 
 class IdealGas(PropertyModel):
@@ -29,36 +35,68 @@ class IdealGas(PropertyModel):
 
     def at_Tv(self, T: float, v: float) -> Point:
         check_arguments(T=T, v=v)
-        P = R * T / v
-        return self._point(T, P, v)
+        T, v = float(T), float(v)
+        return self._point(T, R * T / v, v)
 
     def at_TP(self, T: float, P: float) -> Point:
         check_arguments(T=T, P=P)
+        T, P = float(T), float(P)
         return self._point(T, P, R * T / P)
 
-    def flash(self, specs: dict[str, float], field: str = "state") -> Point:
-        # u and h of an ideal gas depend on T alone: two of T, u, h fix one
-        # number, not a state (the generic search would return an arbitrary
-        # volume, every one of which meets the pair).
-        if len(specs) == 2 and set(specs) <= {"T", "u", "h"}:
-            a, b = sorted(specs, key=("T", "u", "h").index)
+    def solve_pair(self, keys: tuple[str, str], values: tuple[float, float], field: str) -> Point:
+        (a, b), (va, vb) = keys, values
+        if keys == ("T", "v"):
+            return self.at_Tv(va, vb)
+        if keys == ("T", "P"):
+            return self.at_TP(va, vb)
+        if a == "T" and b in ("u", "h") or keys == ("u", "h"):
+            # u and h of an ideal gas depend on T alone: two of T, u, h fix one
+            # number, not a state
             raise InputError(
                 field,
                 f"{a} and {b} do not fix a state of an ideal gas (u and h depend on T alone); "
                 "give P, v or s with one of them",
             )
-        return super().flash(specs, field)
+        cp_ig = self.species.cp_ig
+        if keys == ("T", "s"):  # s = s°(T) - R ln(P/P°)
+            return self.at_TP(va, P_REF * math.exp((cp_ig.terms(va)[2] - vb) / R))
+        if keys == ("P", "v"):
+            return self.at_TP(va * vb / R, va)
+        if a in ("P", "v"):
+            T = self._temperature(b, vb, a, va, field)
+            return self.at_TP(T, va) if a == "P" else self.at_Tv(T, va)
+        # two caloric properties: u or h fixes T; s then fixes P
+        T = self._temperature(a, va, None, 0.0, field)
+        return self.at_TP(T, P_REF * math.exp((cp_ig.terms(T)[2] - vb) / R))
+
+    def _temperature(self, key: str, target: float, along: str | None, fixed: float, field: str) -> float:
+        """T [K] where ``key`` (u, h or s) reaches ``target``, at fixed P or v (``along``)."""
+        cp_ig = self.species.cp_ig
+
+        def fdf(T: float):
+            cp, h, s = cp_ig.terms(T)
+            if key == "h":
+                return h - target, cp
+            if key == "u":
+                return h - R * T - target, cp - R
+            if along == "P":
+                return s - R * math.log(fixed / P_REF) - target, cp / T
+            return s - R * math.log(R * T / (fixed * P_REF)) - target, (cp - R) / T
+
+        lo, hi = self.T_bounds()
+        try:
+            return newton_bracketed(fdf, lo, hi, x0=min(max(300.0, lo), hi), rtol=1e-15)
+        except NoBracket:
+            where = f" at {fmt_spec(along, fixed)}" if along else ""
+            raise InputError(field, f"no state of the ideal gas between {lo:g} K and {hi:g} K has "
+                                    f"{fmt_spec(key, target)}{where}") from None
 
     def _point(self, T: float, P: float, v: float) -> Point:
-        cp_ig = self.species.cp_ig
-        cp = float(cp_ig.cp(T))
-        h = float(cp_ig.h(T))
-        s = float(cp_ig.s(T)) - R * math.log(P / P_REF)
-        return Point(T=T, P=P, v=v, u=h - R * T, h=h, s=s, cv=cp - R, cp=cp, Z=1.0,
-                     phase="gas", ln_phi=0.0)
+        cp, h, s0 = self.species.cp_ig.terms(T)
+        return Point(T, P, v, h - R * T, h, s0 - R * math.log(P / P_REF), cp - R, cp, 1.0, "gas", ln_phi=0.0)
 
     def warnings(self, p: Point) -> list[str]:
-        out = []
+        out = super().warnings(p)
         cp_ig = self.species.cp_ig
         if not cp_ig.in_range(p.T):
             out.append(

@@ -36,7 +36,7 @@ import math
 from ..errors import InputError
 from ..species import Species
 from ..units import R, T_REF
-from .base import SPEC_KEYS, Point, PropertyModel, check_specs
+from .base import Point, PropertyModel, check_specs
 
 #: relative tolerance for a given v to count as the model's fixed M/ρ
 V_RTOL = 1e-9
@@ -130,22 +130,14 @@ class Incompressible(PropertyModel):
         self._check_v(v, "state")
         return self._point(T, math.nan)
 
-    def flash(self, specs: dict[str, float], field: str = "state") -> Point:
+    def solve_pair(self, keys: tuple[str, str], values: tuple[float, float], field: str) -> Point:
         """The state fixed by two of T [K], P [Pa], v [m3/mol], u, h [J/mol], s [J/(mol K)].
 
         Raises InputError naming ``field`` for a pair this model cannot meet.
         """
-        check_specs(specs, field)
-        keys = tuple(sorted(specs, key=SPEC_KEYS.index))
-        if len(keys) != 2:
-            raise InputError(field, f"needs exactly two of T, P, v, u, h, s; got {', '.join(keys) or 'none'}")
-        if "x" in keys:
-            raise InputError(f"{field}.x", f"quality x needs a model with two phases (the reference model); "
-                                           f"the {self.name} model has one phase")
-        a, b = keys
-        va, vb = float(specs[a]), float(specs[b])
+        (a, b), (va, vb) = keys, values
         if "v" in keys:
-            self._check_v(specs["v"], field)
+            self._check_v(va if a == "v" else vb, field)
             other, value = (b, vb) if a == "v" else (a, va)
             if other in ("P", "h"):
                 raise InputError(
@@ -174,7 +166,7 @@ class Incompressible(PropertyModel):
         return self._point(T, self._P_from(T, h, field))
 
     def warnings(self, p: Point) -> list[str]:
-        out = []
+        out = super().warnings(p)
         if math.isnan(p.P):
             out.append("P is not fixed: an incompressible state given by v has no pressure, so P, h "
                        "and Z are left as NaN (u and s do not depend on P)")
