@@ -1,55 +1,36 @@
-"""Screen snapshots of each step at 80×24 (pytest-textual-snapshot's SVG screenshots).
+"""Screen snapshots of each step at 80×24, through pytest-textual-snapshot's ``snap_compare``.
 
-The snapshots live in ``tests/snapshots/test_tui_snapshots/``; update them
-with ``pytest tests/test_tui_snapshots.py --snapshot-update`` and read every
-changed SVG before committing it. Each test waits for the background work
-(check, solve, diagram) to finish and freezes the cursor blink, so a
-screenshot does not depend on timing. Record entries get a fixed clock and
-author. Expected output: the accepted snapshot files (no outside source).
+The snapshots live where the plugin keeps them (syrupy's
+``tests/__snapshots__/test_tui_snapshots/``); update them with
+``pytest tests/test_tui_snapshots.py --snapshot-update`` and read every
+changed SVG before committing it (a failing run writes an HTML report of the
+differences). Each test waits for the background work (check, solve,
+diagram) to finish and freezes the cursor blink, so a screenshot does not
+depend on timing. Record entries get a fixed clock and author (the review
+step shows their times). Expected output: the accepted snapshot files (no
+outside source).
 """
 
 from __future__ import annotations
 
 from datetime import datetime, timezone
-from pathlib import Path
 
 import pytest
-from pytest_textual_snapshot import SVGImageExtension
-from syrupy.extensions.base import AbstractSyrupyExtension
-from textual._doc import take_svg_screenshot
 
 from balance.worksheet import Worksheet
 from tests.test_tui_pilot import SAMPLES, SIZE, fill, in_row, ready, settle, wait_until
 from tui.app import JoulebookApp
 from tui.session import Session
 
-pytest.importorskip("balance.record")
 
-
-class StepSnapshots(SVGImageExtension):
-    """SVG snapshots kept in tests/snapshots/<test module>/."""
-
-    @classmethod
-    def dirname(cls, *, test_location) -> str:
-        tests_dir = Path(AbstractSyrupyExtension.dirname(test_location=test_location)).parent
-        return str(tests_dir / "snapshots" / test_location.basename)
-
-
-@pytest.fixture
-def snap(snapshot, monkeypatch, tmp_path):
-    """compare(app, run_before) -> whether the screenshot matches the stored one."""
+@pytest.fixture(autouse=True)
+def fixed_author_and_clock(monkeypatch, tmp_path):
+    """The same author and entry time on every run, and no user config file."""
     monkeypatch.setenv("JOULEBOOK_AUTHOR", "t.engineer")
     monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
     import balance.record.record as record_module
 
     monkeypatch.setattr(record_module, "utc_now", lambda: datetime(2025, 3, 4, 10, 2, 11, tzinfo=timezone.utc))
-    store = snapshot.use_extension(StepSnapshots)
-
-    def compare(app, run_before) -> bool:
-        svg = take_svg_screenshot(app=app, terminal_size=SIZE, run_before=run_before)
-        return store == svg
-
-    return compare
 
 
 def app_at(tmp_path, sample: str, step: str) -> JoulebookApp:
@@ -81,33 +62,34 @@ DEMO = "n2-buffer-into-receiver.toml"
 
 
 @pytest.mark.parametrize("step", ["purpose", "boundary", "fluid", "states", "constraints", "results", "review"])
-def test_demo_step(snap, tmp_path, step):
-    assert snap(app_at(tmp_path, DEMO, step), steady)
+def test_demo_step(snap_compare, tmp_path, step):
+    assert snap_compare(app_at(tmp_path, DEMO, step), terminal_size=SIZE, run_before=steady)
 
 
-def test_terms_step_with_a_heat_term(snap, tmp_path):
-    assert snap(app_at(tmp_path, "methane-piston-isothermal.toml", "terms"), steady)
+def test_terms_step_with_a_heat_term(snap_compare, tmp_path):
+    assert snap_compare(app_at(tmp_path, "methane-piston-isothermal.toml", "terms"), terminal_size=SIZE,
+                        run_before=steady)
 
 
-def test_results_pv_diagram(snap, tmp_path):
+def test_results_pv_diagram(snap_compare, tmp_path):
     async def run_before(pilot):
         await steady(pilot)
         await pilot.press("shift+tab", "right")  # from the balance to the tab bar, then P–v
         await settle(pilot)
 
-    assert snap(app_at(tmp_path, DEMO, "results"), run_before)
+    assert snap_compare(app_at(tmp_path, DEMO, "results"), terminal_size=SIZE, run_before=run_before)
 
 
-def test_help_on_the_states_step(snap, tmp_path):
+def test_help_on_the_states_step(snap_compare, tmp_path):
     async def run_before(pilot):
         await steady(pilot)
         await pilot.press("f1")
         await settle(pilot)
 
-    assert snap(app_at(tmp_path, DEMO, "states"), run_before)
+    assert snap_compare(app_at(tmp_path, DEMO, "states"), terminal_size=SIZE, run_before=run_before)
 
 
-def test_inline_message_for_a_bad_pressure(snap, tmp_path):
+def test_inline_message_for_a_bad_pressure(snap_compare, tmp_path):
     async def run_before(pilot):
         await steady(pilot)
         await fill(pilot, in_row("prop-P", "initial-0"), "150 bargg")
@@ -115,4 +97,4 @@ def test_inline_message_for_a_bad_pressure(snap, tmp_path):
         await settle(pilot)
         freeze(pilot.app)
 
-    assert snap(app_at(tmp_path, DEMO, "states"), run_before)
+    assert snap_compare(app_at(tmp_path, DEMO, "states"), terminal_size=SIZE, run_before=run_before)
