@@ -31,6 +31,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from .balances.control_volume import Unknown
 from .errors import InputError, SolveError, SpecificationError, TwoPhaseError
 from .explain import explain
 from .models.base import Point
@@ -44,6 +45,7 @@ from .worksheet import Worksheet
 TOLERANCE = 1e-9
 #: S_gen below -this × n R is an impossible process rather than round-off.
 SGEN_TOLERANCE = 1e-7
+AMOUNT = Unknown("amount")
 
 
 @dataclass(frozen=True)
@@ -84,7 +86,8 @@ class Result:
     equations: tuple[str, ...]
     warnings: tuple[str, ...]
     cautions: tuple[str, ...]
-    unknowns: dict[str, float] = field(default_factory=dict)
+    unknowns: dict[Unknown, float] = field(default_factory=dict)
+    """the value found for each unknown [J for heat and work, mol for the amount]"""
 
     @property
     def Q(self) -> float:
@@ -156,7 +159,7 @@ class _Solver:
         self.S_scale = n_guess * R
 
     def amount(self, lin: dict) -> float:
-        return self.p.n if self.p.n is not None else lin["amount n"]
+        return self.p.n if self.p.n is not None else lin[AMOUNT]
 
     def initial_sums(self, n: float):
         """Σ n_i u_i, Σ n_i s_i and Σ V_i of the initial compartments."""
@@ -193,13 +196,13 @@ class _Solver:
         p = self.p
         n = self.amount(lin)
         U1, S1, _ = self.initial_sums(n)
-        Q = sum(lin[f"Q '{h.name}'"] if h.Q is None else h.Q for h in p.heat)
-        W = sum(lin[f"W '{w.name}'"] if w.W_on is None else w.W_on for w in p.work)
+        Q = sum(lin[Unknown("heat", h.name)] if h.Q is None else h.Q for h in p.heat)
+        W = sum(lin[Unknown("work", w.name)] if w.W_on is None else w.W_on for w in p.work)
         energy = n * final.u - U1 + p.dKE + p.dPE - Q - W - self.boundary_work(final, n)
         out = [energy / self.E_scale]
         if p.reversible:
             q_over_t = sum(
-                (lin[f"Q '{h.name}'"] if h.Q is None else h.Q) / h.T_boundary for h in p.heat
+                (lin[Unknown("heat", h.name)] if h.Q is None else h.Q) / h.T_boundary for h in p.heat
             )
             out.append((n * final.s - S1 - q_over_t) / self.S_scale)
         if p.path == "polytropic":
@@ -222,7 +225,7 @@ class _Solver:
         rows = _best_rows(A, len(names))
         if rows is None:
             raise SolveError(
-                f"{', '.join(names)} cannot be found from these balances (they do not enter them independently)"
+                f"{', '.join(u.words() for u in names)} cannot be found from these balances (they do not enter them independently)"
             )
         x = np.linalg.solve(A[rows], -c[rows])
         lin = dict(zip(names, x))
@@ -325,10 +328,10 @@ def _result(s: _Solver, final_point: Point, lin: dict, method: str) -> Result:
     final = State(p.worksheet.final.name or "final", p.model, final_point, n)
     terms = []
     for h in p.heat:
-        value = lin[f"Q '{h.name}'"] if h.Q is None else h.Q
+        value = lin[Unknown("heat", h.name)] if h.Q is None else h.Q
         terms.append(Term("heat", h.name, value, h.Q is None, h.T_boundary, h.T_boundary_note))
     for w in p.work:
-        value = lin[f"W '{w.name}'"] if w.W_on is None else w.W_on
+        value = lin[Unknown("work", w.name)] if w.W_on is None else w.W_on
         terms.append(Term("work", w.name, value, w.W_on is None, detail=w.kind))
     if p.path != "given":
         terms.append(Term("boundary work", p.path, s.boundary_work(final_point, n), True, detail=p.path))

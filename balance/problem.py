@@ -12,6 +12,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
+from .balances.control_volume import Unknown
 from .errors import InputError, SpecificationError
 from .models import make_model
 from .models.base import PropertyModel
@@ -53,7 +54,7 @@ class Work:
 class Dof:
     """The degrees-of-freedom count, with the words that explain it."""
 
-    unknowns: tuple[str, ...]
+    unknowns: tuple[Unknown, ...]
     equations: tuple[str, ...]
     fixed: tuple[str, ...]
     """what fixes the final state, e.g. 'v by rigid'"""
@@ -97,12 +98,13 @@ class Problem:
     def dof(self) -> Dof:
         return count_dof(self)
 
-    def linear_unknowns(self) -> list[str]:
-        names = [f"Q '{h.name}'" for h in self.heat if h.Q is None]
-        names += [f"W '{w.name}'" for w in self.work if w.W_on is None]
+    def linear_unknowns(self) -> list[Unknown]:
+        """The unknowns that enter the balances linearly: heat, work and the amount."""
+        out = [Unknown("heat", h.name) for h in self.heat if h.Q is None]
+        out += [Unknown("work", w.name) for w in self.work if w.W_on is None]
         if self.n is None:
-            names.append("amount n")
-        return names
+            out.append(Unknown("amount"))
+        return out
 
     def equation_names(self) -> list[str]:
         eqs = ["energy balance (first law)"]
@@ -346,7 +348,7 @@ def _work(ws: Worksheet, i: int) -> Work:
 def count_dof(p: Problem) -> Dof:
     """Unknowns against equations, and what to do about a mismatch, in words."""
     missing = 2 - len(p.final_fixed)
-    state_unknowns = [f"final-state property {i + 1}" for i in range(missing)]
+    state_unknowns = [Unknown("state", str(i + 1)) for i in range(missing)]
     unknowns = tuple(state_unknowns + p.linear_unknowns())
     equations = tuple(p.equation_names())
     fixed = tuple(f"{k} by {why}" if why != "given" else f"{k} given" for k, why in p.final_sources.items())
@@ -358,7 +360,7 @@ def count_dof(p: Problem) -> Dof:
     elif nu > ne:
         free = [k for k in ("T", "P", "v") if k not in p.final_fixed]
         options = [f"{k}2" for k in free] if missing else []
-        options += [f"the value of {u}" for u in p.linear_unknowns()]
+        options += [f"the value of {u.words()}" for u in p.linear_unknowns()]
         msg = f"{head}: give {plural(nu - ne, 'more value')}: one of {', '.join(options) or 'the missing values'}"
         if not p.reversible and missing:
             msg += ", or add a constraint (isothermal, isobaric, reversible ...)"

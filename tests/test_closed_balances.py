@@ -11,6 +11,7 @@ import math
 
 import pytest
 
+from balance.balances.control_volume import Unknown
 from balance.closed import solve_worksheet
 from balance.errors import SolveError
 from balance.units import R
@@ -49,7 +50,7 @@ constraints = ["adiabatic", "reversible"]
 """)))
     T2 = 300.0 * 10.0 ** (R / CONSTANT_CP)
     assert r.final.point.T == pytest.approx(T2, rel=1e-9)
-    assert r.unknowns["W 'piston'"] == pytest.approx((CONSTANT_CP - R) * (T2 - 300.0), rel=1e-9)
+    assert r.unknowns[Unknown("work", "piston")] == pytest.approx((CONSTANT_CP - R) * (T2 - 300.0), rel=1e-9)
     assert abs(r.S_gen) < 1e-9
 
 
@@ -72,7 +73,7 @@ constraints = ["isothermal"]
     W = 3 * R * 350.0 * math.log(6.0)
     boundary = [t for t in r.terms if t.kind == "boundary work"][0]
     assert boundary.value == pytest.approx(W, rel=1e-9)
-    assert r.unknowns["Q 'bath'"] == pytest.approx(-W, rel=1e-9)
+    assert r.unknowns[Unknown("heat", "bath")] == pytest.approx(-W, rel=1e-9)
     assert r.S_gen == pytest.approx(0.0, abs=1e-9)
 
 
@@ -99,7 +100,7 @@ n = "1.25"
     assert r.final.point.T == pytest.approx(T2, rel=1e-9)
     W = 2 * R * (T2 - 290.0) / (k - 1)
     assert [t for t in r.terms if t.kind == "boundary work"][0].value == pytest.approx(W, rel=1e-9)
-    assert r.unknowns["Q 'wall'"] == pytest.approx(2 * (CONSTANT_CP - R) * (T2 - 290.0) - W, rel=1e-9)
+    assert r.unknowns[Unknown("heat", "wall")] == pytest.approx(2 * (CONSTANT_CP - R) * (T2 - 290.0) - W, rel=1e-9)
 
 
 def test_ideal_gas_mixing_compartments_is_energy_weighted():
@@ -241,4 +242,4 @@ constraints = ["rigid"]
 """)))
     assert ("cp", f"{CONSTANT_CP} J/(mol K)") in r.problem.species.overrides
     assert any("Overrides" in line for line in r.equations)
-    assert r.unknowns["Q 'h'"] == pytest.approx((CONSTANT_CP - R) * 10.0, rel=1e-12)
+    assert r.unknowns[Unknown("heat", "h")] == pytest.approx((CONSTANT_CP - R) * 10.0, rel=1e-12)

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import pytest
 
+from balance.balances.control_volume import Unknown
 from balance.closed import solve_worksheet
 from tests.helpers import SAMPLES, sample
 from tests.test_cautions import DISCLAIMER
@@ -34,7 +35,7 @@ def test_co2_cylinder_heat_matches_coolprop():
     u1 = CP.PropsSI("U", "T", 288.15, "D", rho, "CO2")
     u2 = CP.PropsSI("U", "T", 323.15, "D", rho, "CO2")
     P2 = CP.PropsSI("P", "T", 323.15, "D", rho, "CO2")
-    assert r.unknowns["Q 'from store air'"] == pytest.approx(15.0 * (u2 - u1), rel=1e-7)
+    assert r.unknowns[Unknown("heat", "from store air")] == pytest.approx(15.0 * (u2 - u1), rel=1e-7)
     assert r.final.point.P == pytest.approx(P2, rel=1e-7)
     assert r.initial[0].point.x == pytest.approx(CP.PropsSI("Q", "T", 288.15, "D", rho, "CO2"), rel=1e-7)
 

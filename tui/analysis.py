@@ -38,6 +38,7 @@ class Check:
     """the degrees-of-freedom line, or what stops the count"""
     statuses: dict[str, str]
     unknowns: tuple[str, ...] = ()
+    """what the balance will solve for, in words (``Q 'jacket'``, ``amount n``)"""
     equations: tuple[str, ...] = ()
     fixed: tuple[str, ...] = ()
     path: str = ""
@@ -174,7 +175,7 @@ def check(ws: Worksheet, visited: frozenset[str] = frozenset()) -> Check:
         prefix = f"not ready (step {step}): " if step else "not ready: "
         return Check(ws, False, prefix + str(exc), statuses(ws, visited, where), error_field=where)
     return Check(
-        ws, dof.ok, dof.message, statuses(ws, visited), unknowns=dof.unknowns, equations=dof.equations,
+        ws, dof.ok, dof.message, statuses(ws, visited), unknowns=tuple(u.words() for u in dof.unknowns), equations=dof.equations,
         fixed=dof.fixed, path=problem.path, constraints=problem.constraints,
     )
 

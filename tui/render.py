@@ -97,8 +97,9 @@ def dof_renderable(p: Problem, dof: Dof) -> Group:
     t = Table(box=box.SIMPLE_HEAD, title="Degrees of freedom", title_justify="left")
     t.add_column("unknowns")
     t.add_column("equations")
-    for i in range(max(len(dof.unknowns), len(dof.equations))):
-        t.add_row(dof.unknowns[i] if i < len(dof.unknowns) else "", dof.equations[i] if i < len(dof.equations) else "")
+    unknowns = [u.words() for u in dof.unknowns]
+    for i in range(max(len(unknowns), len(dof.equations))):
+        t.add_row(unknowns[i] if i < len(unknowns) else "", dof.equations[i] if i < len(dof.equations) else "")
     fixed = ", ".join(dof.fixed) or "nothing yet"
     style = "green" if dof.ok else "red"
     return Group(
