@@ -122,12 +122,18 @@ class IdealGasHeatCapacity:
         >>> round(cp, 6), round(h, 6), round(s, 6)
         (29.0, 2900.0, 8.387731)
         """
-        T = _arg(T)
-        log = math.log if isinstance(T, float) else np.log
+        if isinstance(T, float):
+            log = math.log
+            if self.constant_cp is None:
+                n = self.nasa
+                cp_R, h_RT, s_R = _nasa_terms(T, n.low if T <= n.T_mid else n.high, log)
+        else:
+            T, log = np.asarray(T, dtype=float), np.log
+            if self.constant_cp is None:
+                cp_R, h_RT, s_R = self.nasa.terms(T)
         if self.constant_cp is not None:
             c = self.constant_cp
             return c + 0.0 * T, c * (T - T_REF), c * log(T / T_REF)
-        cp_R, h_RT, s_R = self.nasa.terms(T)
         h_ref, s_ref = self._ref
         return R * cp_R, R * (T * h_RT - h_ref), R * (s_R - s_ref)
 

@@ -19,6 +19,11 @@ Both use the same Tc, Pc, ω (taken from CoolProp's PR backend). Our
 species' cp° is a quartic fitted to CoolProp HEOS's cp0 (the values do
 not matter for timing; Z is compared as a sanity check). The target is
 ours/CoolProp <= 1.0 per point.
+
+Then the scaling of the vectorised path alone: ``states_TP`` on 1e5 and on
+1e6 points of the same kind, best of 3 each; the cost per point at 1e6
+must be no worse than at 1e5, and the peak memory the call allocates
+(``tracemalloc``, which numpy reports to) at most twice its results'.
 """
 
 from __future__ import annotations
@@ -114,7 +119,37 @@ def main(n: int = 100_000) -> float:
           f"= {t_cp / n * 1e6:8.3f} µs per point  ({failed} points raised)")
     print(f"  ratio ours / CoolProp = {ratio:.3f}  (target <= 1.0: {'met' if ratio <= 1.0 else 'MISSED'})")
     print(f"  sanity: worst relative Z difference where CoolProp solved = {dZ:.1e}")
+    scaling(model)
     return ratio
+
+
+def points(model, n: int, seed: int):
+    rng = np.random.default_rng(seed)
+    T = rng.uniform(1.05, 3.0, n) * model.species.Tc
+    P = np.exp(rng.uniform(math.log(P_RANGE[0]), math.log(P_RANGE[1]), n))
+    return T, P
+
+
+def scaling(model) -> None:
+    import tracemalloc
+
+    print("  the vectorised path alone, supercritical gas (T, P):")
+    per_point = {}
+    for n in (100_000, 1_000_000):
+        T, P = points(model, n, SEED + 1)
+        t, out = best_of(3, lambda: model.states_TP(T, P))
+        results = sum(a.nbytes for a in out.values())
+        del out
+        tracemalloc.start()
+        model.states_TP(T, P)
+        _, peak = tracemalloc.get_traced_memory()
+        tracemalloc.stop()
+        per_point[n] = t / n
+        print(f"    {n:>9,} points: {t * 1e3:8.1f} ms = {t / n * 1e6:6.3f} µs per point; peak {peak / 2**20:6.1f} MiB "
+              f"for {results / 2**20:6.1f} MiB of results = {peak / results:.2f}x (target <= 2)")
+    r = per_point[1_000_000] / per_point[100_000]
+    print(f"    cost per point at 1e6 / at 1e5 = {r:.2f} (target <= 1.0: {'met' if r <= 1.0 else 'MISSED'}; "
+          "within a few per cent is noise)")
 
 
 if __name__ == "__main__":

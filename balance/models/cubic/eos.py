@@ -67,10 +67,11 @@ def z_roots(c2: float, c1: float, c0: float) -> tuple[float, float, int]:
 
 
 def _polish(z: float, c2: float, c1: float, c0: float) -> float:
+    """Two Newton steps on the cubic (:func:`.formulas.newton_terms`, written out: the scalar path's hot spot)."""
     for _ in range(2):
-        f, df = fm.newton_terms(z, c2, c1, c0)
+        df = (3.0 * z + 2.0 * c2) * z + c1
         if df != 0.0:
-            z -= f / df
+            z -= (((z + c2) * z + c1) * z + c0) / df
     return z
 
 
@@ -201,7 +202,8 @@ class Cubic(PropertyModel):
 
     def at_TP(self, T: float, P: float) -> Point:
         """The stable state at T [K], P [Pa]: of three roots, the one of lower fugacity."""
-        check_arguments(T=T, P=P)
+        if not (0.0 < T < math.inf and 0.0 < P < math.inf):
+            check_arguments(T=T, P=P)  # raises, naming the argument
         T, P = float(T), float(P)
         a3 = self.a_terms(T)
         v_lo, v_hi, n = self.volume_roots(T, P, a3[0])
@@ -216,7 +218,8 @@ class Cubic(PropertyModel):
 
     def at_Tv(self, T: float, v: float) -> Point:
         """The state at T [K] and molar volume v [m3/mol]; inside the dome a TwoPhaseError."""
-        check_arguments(T=T, v=v)
+        if not (0.0 < T < math.inf and 0.0 < v < math.inf):
+            check_arguments(T=T, v=v)  # raises, naming the argument
         T, v = float(T), float(v)
         if v <= self.b:
             raise InputError("v", self.below_b(v))

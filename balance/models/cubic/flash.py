@@ -247,10 +247,44 @@ def _on_isochore(m, v: float, key: str, target: float, field: str) -> Point:
         raise _cannot(m, field, f"{fmt_spec('v', v)} and {fmt_spec(key, target)}",
                       f" between {T_lo:g} K and {T_hi:g} K") from None
     if m.saturation_curve.contains(T, v):
-        sat = m.saturation_curve.at(T)
-        x = (v - sat[1]) / (sat[2] - sat[1]) if sat else None
-        raise m.wet_error(field, f"{fmt_spec('v', v)} with {fmt_spec(key, target)} (T = {T:.6g} K)", T, x)
+        T_wet, x = _wet_on_isochore(m, v, key, target, T)
+        raise m.wet_error(field, f"{fmt_spec('v', v)} with {fmt_spec(key, target)} (T = {T_wet:.6g} K)", T_wet, x)
     return m.point(T, v, "given volume")
+
+
+def _wet_on_isochore(m, v: float, key: str, target: float, T_inside: float) -> tuple[float, float | None]:
+    """(T, x) of the wet state with this v and key = target, for the refusal's words.
+
+    Along the isochore inside the dome the mixture's key rises with T; the
+    search runs from the fit's lowest T up to where v leaves the dome
+    (found by halving from T_inside, a temperature at which it is inside).
+    """
+    curve = m.saturation_curve
+    i = _INDEX[key]
+
+    def inside(T: float) -> bool:
+        sat = curve.at(T)
+        return sat is not None and sat[1] < v < sat[2]
+
+    def f(T: float) -> float:
+        P, v_l, v_v = curve.at(T)
+        if key == "P":
+            return P - target
+        x = (v - v_l) / (v_v - v_l)
+        y_l, y_v = m.tv(T, v_l)[i], m.tv(T, v_v)[i]
+        return y_l + x * (y_v - y_l) - target
+
+    lo, hi = T_inside, m.Tc_eos
+    for _ in range(60):
+        mid = 0.5 * (lo + hi)
+        lo, hi = (mid, hi) if inside(mid) else (lo, mid)
+    bottom = max(curve.T_low, m.T_bounds()[0])
+    try:
+        T = brent(f, bottom, lo, xtol=0.0, rtol=1e-12)
+    except (NoBracket, TypeError):
+        return T_inside, None
+    _, v_l, v_v = curve.at(T)
+    return T, (v - v_l) / (v_v - v_l)
 
 
 def _isochore_start(m, v: float, key: str, target: float, T_lo: float, T_hi: float) -> float:
@@ -258,9 +292,8 @@ def _isochore_start(m, v: float, key: str, target: float, T_lo: float, T_hi: flo
     if key == "P":
         K = m.tv(m.Tc_eos, v)
         T = m.Tc_eos + (target - K[0]) / K[5]
-    else:
-        T = 300.0
-    return min(max(T, T_lo * 1.0001), T_hi * 0.9999)
+        return min(max(T, T_lo * 1.0001), T_hi * 0.9999)
+    return _ideal_start(m, key, target, T_lo, T_hi, v=v)
 
 
 # -- fixed P ------------------------------------------------------------------------------
@@ -289,8 +322,14 @@ def _on_isobar(m, P: float, key: str, target: float, field: str) -> Point:
             return v - target, dv_dT
         return K[_INDEX[key]] - target, _d_dT(key, T, v, K) + _d_dv(key, T, v, K) * dv_dT
 
+    if branch == "gas":  # from the saturated end, along a branch on which key is smooth
+        T0 = T_lo * (1.0 + 1e-9)
+    elif branch == "liquid":
+        T0 = T_hi * (1.0 - 1e-9)
+    else:
+        T0 = _ideal_start(m, key, target, T_lo, T_hi, P=P)
     try:
-        T = newton_bracketed(fdf, T_lo, T_hi, flo=f_lo, fhi=f_hi, xtol=0.0, rtol=_TTOL)
+        T = newton_bracketed(fdf, T_lo, T_hi, T0, flo=f_lo, fhi=f_hi, xtol=0.0, rtol=_TTOL)
     except NoBracket:
         raise _cannot(m, field, f"{fmt_spec('P', P)} and {fmt_spec(key, target)}",
                       f" between {T_lo:g} K and {T_hi:g} K") from None
@@ -441,20 +480,30 @@ def _along_isentrope(m, s: float, key: str, target: float, field: str) -> Point:
     return m.point(T, state[1], "volume and T from the pair (equilibrium isentrope)")
 
 
-def _ideal_start(m, key: str, target: float, T_lo: float, T_hi: float) -> float:
-    """T where the ideal gas has u or h = target (departures neglected), inside the bracket."""
+def _ideal_start(m, key: str, target: float, T_lo: float, T_hi: float, P: float | None = None,
+                 v: float | None = None) -> float:
+    """T [K] where the ideal gas meets key = target (u or h; s or v at the given P or v),
+    inside the bracket: the departures neglected, a first point for Newton."""
     cp_ig = m.species.cp_ig
+    if key == "v":
+        T = P * target / R_GAS
+    elif key == "P":
+        T = target * v / R_GAS
+    else:
+        def fdf(T: float):
+            cp, h, s0 = cp_ig.terms(T)
+            if key == "h":
+                return h - target, cp
+            if key == "u":
+                return h - R_GAS * T - target, cp - R_GAS
+            if P is not None:
+                return s0 - R_GAS * math.log(P / P_REF) - target, cp / T
+            return s0 - R_GAS * math.log(R_GAS * T / (v * P_REF)) - target, (cp - R_GAS) / T
 
-    def fdf(T: float):
-        cp, h, _ = cp_ig.terms(T)
-        if key == "u":
-            return h - R_GAS * T - target, cp - R_GAS
-        return h - target, cp
-
-    try:
-        T = newton_bracketed(fdf, T_lo, T_hi, 300.0, xtol=0.0, rtol=1e-8)
-    except NoBracket:
-        return 0.5 * (T_lo + T_hi)
+        try:
+            T = newton_bracketed(fdf, T_lo, T_hi, min(max(300.0, T_lo * 1.0001), T_hi * 0.9999), xtol=0.0, rtol=1e-8)
+        except NoBracket:
+            return 0.5 * (T_lo + T_hi)
     return min(max(T, T_lo * 1.0001), T_hi * 0.9999)
 
 

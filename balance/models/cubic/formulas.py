@@ -98,9 +98,11 @@ def z_coefficients(A, B, eps: float, sig: float):
 
 def depressed(c2, c1, c0):
     """(p, q, discriminant, shift) of the depressed cubic t³ + p t + q, Z = t - shift."""
-    p = c1 - c2 * c2 / 3.0
-    q = 2.0 * c2 * c2 * c2 / 27.0 - c2 * c1 / 3.0 + c0
-    return p, q, (q / 2.0) ** 2 + (p / 3.0) ** 3, c2 / 3.0
+    shift = c2 / 3.0
+    p = c1 - c2 * shift
+    q = (2.0 * shift * shift - c1) * shift + c0
+    half, third = 0.5 * q, p / 3.0
+    return p, q, half * half + third * third * third, shift
 
 
 def one_root(q, disc, cbrt, sqrt):

@@ -140,13 +140,14 @@ def _clenshaw(x: float, c: list[float]) -> float:
 class _Piece:
     """One Chebyshev piece on [ta, tb] of t: ln P, ln v_liquid, ln v_vapour."""
 
-    __slots__ = ("ta", "tb", "coefficients", "dlnP")
+    __slots__ = ("ta", "tb", "coefficients", "c_lnP", "dlnP")
 
     def __init__(self, ta: float, tb: float, nodes: list[float], columns: list[list[float]]):
         self.ta, self.tb = ta, tb
         # rows of (c_lnP, c_lnvl, c_lnvv), degree 0 .. N, for one Clenshaw pass over all three
         self.coefficients = list(zip(*_cheb_fit([self.x(t) for t in nodes], columns)))
-        self.dlnP = _cheb_derivative([row[0] for row in self.coefficients])
+        self.c_lnP = [row[0] for row in self.coefficients]
+        self.dlnP = _cheb_derivative(self.c_lnP)
 
     def x(self, t: float) -> float:
         return (2.0 * t - self.ta - self.tb) / (self.tb - self.ta)
@@ -166,8 +167,7 @@ class _Piece:
     def lnP(self, t: float) -> tuple[float, float]:
         """ln P and d ln P / dt at t."""
         x = self.x(t)
-        return (_clenshaw(x, [row[0] for row in self.coefficients]),
-                _clenshaw(x, self.dlnP) * 2.0 / (self.tb - self.ta))
+        return _clenshaw(x, self.c_lnP), _clenshaw(x, self.dlnP) * 2.0 / (self.tb - self.ta)
 
 
 class SaturationCurve:
