@@ -120,8 +120,7 @@ def scan_root(f, grid, start: float | None = None, scale: float = 1.0, skip=(Val
     if start is None:
         order = range(n)
     else:
-        i0 = min(range(n), key=lambda i: abs(grid[i] - start))
-        order = sorted(range(n), key=lambda i: (abs(i - i0), i))
+        order = _outward(grid, start)
     jumps = 0
     for i in order:
         value(i)
@@ -135,6 +134,28 @@ def scan_root(f, grid, start: float | None = None, scale: float = 1.0, skip=(Val
                     continue
                 return x, jumps, skipped
     return None, jumps, skipped
+
+
+def _outward(grid, start: float):
+    """Indices of a monotone grid from the point nearest ``start`` outward: i0, i0-1, i0+1, i0-2 ..."""
+    n = len(grid)
+    ascending = grid[0] <= grid[-1]
+    lo, hi = 0, n - 1
+    while lo < hi:  # the first index at or past start, in the grid's own direction
+        mid = (lo + hi) // 2
+        if (grid[mid] < start) if ascending else (grid[mid] > start):
+            lo = mid + 1
+        else:
+            hi = mid
+    i0 = lo if lo == 0 or abs(grid[lo] - start) < abs(grid[lo - 1] - start) else lo - 1
+    yield i0
+    for k in range(1, n):
+        if i0 - k >= 0:
+            yield i0 - k
+        if i0 + k < n:
+            yield i0 + k
+        if i0 - k < 0 and i0 + k >= n:
+            return
 
 
 def newton_bracketed(fdf, lo: float, hi: float, x0: float | None = None, *, flo: float | None = None,
