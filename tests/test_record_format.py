@@ -344,24 +344,20 @@ def test_loading_fuzzed_files_never_loses_bytes(data):
         rec.verify()  # never raises, whatever it finds
 
 
-def _outcome(raw: bytes, fast: bool):
-    from balance.record import format as fmt
-
-    saved, fmt._FAST = fmt._FAST, fast
+def _outcome(raw: bytes, line_by_line: bool, structure_only: bool = False):
     try:
-        parsed = parse(raw, "fuzz.record")
-        return ("ok", [(e, e.line) for e in parsed.entries], parsed.torn, parsed.torn_line)
+        parsed = parse(raw, "fuzz.record", line_by_line=line_by_line, structure_only=structure_only)
+        return ("ok", [(e, e.line, e.body) for e in parsed.entries], parsed.good, parsed.torn, parsed.torn_line)
     except InputError as exc:
         return ("error", str(exc))
-    finally:
-        fmt._FAST = saved
 
 
 @settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(st.data())
-def test_the_fast_reader_agrees_with_the_line_by_line_reader(data):
+def test_the_fast_path_agrees_with_the_line_by_line_path(data):
     raw = data.draw(st.one_of(mutated(_base()), st.just(_base())))
-    assert _outcome(raw, True) == _outcome(raw, False)
+    assert _outcome(raw, False) == _outcome(raw, True)
+    assert _outcome(raw, False, True) == _outcome(raw, True, True)
 
 
 # -- records whose chain is intact but whose entries are odd (written by another program) ----
