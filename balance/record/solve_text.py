@@ -1,0 +1,157 @@
+"""The text of a solve entry: states, the energy and entropy balances, equations, warnings, cautions.
+
+Units: the rendering takes the molar SI values of ``Result.as_json()``
+(K, Pa, m**3/mol, J/mol, J/(mol*K), J, J/K) and shows them as engineers read
+them: T in K and °C, P in bar(a), intensive properties per kg (kJ/kg,
+kJ/(kg·K), m³/kg), energies in kJ, entropies in kJ/K. The tables' rows are
+also what the exported reports (:mod:`.export`) show.
+"""
+
+from __future__ import annotations
+
+from ..worksheet import CONVENTIONS
+from .plain import g, table, wrap
+
+
+def _q(d, key):
+    """The number of a quantity {"value", "unit"} in d, or None."""
+    v = d.get(key) if isinstance(d, dict) else None
+    x = v.get("value") if isinstance(v, dict) else None
+    return x if isinstance(x, (int, float)) and not isinstance(x, bool) else None
+
+
+def _list(data: dict, key: str) -> list:
+    v = data.get(key, [])
+    return v if isinstance(v, list) else [v]
+
+
+def _kJ(x) -> str:
+    return "—" if x is None else g(x / 1e3)
+
+
+def solve_text(data: dict, inputs_seq: int | None = None) -> str:
+    """The result of a solve entry: states, energy and entropy balances, equations,
+    warnings and cautions; or the error of a failed solve."""
+    basis = f" (inputs as of entry {inputs_seq})" if inputs_seq else ""
+    pins = ""
+    if "joulebook" in data:
+        pins = f"Solved with joulebook {data['joulebook']}; species data SHA-256 {data.get('species_data_sha256', '?')}"
+    if "error" in data:
+        out = [f"Solve failed{basis}: {data['error_kind']}"]
+        out += wrap(data["error"], "  ", "  ")
+        out.append("No result is recorded for these inputs.")
+        if pins:
+            out.append(pins.replace("Solved with", "Attempted with"))
+        return "\n".join(out)
+    out = [f"Solved{basis}: {data.get('title') or 'closed-system balance'}"]
+    if pins:
+        out.append(pins)
+    out.append(f"Species {data.get('species', '?')}, model {data.get('model', '?')}; "
+               f"{data.get('method', '')}")
+    if data.get("reference_state"):
+        out += wrap(f"Reference state: {data['reference_state']}", "", "  ")
+    conv = str(data.get("convention", ""))
+    out += wrap(f"Sign convention: {CONVENTIONS.get(conv, conv)}", "", "  ")
+    if isinstance(data.get("overrides"), dict) and data["overrides"]:
+        out.append("Overrides: " + ", ".join(f"{k} = {v}" for k, v in data["overrides"].items()))
+    out += ["", "States"]
+    out += _states(data.get("states", {}))
+    out += ["", "Energy balance (heat to the system positive; work "
+            + ("done by" if conv == "work-by-system" else "done on") + " the system positive)"]
+    out += table(*energy_rows(data), "llrl")
+    out += ["", "Entropy balance"]
+    out += table(*entropy_rows(data), "lr")
+    out += ["", "Equations with numbers"]
+    out += ["  " + str(e) for e in _list(data, "equations")]
+    out += ["", "Warnings"]
+    for w in _list(data, "warnings") or ["none"]:
+        out += wrap(str(w))
+    out += ["", "Cautions"]
+    for c in _list(data, "cautions") or ["none"]:
+        out += wrap(str(c))
+    return "\n".join(out)
+
+
+_STATE_ROWS = (
+    # label, unit shown, key, factor: value in SI (molar) -> shown; per_mass divides by M
+    ("T", "K", "T", 1.0, False),
+    ("T", "°C", "T", None, False),
+    ("P", "bar(a)", "P", 1e-5, False),
+    ("v", "m³/kg", "v", 1.0, True),
+    ("ρ", "kg/m³", "rho", 1.0, False),
+    ("u", "kJ/kg", "u", 1e-3, True),
+    ("h", "kJ/kg", "h", 1e-3, True),
+    ("s", "kJ/(kg·K)", "s", 1e-3, True),
+    ("cv", "kJ/(kg·K)", "cv", 1e-3, True),
+    ("cp", "kJ/(kg·K)", "cp", 1e-3, True),
+    ("Z", "", "Z", 1.0, False),
+    ("x", "", "x", 1.0, False),
+    ("n", "mol", "n", 1.0, False),
+    ("m", "kg", "m", 1.0, False),
+    ("V", "m³", "V", 1.0, False),
+)
+
+
+def state_rows(states: dict) -> tuple[list[str], list[list[str]]]:
+    """Headers and rows of the states table (display units; see the module docstring)."""
+    names = list(states)
+    rows = []
+    for label, unit, key, factor, per_mass in _STATE_ROWS:
+        row = [label, unit]
+        for name in names:
+            st = states[name] if isinstance(states[name], dict) else {}
+            v = _q(st, key)
+            if v is None:
+                row.append("—")
+                continue
+            if factor is None:  # °C
+                row.append(g(v - 273.15))
+                continue
+            if per_mass:
+                n, m = _q(st, "n"), _q(st, "m")
+                if not n or not m:
+                    row.append("—")
+                    continue
+                v = v / (m / n)
+            row.append(g(v * factor))
+        rows.append(row)
+    rows.append(["phase", "", *(str(states[n].get("phase", "—")) if isinstance(states[n], dict) else "—"
+                                for n in names)])
+    return ["", "unit", *names], rows
+
+
+def _states(states: dict) -> list[str]:
+    if not states:
+        return ["  (none)"]
+    headers, rows = state_rows(states)
+    return table(headers, rows, "ll" + "r" * (len(headers) - 2))
+
+
+def energy_rows(data: dict) -> tuple[list[str], list[list[str]]]:
+    """Headers and rows of the energy balance, term by term, in kJ."""
+    rows = []
+    for t in data.get("terms", []):
+        if not isinstance(t, dict):
+            continue
+        label = {"heat": "Q", "work": "W"}.get(str(t.get("kind")), "W boundary")
+        note = "solved" if t.get("solved") else "given"
+        if t.get("kind") == "heat" and _q(t, "T_boundary") is not None:
+            note += f", crosses at {g(_q(t, 'T_boundary'))} K"
+        elif t.get("detail"):
+            note += f", {t['detail']}"
+        rows.append([label, str(t.get("name", "")), _kJ(_q(t, "value")), note])
+    rows.append(["ΔU", "", _kJ(_q(data, "dU")), "n u2 - Σ n u1"])
+    rows.append(["  ideal-gas part", "", _kJ(_q(data, "dU_ideal_gas")), "Σ n (u_ig(T2) - u_ig(T1))"])
+    rows.append(["  departure part", "", _kJ(_q(data, "dU_departure")), "Σ n (u_dep2 - u_dep1)"])
+    residual = data.get("residual")
+    rows.append(["residual", "", "—" if not isinstance(residual, (int, float)) else f"{residual:.1e}",
+                 "relative, recomputed from the states"])
+    return ["term", "name", "kJ", ""], rows
+
+
+def entropy_rows(data: dict) -> tuple[list[str], list[list[str]]]:
+    """Headers and rows of the entropy balance, in kJ/K."""
+    rows = [["ΔS system", _kJ(_q(data, "dS_system"))],
+            ["ΔS surroundings", _kJ(_q(data, "dS_surroundings")) if "dS_surroundings" in data else "not evaluated"],
+            ["S_gen", _kJ(_q(data, "S_gen")) if "S_gen" in data else "not evaluated"]]
+    return ["term", "kJ/K"], rows
