@@ -161,3 +161,28 @@ def test_the_saturation_temperature_inverts_the_pressure():
     for Tr in (0.3, 0.5, 0.7, 0.9, 0.99, 0.9999):
         T = Tr * model.Tc_eos
         assert model.saturation_curve.T_at(model.saturation(T)[0]) == pytest.approx(T, rel=1e-11)
+
+
+@pytest.mark.parametrize("pair", [("T", "v"), ("P", "h"), ("h", "s")])
+def test_a_wet_refusal_names_the_callers_field_and_speaks_of_the_worksheet(pair):
+    """The refusal is said where the state was typed (the compartment), and advises the model by
+    its worksheet name, not a command-line flag."""
+    model = make_model("peng-robinson", lookup("CH4"))
+    T = 0.8 * model.Tc_eos
+    P, v_l, v_v = model.saturation(T)
+    liquid, vapour = model.point(T, v_l, ""), model.point(T, v_v, "")
+    wet = {k: 0.5 * (liquid.get(k) + vapour.get(k)) for k in ("v", "h", "s")}
+    wet.update(T=T, P=P)
+    with pytest.raises(TwoPhaseError) as err:
+        model.flash({k: wet[k] for k in pair}, field="initial 'cyl-1'")
+    assert err.value.field == "initial 'cyl-1'"
+    assert "--model" not in str(err.value) and "reference model" in str(err.value)
+
+
+def test_an_absurd_acentric_factor_is_refused_naming_the_override():
+    from balance.species import with_overrides
+
+    species, _ = with_overrides(lookup("N2"), {"omega": "1e308"})
+    with pytest.raises(InputError) as err:
+        make_model("peng-robinson", species)
+    assert err.value.field == "fluid.overrides.omega" and "between -1 and 5" in str(err.value)

@@ -127,8 +127,11 @@ class Cubic(PropertyModel):
         """co-volume [m3/mol]"""
         self.a_given = a is not None
         self.b_given = b is not None
+        if not -1.0 < sp.omega < 5.0:  # beyond any fluid's; 1e308 would overflow below
+            raise InputError("fluid.overrides.omega",
+                             f"must be an acentric factor between -1 and 5; got {sp.omega:g}")
         m0, m1, m2 = form.m
-        self.m = m0 + m1 * sp.omega + m2 * sp.omega**2
+        self.m = m0 + m1 * sp.omega + m2 * sp.omega * sp.omega
         """the Soave α's m(ω) [-]"""
         self._eps, self._sig = form.epsilon, form.sigma
         self._Tc, self._sqrt_Tc = sp.Tc, math.sqrt(sp.Tc)
@@ -216,24 +219,27 @@ class Cubic(PropertyModel):
             return self.point(T, v_hi, _VAPOUR_ROOT, res=res_hi)
         return self.point(T, v_hi, _ONE_ROOT, res=self.residual(T, v_hi, a3))
 
-    def at_Tv(self, T: float, v: float) -> Point:
-        """The state at T [K] and molar volume v [m3/mol]; inside the dome a TwoPhaseError."""
+    def at_Tv(self, T: float, v: float, field: str = "") -> Point:
+        """The state at T [K] and molar volume v [m3/mol]; inside the dome a TwoPhaseError.
+
+        Errors name ``field`` (a flash's), or the argument of a direct call.
+        """
         if not (0.0 < T < math.inf and 0.0 < v < math.inf):
             check_arguments(T=T, v=v)  # raises, naming the argument
         T, v = float(T), float(v)
         if v <= self.b:
-            raise InputError("v", self.below_b(v))
+            raise InputError(f"{field}.v" if field else "v", self.below_b(v))
         if self.saturation_curve.contains(T, v):
-            raise self.wet_error("state", f"T = {T:.2f} K, v = {v:.4g} m3/mol", T)
-        return self.point(T, v, "given volume")
+            raise self.wet_error(field or "state", f"T = {T:.2f} K, v = {v:.4g} m3/mol", T)
+        return self.point(T, v, "given volume", field=field or "state")
 
-    def point(self, T: float, v: float, how: str, note: str = "", res=None) -> Point:
+    def point(self, T: float, v: float, how: str, note: str = "", res=None, field: str = "state") -> Point:
         """The :class:`Point` at (T, v) [K, m3/mol], with how its root was chosen."""
         if res is None:
             res = self.residual(T, v)
         if not res[0] > 0:
-            raise TwoPhaseError("state", f"{self.label} gives a negative pressure at T = {T:.2f} K, v = {v:.4g} "
-                                         "m3/mol (a stretched liquid): no stable state")
+            raise TwoPhaseError(field, f"{self.label} gives a negative pressure at T = {T:.2f} K, v = {v:.4g} "
+                                       "m3/mol (a stretched liquid): no stable state")
         cal = fm.caloric(T, v, self.species.cp_ig.terms(T), res, math.log)
         P, Z, u, h, s, cv, cp, u_dep, h_dep, s_dep, ln_phi = fm.properties(T, v, cal, res, math.log)
         if T >= self.Tc_eos:
@@ -256,7 +262,7 @@ class Cubic(PropertyModel):
         return TwoPhaseError(
             field,
             f"{where} lies inside the two-phase region of {self.label}{ends}{quality}. A cubic gives no "
-            "wet states here: use the reference model (--model reference) for a liquid-vapour mixture",
+            "wet states: for a liquid-vapour mixture choose the reference model for the fluid",
         )
 
     def flash(self, specs: dict[str, float], field: str = "state") -> Point:

@@ -77,7 +77,7 @@ def solve_pair(m, keys: tuple[str, str], values: tuple[float, float], field: str
     """The state of cubic ``m`` fixed by a checked pair (SPEC_KEYS order, SI floats)."""
     (a, b), (va, vb) = keys, values
     if keys == ("T", "v"):
-        return m.at_Tv(va, vb)
+        return m.at_Tv(va, vb, field)
     if keys == ("T", "P"):
         return m.at_TP(va, vb)
     if keys == ("T", "h"):
@@ -152,7 +152,7 @@ def _on_isotherm(m, T: float, key: str, target: float, field: str) -> Point:
     v = _solve_v(m, T, key, target, v_lo, v_hi, f_lo, f_hi)
     if v is None:
         raise _cannot(m, field, f"{fmt_spec('T', T)} and {fmt_spec(key, target)}")
-    return m.point(T, v, "given T; volume from the pair")
+    return m.point(T, v, "given T; volume from the pair", field=field)
 
 
 def _isotherm_h(m, T: float, h: float, field: str) -> Point:
@@ -172,7 +172,7 @@ def _isotherm_h(m, T: float, h: float, field: str) -> Point:
             wet = f"a wet state at T = {T:.6g} K, x = {x:.6g}, which {m.label} cannot represent"
     for v_lo, v_hi in branches:
         for v in _all_roots_v(m, T, "h", h, v_lo, v_hi):
-            found.append(m.point(T, v, "given T; volume from the pair"))
+            found.append(m.point(T, v, "given T; volume from the pair", field=field))
     chosen = choose_largest_volume(("T", "h"), (T, h), found, wet)
     if chosen is None:
         if wet:
@@ -249,7 +249,7 @@ def _on_isochore(m, v: float, key: str, target: float, field: str) -> Point:
     if m.saturation_curve.contains(T, v):
         T_wet, x = _wet_on_isochore(m, v, key, target, T)
         raise m.wet_error(field, f"{fmt_spec('v', v)} with {fmt_spec(key, target)} (T = {T_wet:.6g} K)", T_wet, x)
-    return m.point(T, v, "given volume")
+    return m.point(T, v, "given volume", field=field)
 
 
 def _wet_on_isochore(m, v: float, key: str, target: float, T_inside: float) -> tuple[float, float | None]:
@@ -334,7 +334,7 @@ def _on_isobar(m, P: float, key: str, target: float, field: str) -> Point:
         raise _cannot(m, field, f"{fmt_spec('P', P)} and {fmt_spec(key, target)}",
                       f" between {T_lo:g} K and {T_hi:g} K") from None
     v, how = _branch_volume(m, T, P, branch)
-    return m.point(T, v, how)
+    return m.point(T, v, how, field=field)
 
 
 def _value(m, key: str, T: float, v: float) -> float:
@@ -394,7 +394,7 @@ def _on_isentrope(m, s: float, key: str, target: float, field: str) -> Point:
     """
     fast = _newton_pair(m, key, target, s)
     if fast is not None:
-        return m.point(*fast, "volume and T from the pair (Newton on T and v)")
+        return m.point(*fast, "volume and T from the pair (Newton on T and v)", field=field)
     return _along_isentrope(m, s, key, target, field)
 
 
@@ -477,7 +477,7 @@ def _along_isentrope(m, s: float, key: str, target: float, field: str) -> Point:
         raise _cannot(m, field, f"{fmt_spec(key, target)} and {fmt_spec('s', s)}")
     if state[0] == "wet":
         raise m.wet_error(field, f"{fmt_spec(key, target)} with {fmt_spec('s', s)} (T = {T:.6g} K)", T, state[1])
-    return m.point(T, state[1], "volume and T from the pair (equilibrium isentrope)")
+    return m.point(T, state[1], "volume and T from the pair (equilibrium isentrope)", field=field)
 
 
 def _ideal_start(m, key: str, target: float, T_lo: float, T_hi: float, P: float | None = None,
@@ -544,7 +544,7 @@ def _u_h(m, u: float, h: float, field: str) -> Point:
         if state[0] == "wet":
             wet.append((T, state[1]))
         else:
-            found.append(m.point(T, state[1], "volume and T from the pair"))
+            found.append(m.point(T, state[1], "volume and T from the pair", field=field))
     words = "; ".join(f"a wet state at T = {T:.6g} K, x = {x:.6g}, which {m.label} cannot represent"
                       for T, x in wet)
     chosen = choose_largest_volume(("u", "h"), (u, h), found, words)
