@@ -100,12 +100,11 @@ class Result:
     def as_json(self) -> dict:
         """Everything in the result; quantities as {"value", "unit"} (SI)."""
         p = self.problem
-        sign = 1.0 if p.convention == "work-on-system" else -1.0
         terms = []
         for t in self.terms:
-            value = t.value if t.kind == "heat" else sign * t.value
             terms.append({
-                "kind": t.kind, "name": t.name, "value": quantity(value, "J"), "solved": t.solved,
+                "kind": t.kind, "name": t.name, "value": quantity(p.convention.shown(t.kind, t.value), "J"),
+                "solved": t.solved,
                 "T_boundary": quantity(t.T_boundary, "K"), "detail": t.detail,
             })
         return {
@@ -113,7 +112,7 @@ class Result:
             "species": p.species.id,
             "model": p.model.name,
             "reference_state": p.model.reference_state,
-            "convention": p.convention,
+            "convention": p.convention.key,
             "overrides": dict(p.species.overrides),
             "states": {st.name: st.as_json() for st in (*self.initial, self.final)},
             "terms": terms,

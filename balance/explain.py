@@ -7,7 +7,6 @@ reviewer can follow every figure with a calculator.
 from __future__ import annotations
 
 from .units import R
-from .worksheet import CONVENTIONS
 
 
 def _kJ(x: float) -> str:
@@ -19,9 +18,8 @@ def explain(r) -> list[str]:
     p = r.problem
     f = r.final
     fp = f.point
-    sign = 1.0 if p.convention == "work-on-system" else -1.0
-    W_word = "W (on the system)" if sign > 0 else "W (by the system)"
-    lines = [f"Sign convention: {CONVENTIONS[p.convention]}"]
+    c = p.convention
+    lines = [f"Sign convention: {c.words}"]
     lines.append(f"Model: {p.model.label} for {p.species.name}; reference state: {p.model.reference_state}")
     lines += [f"  {e}" for e in p.model.equations()]
     if p.species.overrides:
@@ -51,15 +49,15 @@ def explain(r) -> list[str]:
     W = r.W_on
     ke = f" + ΔKE ({_kJ(p.dKE)})" if p.dKE else ""
     pe = f" + ΔPE ({_kJ(p.dPE)})" if p.dPE else ""
-    if sign > 0:
+    if c.on_system:
         lines.append(f"First law: ΔU{ke}{pe} = Q + W:  {_kJ(r.dU + p.dKE + p.dPE)} = {_kJ(Q)} + {_kJ(W)}")
     else:
-        lines.append(f"First law: ΔU{ke}{pe} = Q - W:  {_kJ(r.dU + p.dKE + p.dPE)} = {_kJ(Q)} - ({_kJ(-W)})")
+        W_by = c.shown("work", W)
+        lines.append(f"First law: ΔU{ke}{pe} = Q - W:  {_kJ(r.dU + p.dKE + p.dPE)} = {_kJ(Q)} - ({_kJ(W_by)})")
     for t in r.terms:
         if t.solved and t.kind != "boundary work":
-            value = t.value if t.kind == "heat" else sign * t.value
-            label = "Q" if t.kind == "heat" else W_word
-            lines.append(f"  solved: {label} '{t.name}' = {_kJ(value)}")
+            label = "Q" if t.kind == "heat" else f"W ({c.positive_work} the system)"
+            lines.append(f"  solved: {label} '{t.name}' = {_kJ(c.shown(t.kind, t.value))}")
     lines.append(f"Energy balance residual, recomputed from the states: {r.residual:.2e} (relative)")
     S1 = sum(st.S for st in r.initial)
     lines.append(f"ΔS_system = n s2 - Σ n s1 = {r.n:.6g} × {fp.s:.6g} - ({S1:.6g}) = {r.dS_system:.6g} J/K")

@@ -13,6 +13,7 @@ import math
 from dataclasses import dataclass, field
 
 from .balances.control_volume import Unknown
+from .convention import Convention
 from .errors import InputError, SpecificationError
 from .models import make_model
 from .models.base import PropertyModel
@@ -73,7 +74,7 @@ class Problem:
     species: Species
     model: PropertyModel
     p_atm: float
-    convention: str
+    convention: Convention
     initial: tuple[Compartment, ...]
     n: float | None
     """total amount [mol]; None when unknown"""
@@ -235,12 +236,13 @@ def prepare(ws: Worksheet) -> Problem:
                 )
     if not heat and "adiabatic" not in constraints:
         notes.append("no heat term is given, so Q = 0: declare 'adiabatic' to say so explicitly")
-    work = tuple(_work(ws, i) for i in range(len(ws.work)))
+    convention = Convention(ws.heading.convention)
+    work = tuple(_work(ws, i, convention) for i in range(len(ws.work)))
     dKE = parse(ws.process.dKE, "energy", "process.dKE") if ws.process.dKE else 0.0
     dPE = parse(ws.process.dPE, "energy", "process.dPE") if ws.process.dPE else 0.0
     return Problem(
         worksheet=ws, species=species, model=model, p_atm=p_atm,
-        convention=ws.heading.convention, initial=compartments, n=n_total,
+        convention=convention, initial=compartments, n=n_total,
         final_fixed=fixed, final_sources=sources, path=path, n_poly=n_poly, heat=heat,
         work=work, reversible=reversible, dKE=dKE, dPE=dPE,
         constraints=tuple(sorted(constraints)), notes=notes,
@@ -335,14 +337,12 @@ def _heat(ws: Worksheet, i: int, constraints: set, first) -> Heat:
     return Heat(h.name, Q, Tb, note)
 
 
-def _work(ws: Worksheet, i: int) -> Work:
+def _work(ws: Worksheet, i: int, convention: Convention) -> Work:
     w = ws.work[i]
     where = f"work '{w.name}'"
     if w.W.strip() == UNKNOWN:
         return Work(w.name, w.kind, None)
-    value = parse(w.W, "energy", f"{where}.W")
-    sign = 1.0 if ws.heading.convention == "work-on-system" else -1.0
-    return Work(w.name, w.kind, sign * value)
+    return Work(w.name, w.kind, convention.work_on(parse(w.W, "energy", f"{where}.W")))
 
 
 def count_dof(p: Problem) -> Dof:

@@ -24,6 +24,7 @@ from __future__ import annotations
 
 from dataclasses import asdict, dataclass, field, fields, replace
 
+from .convention import CONVENTIONS
 from .errors import InputError
 
 UNKNOWN = "?"
@@ -31,10 +32,6 @@ UNKNOWN = "?"
 #: Properties a state may be given by (and their accepted spellings).
 STATE_KEYS = ("T", "P", "v", "rho", "u", "h", "s", "x")
 AMOUNT_KEYS = ("n", "m", "V")
-CONVENTIONS = {
-    "work-on-system": "heat to the system and work done on the system are positive: ΔU = Q + W",
-    "work-by-system": "heat to the system and work done by the system are positive: ΔU = Q - W",
-}
 CONSTRAINTS = (
     "rigid",
     "adiabatic",

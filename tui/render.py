@@ -12,7 +12,6 @@ from balance.closed import Result
 from balance.problem import Dof, Problem
 from balance.species import Species
 from balance.state import State
-from balance.worksheet import CONVENTIONS
 
 from .display import show, unit_label
 
@@ -45,10 +44,9 @@ def states_table(states: list[State], units: str, title: str = "States") -> Tabl
 def result_renderable(r: Result, units: str = "metric") -> Group:
     p = r.problem
     head = p.worksheet.heading
-    sign = 1.0 if p.convention == "work-on-system" else -1.0
     title = Text(head.title or "Closed-system balance", style="bold")
     meta = Text(
-        f"{p.species.name} ({p.species.id}), {p.model.label}; convention: {CONVENTIONS[p.convention]}\n"
+        f"{p.species.name} ({p.species.id}), {p.model.label}; convention: {p.convention.words}\n"
         f"gauge pressures read with atmosphere = {p.p_atm / 1e5:.6g} bar",
         style="dim",
     )
@@ -63,7 +61,7 @@ def result_renderable(r: Result, units: str = "metric") -> Group:
     e.add_column(unit_label("E", units), justify="right")
     e.add_column("", style="dim")
     for term in r.terms:
-        value = term.value if term.kind == "heat" else sign * term.value
+        value = p.convention.shown(term.kind, term.value)
         label = "Q" if term.kind == "heat" else ("W" if term.kind == "work" else "W boundary")
         e.add_row(label, term.name, show(value, "E", units), "solved" if term.solved else "given")
     e.add_row("ΔU", "", show(r.dU, "E", units), "n u2 - Σ n u1")

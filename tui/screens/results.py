@@ -102,8 +102,8 @@ on pressure equipment without the cautions.
                 f"P = {show(f.point.P, 'P', u, 5)} {unit_label('P', u)}")
         for t in r.terms:
             if t.solved and t.kind != "boundary work":
-                sign = 1.0 if (t.kind == "heat" or r.problem.convention == "work-on-system") else -1.0
-                text += f"; {'Q' if t.kind == 'heat' else 'W'} '{t.name}' = {show(sign * t.value, 'E', u, 5)} {unit_label('E', u)}"
+                value = r.problem.convention.shown(t.kind, t.value)
+                text += f"; {'Q' if t.kind == 'heat' else 'W'} '{t.name}' = {show(value, 'E', u, 5)} {unit_label('E', u)}"
         if r.S_gen is not None:
             text += f"; S_gen = {show(r.S_gen, 'S', u, 4)} {unit_label('S', u)}"
         head = ("changed since this solve (ctrl+r): ", "bold $text-warning") if stale else ("solved: ", "bold $text-success")

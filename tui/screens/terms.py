@@ -7,6 +7,7 @@ from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.widgets import Button, Label, Static
 
+from balance.convention import Convention
 from balance.worksheet import HeatTerm, Worksheet, WorkTerm
 
 from ..widgets.heat_term_form import HeatTermForm
@@ -62,9 +63,8 @@ used as the boundary temperature of a hotter jacket.
 
     @staticmethod
     def _convention_note(ws: Worksheet) -> str:
-        on = ws.heading.convention == "work-on-system"
-        note = ("Heat into the system is positive; work done " + ("on" if on else "by")
-                + " the system is positive (step 1).")
+        direction = Convention(ws.heading.convention).positive_work
+        note = f"Heat into the system is positive; work done {direction} the system is positive (step 1)."
         return note + ("" if ws.heat or ws.work else " No terms: Q = 0 and W = 0.")
 
     def _heat_forms(self, ws: Worksheet):

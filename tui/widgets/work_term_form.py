@@ -6,6 +6,7 @@ from textual.app import ComposeResult
 from textual.containers import Grid, Horizontal
 from textual.widgets import Button, Select
 
+from balance.convention import Convention
 from balance.worksheet import WORK_KINDS, WorkTerm
 
 from .. import fields
@@ -27,7 +28,7 @@ class WorkTermForm(TermForm):
 
     @property
     def positive_direction(self) -> str:
-        return "on" if self.convention == "work-on-system" else "by"
+        return Convention(self.convention).positive_work
 
     def compose(self) -> ComposeResult:
         negative, magnitude = fields.split_sign(self.term.W)
