@@ -15,6 +15,10 @@ from ..units import P_REF, R
 from .base import Point, PropertyModel, check_arguments, fmt_spec
 
 
+#: The ideal gas is warned about where Peng-Robinson's |Z - 1| at the same T and P exceeds this.
+Z_TOLERANCE = 0.01
+
+
 class IdealGas(PropertyModel):
     """Ideal gas with temperature-dependent cp° (or a constant cp override)."""
 
@@ -103,10 +107,20 @@ class IdealGas(PropertyModel):
                 f"T = {p.T:.2f} K is outside the range of the cp° polynomial ({cp_ig.range_text}); "
                 "cp, h and s there are extrapolated"
             )
-        Tr, Pr = p.T / self.species.Tc, p.P / self.species.Pc
-        if Pr > 0.1 and Tr < 2.5:
+        Z = self._real_Z(p.T, p.P)
+        if Z is not None and abs(Z - 1.0) > Z_TOLERANCE:
             out.append(
-                f"ideal gas at Tr = {Tr:.2f}, Pr = {Pr:.2f}: real-gas effects are likely "
-                "significant; compare with a cubic or the reference model"
+                f"ideal gas at {p.T:.2f} K, {p.P / 1e5:.4g} bar, where Peng-Robinson gives Z = {Z:.4f} "
+                f"(|Z - 1| = {abs(Z - 1.0):.1%}, above {Z_TOLERANCE:.0%}): real-gas effects of that order; "
+                "compare with a cubic or the reference model"
             )
         return out
+
+    def _real_Z(self, T: float, P: float) -> float | None:
+        """Z [-] of Peng-Robinson at T [K], P [Pa]: the measure of how far from ideal the gas is."""
+        from . import make_model
+
+        try:
+            return make_model("peng-robinson", self.species).at_TP(T, P).Z
+        except InputError:
+            return None
