@@ -73,17 +73,15 @@ def advise(ws: Worksheet) -> Advice:
     """Z, Tr, Pr and phase at each state with two given properties, and a recommendation."""
     from .errors import TwoPhaseError
     from .models import canonical, make_model
-    from .species import lookup, with_overrides
-    from .state import read_specs
+    from .state import make_fluid, read_specs
 
     f = ws.fluid
     if not f.species.strip() or not f.model.strip():
         missing = "a species" if not f.species.strip() else "a property model"
         return Advice(f.model, problems=(f"choose {missing} to see how well the model fits",), adequate=False)
     try:
-        species, params = with_overrides(lookup(f.species, "fluid.species"), dict(f.overrides))
+        species, model = make_fluid(f.species, f.model, f.overrides)
         name = canonical(f.model)
-        model = make_model(name, species, params)
     except BalanceError as exc:
         return Advice(f.model, problems=(str(exc),), adequate=False)
     yardstick = make_model("peng-robinson", species) if name == "ideal-gas" else None

@@ -15,10 +15,9 @@ from dataclasses import dataclass, field
 from .balances.control_volume import Unknown
 from .convention import Convention
 from .errors import InputError, SpecificationError
-from .models import make_model
 from .models.base import PropertyModel
-from .species import Species, lookup, with_overrides
-from .state import State, flash, read_specs
+from .species import Species
+from .state import State, make_fluid, read_specs
 from .units import dimension_of, parse
 from .worksheet import UNKNOWN, Worksheet
 
@@ -125,8 +124,7 @@ def prepare(ws: Worksheet) -> Problem:
         raise InputError("fluid.species", "give the species, e.g. 'N2' (`joulebook species` lists them)")
     if not ws.fluid.model:
         raise InputError("fluid.model", "give the property model, e.g. 'peng-robinson'")
-    species, params = with_overrides(lookup(ws.fluid.species, "fluid.species"), dict(ws.fluid.overrides))
-    model = make_model(ws.fluid.model, species, params)
+    species, model = make_fluid(ws.fluid.species, ws.fluid.model, ws.fluid.overrides)
     constraints = set(ws.process.constraints)
     if "free-expansion" in constraints:
         constraints |= {"rigid", "adiabatic"}

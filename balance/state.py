@@ -10,10 +10,14 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import TYPE_CHECKING, Mapping
 
 from .errors import InputError
 from .models.base import Point, PropertyModel
 from .units import P_ATM, dimension_of, parse
+
+if TYPE_CHECKING:
+    from .species import Species
 
 #: For each property a person may give: the dimensions it is read as.
 SPEC_DIMENSIONS = {
@@ -146,3 +150,19 @@ def flash(model: PropertyModel, name: str = "state", n: float = 1.0, **specs: fl
     """
     point = model.flash(specs, field=name)
     return State(name=name, model=model, point=point, n=n)
+
+
+def make_fluid(species: str, model: str, overrides: Mapping[str, str] | None = None, *,
+               fields: tuple[str, str, str] = ("fluid.species", "fluid.model", "fluid.overrides"),
+               ) -> tuple[Species, PropertyModel]:
+    """The species (with a worksheet's overrides applied) and the property model for it.
+
+    The one place the pair is built, for a worksheet's problem, the model's
+    adequacy advice and the command line's ``state``. ``fields`` name the
+    species, the model and the overrides in errors. Raises InputError.
+    """
+    from .models import make_model
+    from .species import lookup, with_overrides
+
+    sp, params = with_overrides(lookup(species, fields[0]), dict(overrides or {}), fields[2])
+    return sp, make_model(model, sp, params, field=fields[1])

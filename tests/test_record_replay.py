@@ -11,8 +11,7 @@ from __future__ import annotations
 
 import pytest
 
-from balance.record import Record
-from balance.record import replay as replay_module
+from balance.record import DEFAULT_TOLERANCE, Record
 from balance.record.replay import compare, same_text
 from tests.test_record_support import new_record, sample_names
 from tests.test_record_signing import reseal
@@ -42,15 +41,19 @@ def test_a_changed_recorded_number_does_not_reproduce(tmp_path):
     assert any(line.startswith("  states.settled.T: recorded 250 K, now 262.38") for line in report.lines())
 
 
-def test_another_version_and_species_data_are_listed(tmp_path, monkeypatch):
-    real = replay_module.pins()
-    from balance.record import record as record_module
+def test_another_version_and_species_data_are_listed(tmp_path):
+    from balance import __version__, api
 
-    old = {"joulebook": "0.0.9", "species_data_sha256": "0" * 64}
-    monkeypatch.setattr(replay_module, "pins", lambda: old)
-    monkeypatch.setattr(record_module, "pins", lambda: old)
-    rec = new_record(tmp_path)
-    monkeypatch.setattr(replay_module, "pins", lambda: real)
+    real = api.pins()
+    data = new_record(tmp_path).path.read_bytes()
+    # the record as another joulebook with other species data wrote it: the opening and the
+    # solve entry pin both, in their text and their data
+    older = data.replace(f'joulebook = "{__version__}"'.encode(), b'joulebook = "0.0.9"')
+    older = older.replace(f"with joulebook {__version__}".encode(), b"with joulebook 0.0.9")
+    older = older.replace(real["species_data_sha256"].encode(), b"0" * 64)
+    assert older.count(b"0.0.9") == 4 and older.count(b"0" * 64) == 4
+    (tmp_path / "older.jbk").write_bytes(reseal(older))
+    rec = Record.load(tmp_path / "older.jbk")
     report = rec.replay()
     assert report.ok  # the numbers still reproduce ...
     paths = [d.path for d in report.pins]  # ... and what differs is listed
@@ -92,7 +95,7 @@ def test_numbers_in_text_are_compared_at_printed_precision():
 def test_the_command_line_states_the_same_default_tolerance():
     from tui import record_cli
 
-    assert record_cli.DEFAULT_TOLERANCE == replay_module.DEFAULT_TOLERANCE
+    assert record_cli.DEFAULT_TOLERANCE == DEFAULT_TOLERANCE
 
 
 def test_replay_on_the_command_line(tmp_path, capsys):

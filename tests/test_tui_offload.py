@@ -113,7 +113,9 @@ async def _drive(folder: Path) -> None:
         steam.append_solve()
         report["steam"] = str(steam.path)
         try:  # an error of the model's, raised in the process
-            offload.solve(_wet_above_critical(ws))
+            from balance import api
+
+            offload.call("reference", api.solve, _wet_above_critical(ws))
         except BalanceError as exc:
             report["refused"] = [type(exc).__name__, str(exc)]
     report["coolprop"] = "CoolProp" in sys.modules
@@ -213,8 +215,9 @@ def test_the_app_process_never_imports_coolprop(run):
     assert run["children"] == []  # the process was shut down when the app closed
 
 
-def test_solve_data_worked_out_for_older_sections_is_not_recorded(tmp_path, author):
+def test_a_solve_of_older_sections_is_not_recorded(tmp_path, author):
     from balance.record.replay import solve_data
+    from tui.analysis import solve
 
     session = Session.from_worksheet(Worksheet.load(SAMPLES / "n2-buffer-into-receiver.toml"), tmp_path / "n2.jbk")
     heading = session.worksheet.heading
@@ -224,10 +227,9 @@ def test_solve_data_worked_out_for_older_sections_is_not_recorded(tmp_path, auth
     session.edit(session.worksheet.with_(heading=replace(heading, title="second change")))
     session.commit()
     entries = len(session.entries())
-    assert session.append_solve(solve_data(older), older) is None  # worked out before the second commit
+    assert session.append_solve(solve(older)) is None  # solved before the second commit
     assert len(session.entries()) == entries
-    now = session.solve_due()
-    entry = session.append_solve(solve_data(now), now)
+    entry = session.append_solve(solve(session.worksheet))  # as the app's solve worker does
     # the record's own solve of what it holds (solve_data here) is the reference
     assert entry.kind == "solve" and entry.data == solve_data(session.record.sections())
     assert session.solve_due() is None

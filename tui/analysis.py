@@ -3,89 +3,77 @@
 Every function here takes a :class:`~balance.worksheet.Worksheet` (or a
 result) and returns a frozen answer the screens only display. They are
 called from Textual thread workers, or for the reference model in its own
-process (:mod:`tui.offload`): they may be slow and must never touch the UI.
+process (:func:`tui.offload.call`): they may be slow and must never touch
+the UI. Each goes through the façade, :mod:`balance.api`:
 
 * :func:`check`    — degrees of freedom in words, and each step's status
-* :func:`solve`    — the balance, through :func:`balance.closed.solve`
-* :func:`trace`    — the diagrams' paths, through :func:`balance.paths.trace`
+* :func:`solve`    — the balance as the record holds it (:func:`balance.api.attempt`)
+* :func:`trace`    — the diagrams' paths (:func:`balance.api.trace`)
 
 The engineering judgement lives in ``balance``: the model's adequacy in
-:func:`balance.adequacy.advise`, the diagrams' paths in
-:func:`balance.paths.trace`; the app calls them from the same workers.
+:func:`balance.api.advise`, the diagrams' paths in :func:`balance.api.trace`.
 """
 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field, fields, replace
 
-from balance.errors import BalanceError, InputError
+from balance import api
+from balance.errors import InputError
 from balance.worksheet import UNKNOWN, Worksheet
 
-from . import fields
+from . import fields as field_checks
 
 COMPLETE, INCOMPLETE, INVALID = "complete", "incomplete", "invalid"
 
 
 @dataclass(frozen=True)
-class Check:
-    """Degrees of freedom and step statuses for one worksheet."""
+class Check(api.Check):
+    """The façade's check of a worksheet, with each step's status."""
 
-    worksheet: Worksheet
-    ready: bool
-    """the problem is well posed: as many unknowns as equations"""
-    message: str
-    """the degrees-of-freedom line, or what stops the count"""
-    statuses: dict[str, str]
-    unknowns: tuple[str, ...] = ()
-    """what the balance will solve for, in words (``Q 'jacket'``, ``amount n``)"""
-    equations: tuple[str, ...] = ()
-    fixed: tuple[str, ...] = ()
-    path: str = ""
-    constraints: tuple[str, ...] = ()
-    """constraints in force, with the ones implied (free expansion ⇒ rigid, adiabatic)"""
-    error_field: str = ""
+    statuses: dict[str, str] = field(default_factory=dict)
 
 
 # -- field problems, shared with the inline validators ------------------------------
 def heading_problems(ws: Worksheet) -> list[str]:
-    msg = fields.problem("pressure", ws.heading.atmosphere, "atmosphere")
+    msg = field_checks.problem("pressure", ws.heading.atmosphere, "atmosphere")
     return [msg] if msg else []
 
 
 def state_problems(ws: Worksheet) -> list[str]:
-    p_atm = fields.atmosphere(ws.heading.atmosphere)
+    p_atm = field_checks.atmosphere(ws.heading.atmosphere)
     out = []
     for i, s in enumerate(ws.initial):
         where = f"initial '{s.name or i + 1}'"
         for key, text in s.props.items():
-            out.append(fields.problem(key, text, f"{key} ({where})", p_atm=p_atm))
+            out.append(field_checks.problem(key, text, f"{key} ({where})", p_atm=p_atm))
         for key, text in s.amount.items():
-            out.append(fields.problem(key, text, f"{key} ({where})", allow_unknown=key in ("n", "m"),
+            out.append(field_checks.problem(key, text, f"{key} ({where})", allow_unknown=key in ("n", "m"),
                                       p_atm=p_atm, positive=True))
     for key, text in ws.final.props.items():
-        out.append(fields.problem(key, text, f"{key} (final)", allow_unknown=True, p_atm=p_atm))
+        out.append(field_checks.problem(key, text, f"{key} (final)", allow_unknown=True, p_atm=p_atm))
     for key, text in ws.final.amount.items():
-        out.append(fields.problem(key, text, f"{key} (final)", allow_unknown=True, positive=True))
+        out.append(field_checks.problem(key, text, f"{key} (final)", allow_unknown=True, positive=True))
     return [m for m in out if m]
 
 
 def term_problems(ws: Worksheet) -> list[str]:
     out = []
     for h in ws.heat:
-        out.append(fields.problem("energy", h.Q, f"Q ('{h.name}')", allow_unknown=True, required=True))
-        out.append(fields.problem("temperature", h.T_boundary, f"T boundary ('{h.name}')", positive=True))
+        out.append(field_checks.problem("energy", h.Q, f"Q ('{h.name}')", allow_unknown=True, required=True))
+        out.append(field_checks.problem("temperature", h.T_boundary, f"T boundary ('{h.name}')", positive=True))
     for w in ws.work:
-        out.append(fields.problem("energy", w.W, f"W ('{w.name}')", allow_unknown=True, required=True))
+        out.append(field_checks.problem("energy", w.W, f"W ('{w.name}')", allow_unknown=True, required=True))
     return [m for m in out if m]
 
 
 def process_problems(ws: Worksheet) -> list[str]:
     pr = ws.process
     out = [
-        fields.problem("dimensionless", pr.n, "polytropic n", required="polytropic" in pr.constraints),
-        fields.problem("energy", pr.dKE, "ΔKE"),
-        fields.problem("energy", pr.dPE, "ΔPE"),
+        field_checks.problem("dimensionless", pr.n, "polytropic n", required="polytropic" in pr.constraints),
+        field_checks.problem("energy", pr.dKE, "ΔKE"),
+        field_checks.problem("energy", pr.dPE, "ΔPE"),
     ]
     return [m for m in out if m]
 
@@ -163,43 +151,35 @@ def step_of_field(name: str) -> int | None:
 
 
 def check(ws: Worksheet, visited: frozenset[str] = frozenset()) -> Check:
-    """Prepare the problem and count its degrees of freedom; never raises for bad input."""
-    from balance.problem import prepare
-
-    try:
-        problem = prepare(ws)
-        dof = problem.dof
-    except BalanceError as exc:
-        where = getattr(exc, "field", "")
-        step = step_of_field(where)
-        prefix = f"not ready (step {step}): " if step else "not ready: "
-        return Check(ws, False, prefix + str(exc), statuses(ws, visited, where), error_field=where)
-    return Check(
-        ws, dof.ok, dof.message, statuses(ws, visited), unknowns=tuple(u.words() for u in dof.unknowns), equations=dof.equations,
-        fixed=dof.fixed, path=problem.path, constraints=problem.constraints,
-    )
+    """The degrees of freedom (:func:`balance.api.check`) and the steps' statuses; never raises for bad input."""
+    counted = api.check(ws)
+    answer = Check(**{f.name: getattr(counted, f.name) for f in fields(api.Check)},
+                   statuses=statuses(ws, visited, counted.error_field))
+    if not counted.error:
+        return answer
+    step = step_of_field(counted.error_field)
+    prefix = f"not ready (step {step}): " if step else "not ready: "
+    return replace(answer, message=prefix + counted.error)
 
 
 # -- solving --------------------------------------------------------------------------
-def solve(ws: Worksheet):
-    """The solved balance (:class:`balance.closed.Result`); raises BalanceError."""
-    from balance.closed import solve_worksheet
-
-    return solve_worksheet(ws)
+def solve(source: Worksheet | dict) -> api.Attempt:
+    """The balance solved as the record holds it (the worksheet's sections), so that the
+    record's solve entry is this very solve (:func:`balance.api.entry_data`); never raises
+    for bad input or a failed solve."""
+    return api.attempt(source.to_dict() if isinstance(source, Worksheet) else source)
 
 
 def trace(result):
-    """The P-v and T-s diagrams' lines (:class:`balance.paths.Trace`); raises BalanceError.
+    """The P-v and T-s diagrams' lines (:func:`balance.api.trace`); raises BalanceError.
 
     numpy's floating-point warnings are off while the paths are sampled:
     the lines are a sketch, and a terminal app has nowhere to print them.
     """
     import numpy as np
 
-    from balance.paths import trace as paths_trace
-
     with np.errstate(all="ignore"):
-        return paths_trace(result)
+        return api.trace(result)
 
 
 def sig(x: float, digits: int = 4) -> str:

@@ -267,11 +267,8 @@ class JoulebookApp(App):
     def _check_worker(self, ws: Worksheet, version: int, visited: frozenset) -> None:
         from .analysis import Check, check, statuses
 
-        if not self._slow(ws):
-            self.post_message(Checked(version, check(ws, visited)))
-            return
         try:
-            answer = offload.check(ws, visited)
+            answer = offload.call(ws.fluid.model, check, ws, visited)
         except offload.OffloadError as exc:
             self.notify(str(exc), title="not checked", severity="error", timeout=10, markup=False)
             answer = Check(ws, False, f"not checked: {exc}", statuses(ws, visited))
@@ -319,13 +316,11 @@ class JoulebookApp(App):
 
     @work(thread=True, exclusive=True, group="advice", exit_on_error=False)
     def _advice_worker(self, ws: Worksheet) -> None:
-        from balance.adequacy import Advice, advise
+        from balance import api
+        from balance.adequacy import Advice
 
-        if not self._slow(ws):
-            self.post_message(Advised(ws, advise(ws)))
-            return
         try:
-            answer = offload.advise(ws)
+            answer = offload.call(ws.fluid.model, api.advise, ws)
         except offload.OffloadError as exc:
             answer = Advice(ws.fluid.model, problems=(str(exc),), adequate=False)
         self.post_message(Advised(ws, answer))
@@ -440,31 +435,28 @@ class JoulebookApp(App):
     def _solve_worker(self, ws: Worksheet) -> None:
         from . import analysis
 
-        via = offload if self._slow(ws) else analysis
         t0 = time.perf_counter()
         try:
-            result = via.solve(ws)
+            solved = offload.call(ws.fluid.model, analysis.solve, ws)
         except offload.OffloadError as exc:  # not solved at all: nothing to record
             self.post_message(Solved(Outcome(ws, error=str(exc), seconds=time.perf_counter() - t0)))
             return
-        except BalanceError as exc:
-            self.post_message(Solved(Outcome(ws, error=str(exc), seconds=time.perf_counter() - t0)))
-            self._record_solve()
+        self.post_message(Solved(Outcome(ws, solved.result, solved.message, seconds=time.perf_counter() - t0)))
+        self._record_solve(solved)  # the record files this very solve
+        if solved.result is None:
             return
-        self.post_message(Solved(Outcome(ws, result, seconds=time.perf_counter() - t0)))
-        self._record_solve()
         try:
-            drawn = via.trace(result)
+            drawn = offload.call(ws.fluid.model, analysis.trace, solved.result)
         except BalanceError as exc:
             self.notify(f"diagram not drawn: {exc}", severity="warning", markup=False)
             drawn = None
         self.post_message(Traced(ws, drawn))
 
-    def _record_solve(self) -> None:
-        """Append the solve to the record (from a worker: the record's worksheet is solved
-        again, by :meth:`Session.append_solve`)."""
+    def _record_solve(self, solved=None) -> None:
+        """Append the solve to the record, from a worker: ``solved`` as it is (the one
+        shown), or without it the record's due solve, worked out by :meth:`Session.append_solve`."""
         try:
-            entry = self.session.append_solve()
+            entry = self.session.append_solve(solved)
         except BalanceError as exc:
             self.post_message(Recorded(None, str(exc)))
             return

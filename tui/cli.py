@@ -47,12 +47,11 @@ def sample_path(name: str) -> str:
 
 # -- subcommands ------------------------------------------------------------------
 def cmd_solve(args) -> int:
-    from balance.closed import solve_worksheet
-    from balance.worksheet import Worksheet
+    from balance import api
 
-    result = solve_worksheet(Worksheet.load(args.file))
+    result = api.solve(Path(args.file))
     if args.json:
-        print(json.dumps(result.as_json(), indent=2, ensure_ascii=False))
+        print(json.dumps(api.as_json(result), indent=2, ensure_ascii=False))
     else:
         from .render import result_renderable
 
@@ -61,10 +60,9 @@ def cmd_solve(args) -> int:
 
 
 def cmd_check(args) -> int:
-    from balance.problem import prepare
-    from balance.worksheet import Worksheet
+    from balance import api
 
-    problem = prepare(Worksheet.load(args.file))
+    problem = api.prepare(Path(args.file))
     dof = problem.dof
     from .render import dof_renderable
 
@@ -73,13 +71,11 @@ def cmd_check(args) -> int:
 
 
 def cmd_state(args) -> int:
-    from balance.models import make_model
-    from balance.species import lookup, with_overrides
+    from balance import api
     from balance.state import State, read_specs
 
     overrides = dict(_pairs(args.override, "--override"))
-    species, params = with_overrides(lookup(args.fluid, "FLUID"), overrides, "--override")
-    model = make_model(args.model, species, params, field="--model")
+    species, model = api.fluid(args.fluid, args.model, overrides, fields=("FLUID", "--model", "--override"))
     props = dict(_pairs(args.given, "--given"))
     specs = read_specs(props, species.M, "--given")
     if len(specs) != 2:
@@ -149,12 +145,12 @@ def _announce_reference_solve(target: str | None) -> None:
     waits for its process (seconds), so say so rather than sit silent."""
     if not (target and target.endswith(".toml")):
         return
-    from balance.worksheet import Worksheet
+    from balance import api
 
     from .offload import uses_reference
 
     try:
-        model = Worksheet.load(target).fluid.model
+        model = api.read(Path(target)).fluid.model
     except BalanceError:
         return  # opening it reports the problem
     if uses_reference(model):

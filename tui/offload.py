@@ -3,8 +3,8 @@
 Importing CoolProp holds the interpreter lock for 1.5-3 s, so a thread
 worker alone does not keep the app live: every thread, the UI's too, waits
 for the import. Reference-model work (the degrees-of-freedom check, the
-adequacy advice, the solve, the diagrams, a record's solve data) therefore
-runs in one worker process: a ``ProcessPoolExecutor`` of one, started with
+adequacy advice, the solve, the diagrams) therefore runs in one worker
+process, chosen in one place (:func:`call`): a ``ProcessPoolExecutor`` of one, started with
 *spawn* (a fork would copy the app's threads' locks in whatever state they
 are in). The app's thread workers submit to it and wait; waiting releases
 the lock, so the UI stays live.
@@ -12,7 +12,8 @@ the lock, so the UI stays live.
 Answers come back pickled. A pickled
 :class:`~balance.models.reference.Reference` leaves its CoolProp state behind
 and takes its constants and reference state along, and the equations and
-warnings of a result are text, so showing an answer needs no CoolProp.
+warnings of a result are text, so showing an answer, and filing it in the
+record (:func:`balance.api.entry_data`), needs no CoolProp.
 
 Errors: a :class:`~balance.errors.BalanceError` raised in the process comes
 back as a BalanceError with the same message (its subclasses take arguments
@@ -58,8 +59,7 @@ def _quiet() -> None:
 
 def _warm() -> None:
     """Load the domain, the unit registry and CoolProp before the first job."""
-    from balance import adequacy, paths  # noqa: F401
-    from balance.record import replay  # noqa: F401
+    from balance import adequacy, closed, paths  # noqa: F401
     from balance.species import catalogue
     from balance.units import registry
 
@@ -201,36 +201,10 @@ def shutdown() -> None:
     _process.shutdown()
 
 
-def check(ws, visited: frozenset[str] = frozenset()):
-    """:func:`tui.analysis.check` in the process."""
-    from . import analysis
-
-    return _process.call(analysis.check, ws, visited)
-
-
-def advise(ws):
-    """:func:`balance.adequacy.advise` in the process."""
-    from balance import adequacy
-
-    return _process.call(adequacy.advise, ws)
-
-
-def solve(ws):
-    """:func:`tui.analysis.solve` in the process; raises BalanceError."""
-    from . import analysis
-
-    return _process.call(analysis.solve, ws)
-
-
-def trace(result):
-    """:func:`tui.analysis.trace` in the process; raises BalanceError."""
-    from . import analysis
-
-    return _process.call(analysis.trace, result)
-
-
-def solve_data(sections: dict) -> dict:
-    """A record's solve-entry data for these sections (:func:`balance.record.replay.solve_data`)."""
-    from balance.record import replay
-
-    return _process.call(replay.solve_data, sections)
+def call(model: str, job, *args):
+    """``job(*args)``: in the reference-model process when ``model`` (a worksheet's model
+    text) names the reference model, else here. The one place the app decides where
+    domain work runs; ``job`` is a module-level function (it is pickled by name)."""
+    if uses_reference(model):
+        return _process.call(job, *args)
+    return job(*args)

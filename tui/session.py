@@ -31,6 +31,7 @@ import threading
 from dataclasses import asdict, dataclass, field
 from pathlib import Path
 
+from balance import api
 from balance.errors import InputError
 from balance.worksheet import (
     Fluid,
@@ -83,13 +84,17 @@ def record_module():
     return record
 
 
-def _solve_data(sections: dict) -> dict:
-    """A solve entry's data for a record's sections: the reference model's in its own process."""
-    if offload.uses_reference(sections.get("fluid", {}).get("model", "")):
-        return offload.solve_data(sections)
-    from balance.record.replay import solve_data
+def solve_sections(sections: dict) -> api.Attempt:
+    """The record's sections solved, for its solve entry: in the reference-model process
+    when they use that model (:func:`tui.offload.call`)."""
+    from . import analysis
 
-    return solve_data(sections)
+    return offload.call(sections.get("fluid", {}).get("model", ""), analysis.solve, sections)
+
+
+def _entry_data(sections: dict) -> dict:
+    """A new record's first solve entry (nothing has been solved for it yet)."""
+    return api.entry_data(solve_sections(sections))
 
 
 def section_data(ws: Worksheet, section: str):
@@ -191,7 +196,7 @@ class Session:
         rec = record_module()
         if rec is not None:
             # the reference model solves in its own process (started here, warm for the app)
-            session.record = rec.Record.create(str(path), author=session.author, worksheet=ws, solver=_solve_data)
+            session.record = rec.Record.create(str(path), author=session.author, worksheet=ws, solver=_entry_data)
             session.committed = session.record.worksheet()
         else:
             session.committed = ws
@@ -328,26 +333,26 @@ class Session:
         with self._lock:
             return self.record.sections() if self.needs_solve() else None
 
-    def append_solve(self, data: dict | None = None, sections: dict | None = None):
+    def append_solve(self, solved: api.Attempt | None = None):
         """Append a solve entry when the record's inputs changed since its last one.
 
-        Call :meth:`commit` first (on the UI thread). ``data`` is the entry's data
-        worked out from ``sections`` (what :meth:`solve_due` returned); without it,
-        it is worked out here from the sections due, in the reference-model process
-        when the worksheet uses that model. Either way the session is not held while
-        the data is worked out (seconds, for the reference model: the app calls this
-        from a worker), and the entry is appended only while the record still holds
-        those sections (a newer commit wants its own solve). Returns the entry, or None.
+        Call :meth:`commit` first (on the UI thread). ``solved`` is a solve already made
+        (the one on the app's screen, :func:`tui.analysis.solve`): the entry is written from
+        it, only while the record holds what it solved (a newer commit wants its own solve).
+        Without it, the sections due are solved here, in the reference-model process when
+        they use that model, with the session not held meanwhile (seconds, for that model:
+        the app calls this from a worker). Returns the entry, or None.
         """
-        if data is None:
+        if solved is None:
             sections = self.solve_due()
             if sections is None:
                 return None
-            data = _solve_data(sections)
+            solved = solve_sections(sections)
         with self._lock:
-            if sections is None or sections != self.solve_due():
+            sections = self.solve_due()
+            if sections is None or solved.worksheet is None or api.read(sections) != solved.worksheet:
                 return None
-            entry = self.record.append_solve(author=self.author, data=data)
+            entry = self.record.append_solve(author=self.author, data=api.entry_data(solved))
             self.save_draft()
             return entry
 

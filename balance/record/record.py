@@ -8,6 +8,7 @@ from datetime import datetime, timezone
 from pathlib import Path
 from typing import Callable
 
+from .. import api
 from ..errors import InputError
 from ..models import MODEL_NAMES
 from ..worksheet import Worksheet
@@ -16,7 +17,7 @@ from .chain import chain_break, head_of
 from .format import (COMMENT, FORMAT, GENESIS, LIST_SECTIONS, MAGIC_LINE, NOTE, OPENING, RESOLUTION,
                      SECTION_KINDS, SIGN_OFF, SOLVE, TAG_SEAL, Entry, clean_author, entry_lines,
                      format_time, parse, prune, seal)
-from .replay import DEFAULT_TOLERANCE, ReplayReport, fold, pins, replay_entries, solve_data, worksheet_of
+from .replay import DEFAULT_TOLERANCE, ReplayReport, fold, replay_entries, solve_data, worksheet_of
 from .review import (comment_problem, current_revision, open_comments, resolution_problem,
                      signoff_problem)
 from .signing import NAMESPACE, ROLES, check_allowed_signers, message
@@ -122,7 +123,7 @@ class Record:
                 not all(isinstance(r, str) and re.fullmatch(r"[a-z][a-z-]*", r) for r in roles):
             raise InputError("roles", "expected distinct lowercase names, like prepared, checked, approved")
         rec = cls(path, (), MAGIC_LINE, clock=clock, author=author)
-        data = {"format": FORMAT, **pins(), "models": list(MODEL_NAMES), "roles": list(roles)}
+        data = {"format": FORMAT, **api.pins(), "models": list(MODEL_NAMES), "roles": list(roles)}
         rec._stage(OPENING, data, None)
         if worksheet is not None:
             sheet = worksheet.to_dict()

@@ -21,6 +21,7 @@ import re
 from dataclasses import dataclass, field
 from typing import Sequence
 
+from .. import api
 from ..errors import BalanceError
 from ..worksheet import Worksheet
 from .format import OPENING, SOLVE, Entry, prune
@@ -52,34 +53,13 @@ def worksheet_of(entries: Sequence[Entry]) -> Worksheet:
     return Worksheet.from_dict(fold(entries))
 
 
-def pins() -> dict:
-    """What the numbers depend on, for the running joulebook."""
-    from .. import __version__
-    from ..species import data_hash
-
-    return {"joulebook": __version__, "species_data_sha256": data_hash()}
-
-
 def solve_data(sections: dict) -> dict:
-    """The data of a solve entry for these sections: the result, or the error.
-
-    A successful solve gives ``Result.as_json()`` (values of None left out:
-    TOML has no null) after the two pins; a failed one gives ``error_kind``
-    and ``error``.
+    """A solve entry's data for these sections, solved here and now through the façade
+    (:func:`balance.api.attempt`, then :func:`balance.api.entry_data`; values of None
+    left out: TOML has no null). Replay's own job; a face that has solved already files
+    its attempt with :func:`balance.api.entry_data` instead.
     """
-    from ..closed import solve_worksheet
-
-    data = pins()
-    try:
-        result = solve_worksheet(Worksheet.from_dict(sections))
-    except BalanceError as exc:
-        data.update(error_kind=type(exc).__name__, error=str(exc))
-        return data
-    except (ArithmeticError, ValueError) as exc:  # numerical trouble inside a model: recorded, not raised
-        data.update(error_kind=f"numerical error ({type(exc).__name__})", error=str(exc) or type(exc).__name__)
-        return data
-    data.update(prune(result.as_json()))
-    return data
+    return prune(api.entry_data(api.attempt(sections)))
 
 
 # -- comparison ------------------------------------------------------------------------
@@ -250,7 +230,7 @@ class ReplayReport:
 def replay_entries(entries: Sequence[Entry], tolerance: float = DEFAULT_TOLERANCE) -> ReplayReport:
     if not tolerance >= 0:
         raise ValueError("the tolerance must be a number >= 0")
-    now_pins = pins()
+    now_pins = api.pins()
     pin_diffs: list[Difference] = []
     opening = next((e for e in entries if e.kind == OPENING), None)
     if opening is not None:

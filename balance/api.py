@@ -1,0 +1,220 @@
+"""The façade: the one way the app, the command line and the record reach the domain.
+
+Read a worksheet, check it, solve it, explain it, draw it; build the
+species-and-model pair; and turn a solve that has already been done into
+the data of a record's solve entry. A face never solves again what this
+module has solved: the app shows a :class:`Attempt`'s result and the record
+files the same attempt (:func:`entry_data`); only a replay solves again, on
+purpose.
+
+>>> from balance import api
+>>> ws = api.read('''
+... [fluid]
+... species = "N2"
+... model = "ideal-gas"
+... [[initial]]
+... T = "300 K"
+... P = "10 bar"
+... n = "1 mol"
+... [final]
+... T = "350 K"
+... [[heat]]
+... name = "jacket"
+... Q = "?"
+... [process]
+... constraints = ["rigid"]
+... ''')
+>>> api.check(ws).message
+'1 unknown, 1 equation: ready to solve'
+>>> solved = api.attempt(ws)
+>>> round(solved.result.terms[0].value)  # Q 'jacket' [J]
+1042
+>>> sorted(api.entry_data(solved))[:3]
+['S_gen', 'cautions', 'convention']
+"""
+
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Mapping, Union
+
+from .errors import BalanceError
+from .worksheet import Worksheet
+
+if TYPE_CHECKING:  # the rest loads on first use: the app imports this module before its first screen
+    from .adequacy import Advice
+    from .closed import Result
+    from .models.base import PropertyModel
+    from .paths import Trace
+    from .problem import Problem
+    from .species import Species
+
+#: What :func:`read` takes: TOML text, a path, the sections as plain data, or a worksheet.
+Source = Union[str, os.PathLike, Mapping, Worksheet]
+
+def fluid(species: str, model: str, overrides: Mapping[str, str] | None = None, *,
+          fields: tuple[str, str, str] = ("fluid.species", "fluid.model", "fluid.overrides"),
+          ) -> tuple[Species, PropertyModel]:
+    """The species (with a worksheet's overrides applied) and the property model for it.
+
+    ``fields`` name the species, the model and the overrides in errors (the
+    command line's ``state`` names its arguments). Raises InputError.
+    """
+    from .state import make_fluid
+
+    return make_fluid(species, model, overrides, fields=fields)
+
+
+def read(source: Source, name: str = "worksheet") -> Worksheet:
+    """A worksheet from TOML text, a file path, its sections as plain data (a worksheet
+    file's layout, as a record's step entries fold to) or a Worksheet (returned as it is).
+
+    Raises InputError naming the field, or ``name`` for text that is not TOML.
+    """
+    if isinstance(source, Worksheet):
+        return source
+    if isinstance(source, Mapping):
+        return Worksheet.from_dict(dict(source))
+    if isinstance(source, os.PathLike):
+        return Worksheet.load(source)
+    return Worksheet.from_toml(source, name)
+
+
+def prepare(source: Source) -> Problem:
+    """The problem in SI numbers, its degrees of freedom counted; raises InputError naming the field."""
+    from .problem import prepare as prepare_closed
+
+    return prepare_closed(read(source))
+
+
+# -- checking ----------------------------------------------------------------------------
+@dataclass(frozen=True)
+class Check:
+    """A worksheet checked: its degrees of freedom in words, or what stops the count."""
+
+    worksheet: Worksheet
+    ready: bool
+    """as many unknowns as equations: the balance can be solved"""
+    message: str
+    """the degrees-of-freedom line, or the error"""
+    unknowns: tuple[str, ...] = ()
+    """what the balance will solve for, in words (``Q 'jacket'``, ``amount n``)"""
+    equations: tuple[str, ...] = ()
+    fixed: tuple[str, ...] = ()
+    """what fixes the final state, e.g. 'v by rigid'"""
+    path: str = ""
+    constraints: tuple[str, ...] = ()
+    """the constraints in force, with the ones implied (free expansion ⇒ rigid, adiabatic)"""
+    error: str = ""
+    """what stopped the count (``field: what was expected``), or '' when it was made"""
+    error_field: str = ""
+    """the field the error names"""
+
+
+def check(ws: Worksheet) -> Check:
+    """Prepare the problem and count its degrees of freedom; never raises for bad input."""
+    try:
+        problem = prepare(ws)
+        dof = problem.dof
+    except BalanceError as exc:
+        return Check(ws, False, str(exc), error=str(exc), error_field=getattr(exc, "field", ""))
+    return Check(ws, dof.ok, dof.message, tuple(u.words() for u in dof.unknowns), dof.equations, dof.fixed,
+                 problem.path, problem.constraints)
+
+
+# -- solving -----------------------------------------------------------------------------
+def solve(source: Source) -> Result:
+    """The solved balance; raises InputError, SpecificationError or SolveError."""
+    from .closed import solve as solve_closed
+
+    return solve_closed(prepare(source))
+
+
+@dataclass(frozen=True)
+class Attempt:
+    """One solve as a record files it: the result, or why there is none.
+
+    Plain data (it crosses from the reference model's process pickled).
+    """
+
+    worksheet: Worksheet | None
+    """what was solved (None when the source could not be read as a worksheet)"""
+    result: Result | None = None
+    error_kind: str = ""
+    """the error's kind: 'InputError', 'SolveError' ... or 'numerical error (ZeroDivisionError)'"""
+    error: str = ""
+
+    @property
+    def ok(self) -> bool:
+        return self.result is not None
+
+    @property
+    def message(self) -> str:
+        """The error as a person reads it ('' when solved)."""
+        if self.ok or not self.error_kind.startswith("numerical"):
+            return self.error
+        return f"{self.error_kind}: {self.error}"
+
+
+def attempt(source: Source) -> Attempt:
+    """Read and solve; a failure (bad input, no solution, numerical trouble inside a
+    model) is returned as the attempt's error, never raised."""
+    ws = None
+    try:
+        ws = read(source)
+        return Attempt(ws, solve(ws))
+    except BalanceError as exc:
+        return Attempt(ws, error_kind=type(exc).__name__, error=str(exc))
+    except (ArithmeticError, ValueError) as exc:  # a model's numerical trouble: recorded, not raised
+        return Attempt(ws, error_kind=f"numerical error ({type(exc).__name__})", error=str(exc) or type(exc).__name__)
+
+
+def explain(result: Result) -> list[str]:
+    """The equations of a result with its numbers, one line each (worked out by the solve)."""
+    return list(result.equations)
+
+
+def as_json(result: Result) -> dict:
+    """Everything in a result; quantities as {"value", "unit"} (SI)."""
+    return result.as_json()
+
+
+# -- the record's solve entry ------------------------------------------------------------
+def pins() -> dict:
+    """What the numbers depend on, for the running joulebook: its version and the species data."""
+    from . import __version__
+    from .species import data_hash
+
+    return {"joulebook": __version__, "species_data_sha256": data_hash()}
+
+
+def entry_data(solved: Attempt) -> dict:
+    """The data of a record's solve entry for an attempt already made: the pins, then the
+    result's JSON, or ``error_kind`` and ``error``. Needs no solve and no CoolProp: the
+    reference model's attempt serves as it comes back from its process."""
+    data = pins()
+    if solved.result is None:
+        data.update(error_kind=solved.error_kind, error=solved.error)
+    else:
+        data.update(as_json(solved.result))
+    return data
+
+
+# -- what the app draws and advises --------------------------------------------------------
+def trace(result: Result) -> Trace:
+    """The P–v and T–s diagrams' lines of a result; raises BalanceError."""
+    from .paths import trace as trace_paths
+
+    return trace_paths(result)
+
+
+def advise(ws: Worksheet) -> Advice:
+    """How well the worksheet's property model fits its states, and what to use instead."""
+    from .adequacy import advise as advise_model
+
+    return advise_model(ws)
+
+
+__all__ = ["Attempt", "Check", "Source", "advise", "as_json", "attempt", "check", "entry_data",
+           "explain", "fluid", "pins", "prepare", "read", "solve", "trace"]
