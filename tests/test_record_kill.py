@@ -4,7 +4,9 @@ Each trial forks a writer from this process (so it starts in microseconds
 with joulebook already imported), lets it append entries to a copy of a
 solved record as fast as it can, reporting each entry's number and seal
 through a pipe once ``append`` has returned, and kills it with SIGKILL
-after a random delay. The record must then load without recovery (writes
+once it has reported a random number of entries (0 to 5), after a further
+random delay: so the kill lands anywhere in a write, however fast or slow
+the machine is. The record must then load without recovery (writes
 are whole-file and atomic), verify, keep every entry it had, and hold every
 entry the writer reported, unchanged; at most one more entry (written but
 not yet reported) may be there. The next writer removes the killed writer's
@@ -50,6 +52,20 @@ def _read_all(fd: int) -> bytes:
     return b"".join(chunks)
 
 
+def _read_lines(fd: int, count: int) -> bytes:
+    """What the writer reported until it has reported ``count`` entries (or went quiet for 30 s)."""
+    got = b""
+    while got.count(b"\n") < count:
+        ready, _, _ = select.select([fd], [], [], 30)
+        if not ready:
+            break
+        chunk = os.read(fd, 65536)
+        if not chunk:
+            break
+        got += chunk
+    return got
+
+
 def test_a_writer_killed_at_random_moments_loses_no_saved_entry(tmp_path):
     base = new_record(tmp_path, name="base.record")
     base_entries = base.entries
@@ -67,10 +83,11 @@ def test_a_writer_killed_at_random_moments_loses_no_saved_entry(tmp_path):
             finally:
                 os._exit(0)
         os.close(write_fd)
-        time.sleep(rng.uniform(0.0, 0.04))
+        seen = _read_lines(read_fd, rng.randrange(0, 6))
+        time.sleep(rng.uniform(0.0, 0.005))
         os.kill(pid, signal.SIGKILL)
         os.waitpid(pid, 0)
-        reports = [line.split() for line in _read_all(read_fd).decode().splitlines()]
+        reports = [line.split() for line in (seen + _read_all(read_fd)).decode().splitlines()]
         os.close(read_fd)
 
         rec = Record.load(path)
