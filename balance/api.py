@@ -44,10 +44,10 @@ from .worksheet import Worksheet
 
 if TYPE_CHECKING:  # the rest loads on first use: the app imports this module before its first screen
     from .adequacy import Advice
-    from .closed import Result
+    from .balances.closed import Problem, Result
+    from .kinds import Kind
     from .models.base import PropertyModel
     from .paths import Trace
-    from .problem import Problem
     from .species import Species
 
 #: What :func:`read` takes: TOML text, a path, the sections as plain data, or a worksheet.
@@ -81,11 +81,19 @@ def read(source: Source, name: str = "worksheet") -> Worksheet:
     return Worksheet.from_toml(source, name)
 
 
-def prepare(source: Source) -> Problem:
-    """The problem in SI numbers, its degrees of freedom counted; raises InputError naming the field."""
-    from .problem import prepare as prepare_closed
+def kind(ws: Worksheet) -> Kind:
+    """The kind of balance the worksheet's ``[system] kind`` names (:mod:`balance.kinds`);
+    raises InputError naming ``system.kind`` for one that cannot be balanced."""
+    from .kinds import kind_of
 
-    return prepare_closed(read(source))
+    return kind_of(ws.system.kind)
+
+
+def prepare(source: Source) -> Problem:
+    """The problem in SI numbers, its degrees of freedom counted (``Problem.dof``);
+    raises InputError naming the field."""
+    ws = read(source)
+    return kind(ws).prepare(ws)
 
 
 # -- checking ----------------------------------------------------------------------------
@@ -126,9 +134,9 @@ def check(ws: Worksheet) -> Check:
 # -- solving -----------------------------------------------------------------------------
 def solve(source: Source) -> Result:
     """The solved balance; raises InputError, SpecificationError or SolveError."""
-    from .closed import solve as solve_closed
-
-    return solve_closed(prepare(source))
+    ws = read(source)
+    balance = kind(ws)
+    return balance.solve(balance.prepare(ws))
 
 
 @dataclass(frozen=True)
@@ -176,8 +184,9 @@ def explain(result: Result) -> list[str]:
 
 
 def as_json(result: Result) -> dict:
-    """Everything in a result; quantities as {"value", "unit"} (SI)."""
-    return result.as_json()
+    """Everything in a result; quantities as {"value", "unit"} (SI): what ``joulebook solve
+    --json`` prints and a record's solve entry holds, as the result's kind writes it."""
+    return kind(result.problem.worksheet).as_json(result)
 
 
 # -- the record's solve entry ------------------------------------------------------------
@@ -217,4 +226,4 @@ def advise(ws: Worksheet) -> Advice:
 
 
 __all__ = ["Attempt", "Check", "Source", "advise", "as_json", "attempt", "check", "entry_data",
-           "explain", "fluid", "pins", "prepare", "read", "solve", "trace"]
+           "explain", "fluid", "kind", "pins", "prepare", "read", "solve", "trace"]

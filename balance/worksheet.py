@@ -4,13 +4,13 @@ A worksheet is a TOML file (layout in the README, "Worksheet format"). This
 module reads and writes it and checks its structure; every value stays the
 text the person typed (``"35 barg"``, ``"?"``) so nothing is lost and the
 record can show it. Turning the text into SI numbers and a model happens in
-:mod:`balance.problem`.
+:mod:`balance.balances` (the kind's own module, chosen in :mod:`balance.kinds`).
 
 The sections:
 
 ``[worksheet]``  title, job, purpose, basis, assumptions, convention, atmosphere
 ``[fluid]``      species, model, ``[fluid.overrides]``
-``[system]``     kind ("closed"; "open" is reserved for streams), inside, sketch
+``[system]``     kind (a name in :mod:`balance.kinds`: "closed"; "open" is reserved), inside, sketch
 ``[[initial]]``  one table per compartment at the start
 ``[final]``      the state at the end
 ``[[heat]]``     heat terms: name, Q, T_boundary
@@ -26,8 +26,21 @@ from dataclasses import asdict, dataclass, field, fields, replace
 
 from .convention import CONVENTIONS
 from .errors import InputError
+from .kinds import kind_of, known
 
 UNKNOWN = "?"
+
+#: A worksheet file's sections, in the order a record takes them, and the attribute holding each.
+SECTIONS = {
+    "worksheet": "heading",
+    "system": "system",
+    "fluid": "fluid",
+    "initial": "initial",
+    "final": "final",
+    "heat": "heat",
+    "work": "work",
+    "process": "process",
+}
 
 #: Properties a state may be given by (and their accepted spellings).
 STATE_KEYS = ("T", "P", "v", "rho", "u", "h", "s", "x")
@@ -43,7 +56,6 @@ CONSTRAINTS = (
     "membrane-rupture",
 )
 WORK_KINDS = ("shaft", "stirring", "electrical", "boundary", "other")
-SYSTEM_KINDS = ("closed", "open")
 
 
 @dataclass(frozen=True)
@@ -218,8 +230,8 @@ class Worksheet:
         sy = _table(data, "system")
         _only(sy, ("kind", "inside", "sketch"), "system")
         system = System(**{k: _text(sy, k, "system") for k in sy})
-        if system.kind not in SYSTEM_KINDS:
-            raise InputError("system.kind", f"expected 'closed'; got {system.kind!r}")
+        if not known(system.kind):  # a reserved kind is kept as typed; preparing it says why not yet
+            kind_of(system.kind)
         initial = tuple(
             _state(t, f"initial[{i + 1}]", default_name=f"initial {i + 1}")
             for i, t in enumerate(_array(data, "initial"))

@@ -9,8 +9,8 @@ from __future__ import annotations
 
 import pytest
 
+from balance import api
 from balance.adequacy import advise
-from balance.closed import solve_worksheet
 from balance.paths import trace
 from tests.helpers import WET_WATER_PR, sample, sheet
 
@@ -47,7 +47,7 @@ def test_wet_state_with_a_cubic_points_to_the_reference_model():
 
 
 def test_rigid_path_keeps_the_volume():
-    r = solve_worksheet(sample("co2-cylinder-hot-store.toml"))
+    r = api.solve(sample("co2-cylinder-hot-store.toml"))
     t = trace(r)
     path = [c for c in t.curves if c.style == "path"][0]
     v0 = r.initial[0].point.v
@@ -56,6 +56,6 @@ def test_rigid_path_keeps_the_volume():
 
 
 def test_free_expansion_is_drawn_as_a_jump():
-    t = trace(solve_worksheet(sample("n2-buffer-into-receiver.toml")))
+    t = trace(api.solve(sample("n2-buffer-into-receiver.toml")))
     assert [c.style for c in t.curves] == ["jump"]
     assert "no quasi-static path" in t.note

@@ -1,6 +1,6 @@
 """The cautions a result must carry, and must not carry, where it can hurt someone.
 
-The thresholds are the trade's, as balance/closed.py applies them (common
+The thresholds are the trade's, as balance/balances/cautions.py applies them (common
 practice, no source): a pressure caution above 0.5 bar gauge (where the usual
 pressure-equipment rules begin), a low-temperature caution below -29 °C
 (-20 °F, below which carbon steels need impact-tested qualification under the
@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import pytest
 
-from balance.closed import solve_worksheet
+from balance import api
 from tests.helpers import sheet
 
 #: A phrase that identifies each caution in the text (the text itself is tested in the goldens).
@@ -58,14 +58,14 @@ constraints = ["rigid"]
 @pytest.mark.parametrize("P, shown", [("0.45 barg", False), ("0.55 barg", True), ("0.9 bar", False),
                                       ("10 bar", True)])
 def test_pressure_caution_above_half_a_bar_gauge(P, shown):
-    r = solve_worksheet(sheet(held("20 degC", P)))
+    r = api.solve(sheet(held("20 degC", P)))
     assert kinds(r.cautions) == {DISCLAIMER} | ({PRESSURE} if shown else set())
 
 
 @pytest.mark.parametrize("T, shown", [("-30 degC", "-30.0 °C"), ("-28 degC", None), ("-40 degF", "-40.0 °C"),
                                       ("20 degC", None)])
 def test_low_temperature_caution_below_minus_29_C(T, shown):
-    r = solve_worksheet(sheet(held(T, "1 bar")))
+    r = api.solve(sheet(held(T, "1 bar")))
     assert kinds(r.cautions) == {DISCLAIMER} | ({LOW_TEMPERATURE} if shown else set())
     if shown:  # -40 °F is -40 °C (the scales cross there)
         assert any(f"A temperature of {shown} occurs" in c for c in r.cautions)
@@ -73,7 +73,7 @@ def test_low_temperature_caution_below_minus_29_C(T, shown):
 
 def test_a_heated_rigid_vessel_shows_its_rise():
     text = held("20 degC", "0.2 barg").replace('[final]\nT = "20 degC"', '[final]\nT = "200 degC"')
-    r = solve_worksheet(sheet(text.replace('T_boundary = "20 degC"', 'T_boundary = "250 degC"')))
+    r = api.solve(sheet(text.replace('T_boundary = "20 degC"', 'T_boundary = "250 degC"')))
     # P2 = P1 T2/T1 (ideal gas, rigid): 1.21 bar(a) x 473/293 = 1.96 bar(a), over 0.5 bar gauge
     assert r.final.point.P == pytest.approx(1.21325e5 * 473.15 / 293.15, rel=1e-9)
     assert kinds(r.cautions) == {DISCLAIMER, PRESSURE, ABOVE_INITIAL}
@@ -95,7 +95,7 @@ SAMPLES = {
 def test_each_sample_shows_the_cautions_its_case_needs(name):
     from tests.helpers import sample
 
-    r = solve_worksheet(sample(name))
+    r = api.solve(sample(name))
     assert kinds(r.cautions) == {DISCLAIMER} | SAMPLES[name]
 
 

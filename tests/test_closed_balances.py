@@ -11,8 +11,8 @@ import math
 
 import pytest
 
+from balance import api
 from balance.balances.control_volume import Unknown
-from balance.closed import solve_worksheet
 from balance.errors import SolveError
 from balance.units import R
 from tests.helpers import sheet
@@ -34,7 +34,7 @@ cp = "{cp} J/(mol K)"
 def test_reversible_adiabatic_ideal_gas_follows_poisson():
     # Closed form for an ideal gas with constant cp (Poisson's relation):
     # T2 = T1 (P2/P1)^(R/cp), W_on = n cv (T2 - T1).
-    r = solve_worksheet(sheet(ideal("""
+    r = api.solve(sheet(ideal("""
 [[initial]]
 T = "300 K"
 P = "1 bar"
@@ -56,7 +56,7 @@ constraints = ["adiabatic", "reversible"]
 
 def test_isothermal_ideal_gas_work_and_heat():
     # Closed form: reversible isothermal ideal gas, W_on = n R T ln(P2/P1) = -Q.
-    r = solve_worksheet(sheet(ideal("""
+    r = api.solve(sheet(ideal("""
 [[initial]]
 T = "350 K"
 P = "2 bar"
@@ -81,7 +81,7 @@ def test_polytropic_ideal_gas():
     # Closed form: P v^k = const with an ideal gas, T2 = T1 (P2/P1)^((k-1)/k),
     # W_on = (P2 V2 - P1 V1)/(k - 1) = n R (T2 - T1)/(k - 1); Q = ΔU - W_on.
     k = 1.25
-    r = solve_worksheet(sheet(ideal("""
+    r = api.solve(sheet(ideal("""
 [[initial]]
 T = "290 K"
 P = "1 bar"
@@ -106,7 +106,7 @@ n = "1.25"
 def test_ideal_gas_mixing_compartments_is_energy_weighted():
     # Closed form: two compartments of one ideal gas with constant cv joined
     # adiabatically in a rigid housing: T2 = Σ n_i T_i / Σ n_i, P2 = n R T2 / V.
-    r = solve_worksheet(sheet(ideal("""
+    r = api.solve(sheet(ideal("""
 [[initial]]
 name = "A"
 T = "300 K"
@@ -132,7 +132,7 @@ constraints = ["membrane-rupture", "adiabatic"]
 def test_free_expansion_ideal_gas_keeps_temperature():
     # Fact of the trade (common practice, no source): an ideal gas expanding
     # into vacuum in an insulated rigid vessel keeps its temperature; S_gen = n R ln 4.
-    r = solve_worksheet(sheet(ideal("""
+    r = api.solve(sheet(ideal("""
 [[initial]]
 T = "320 K"
 P = "20 bar"
@@ -153,7 +153,7 @@ constraints = ["free-expansion"]
 def test_free_expansion_van_der_waals_closed_form():
     # Closed form for the van der Waals gas with constant cv:
     # T2 = T1 - (a n / cv)(1/V1 - 1/V2);  ΔS = n cv ln(T2/T1) + n R ln((V2 - nb)/(V1 - nb)).
-    r = solve_worksheet(sheet(ideal("""
+    r = api.solve(sheet(ideal("""
 [[initial]]
 T = "250 K"
 P = "60 bar"
@@ -197,8 +197,8 @@ W = "?"
 [process]
 constraints = ["adiabatic", "reversible"]
 """)
-    by = solve_worksheet(sheet(text))
-    on = solve_worksheet(sheet(text.replace("work-by-system", "work-on-system")))
+    by = api.solve(sheet(text))
+    on = api.solve(sheet(text.replace("work-by-system", "work-on-system")))
     assert by.as_json()["terms"][0]["value"]["value"] == pytest.approx(
         -on.as_json()["terms"][0]["value"]["value"], rel=1e-12)
     assert by.as_json()["terms"][0]["value"]["value"] < 0
@@ -208,7 +208,7 @@ def test_impossible_heat_flow_is_refused():
     # Second law (common practice, no source): heating a gas from 300 K to 400 K
     # with heat from a 320 K reservoir alone would make S_gen < 0.
     with pytest.raises(SolveError, match="impossible process"):
-        solve_worksheet(sheet(ideal("""
+        api.solve(sheet(ideal("""
 [[initial]]
 T = "300 K"
 P = "1 bar"
@@ -226,7 +226,7 @@ constraints = ["rigid"]
 
 def test_constant_cv_override_is_shown():
     # Overrides are part of the result the record shows (common practice, no source).
-    r = solve_worksheet(sheet(ideal("""
+    r = api.solve(sheet(ideal("""
 [[initial]]
 T = "300 K"
 P = "1 bar"

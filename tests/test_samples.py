@@ -5,8 +5,8 @@ from __future__ import annotations
 
 import pytest
 
+from balance import api
 from balance.balances.control_volume import Unknown
-from balance.closed import solve_worksheet
 from tests.helpers import SAMPLES, sample
 from tests.test_cautions import DISCLAIMER
 
@@ -15,7 +15,7 @@ ALL = sorted(p.name for p in SAMPLES.glob("*.toml"))
 
 @pytest.mark.parametrize("name", ALL)
 def test_sample_solves_and_closes(name):
-    r = solve_worksheet(sample(name))
+    r = api.solve(sample(name))
     assert r.residual < 1e-9
     assert r.S_gen is None or r.S_gen >= -1e-9
     # the statement that defers to the codes and a licensed engineer, on every result
@@ -29,7 +29,7 @@ def test_there_are_at_least_five_samples():
 
 def test_co2_cylinder_heat_matches_coolprop():
     CP = pytest.importorskip("CoolProp.CoolProp")
-    r = solve_worksheet(sample("co2-cylinder-hot-store.toml"))
+    r = api.solve(sample("co2-cylinder-hot-store.toml"))
     # CoolProp 8.0 HEOS directly: rigid, so v is fixed; Q = m (u2 - u1).
     rho = 300.0
     u1 = CP.PropsSI("U", "T", 288.15, "D", rho, "CO2")
@@ -42,7 +42,7 @@ def test_co2_cylinder_heat_matches_coolprop():
 
 def test_steam_kettle_matches_coolprop():
     CP = pytest.importorskip("CoolProp.CoolProp")
-    r = solve_worksheet(sample("steam-kettle-wet.toml"))
+    r = api.solve(sample("steam-kettle-wet.toml"))
     # CoolProp 8.0 HEOS (IAPWS-95) directly: state 1 from P and x; rigid:
     # v2 = v1 and u2 = u1 + Q/m; the final state from (density, internal energy).
     P1, x1 = 101325.0, 0.05
@@ -59,7 +59,7 @@ def test_steam_kettle_matches_coolprop():
 
 def test_nitrogen_free_expansion_cubic_near_reference():
     CP = pytest.importorskip("CoolProp.CoolProp")
-    r = solve_worksheet(sample("n2-buffer-into-receiver.toml"))
+    r = api.solve(sample("n2-buffer-into-receiver.toml"))
     # CoolProp 8.0 HEOS (Span et al. nitrogen EOS) directly: u2 = u1 at v2 = 4 v1.
     T1, P1 = 293.15, 150e5 + 101325.0
     d1 = CP.PropsSI("Dmolar", "T", T1, "P", P1, "Nitrogen")
@@ -76,7 +76,7 @@ def test_nitrogen_free_expansion_with_reference_model_is_exact():
     CP = pytest.importorskip("CoolProp.CoolProp")
     ws = sample("n2-buffer-into-receiver.toml")
     ws = ws.with_(fluid=ws.fluid.__class__(species="N2", model="reference"))
-    r = solve_worksheet(ws)
+    r = api.solve(ws)
     # CoolProp 8.0 HEOS directly, as above
     T1, P1 = 293.15, 150e5 + 101325.0
     d1 = CP.PropsSI("Dmolar", "T", T1, "P", P1, "Nitrogen")

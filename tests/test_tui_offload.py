@@ -5,7 +5,7 @@ it in a thread worker, so the UI keeps running while the process starts
 and the app's own process never imports CoolProp.
 
 Check values: what comes back from the process is compared with the same
-work done in this process: ``balance.closed.solve_worksheet`` and
+work done in this process: ``balance.api.solve`` and
 ``balance.record.replay.solve_data``, which evaluate the reference model
 with CoolProp (HEOS) here. Thresholds for "live" are common practice, no
 source.
@@ -164,11 +164,11 @@ def test_the_indicator_says_what_is_happening(run):
 
 
 def test_a_reference_solve_through_the_app_equals_the_solve_here(run):
-    from balance.closed import solve_worksheet
+    from balance import api
     from balance.record.replay import compare
     from tui.analysis import trace
 
-    here = solve_worksheet(Worksheet.load(SAMPLES / CO2))  # in this process, CoolProp HEOS: the reference
+    here = api.solve(Worksheet.load(SAMPLES / CO2))  # in this process, CoolProp HEOS: the reference
     got = run["result"]
     assert run["error"] == ""
     for key in ("T", "P", "v", "u", "s"):
@@ -202,10 +202,10 @@ def test_the_record_gets_the_same_solve_entry_as_a_solve_here(run):
 
 
 def test_an_error_in_the_process_comes_back_with_its_message(run):
-    from balance.closed import solve_worksheet
+    from balance import api
 
     with pytest.raises(InputError) as here:  # in this process: the reference
-        solve_worksheet(_wet_above_critical(Worksheet.load(SAMPLES / CO2)))
+        api.solve(_wet_above_critical(Worksheet.load(SAMPLES / CO2)))
     assert "quality x exists only below the critical point" in str(here.value)
     assert run["refused"] == ["BalanceError", str(here.value)]
 
@@ -288,10 +288,10 @@ print(json.dumps({
 
 
 def test_a_pickled_reference_result_reads_without_coolprop():
-    from balance.closed import solve_worksheet
+    from balance import api
     from tui.analysis import trace
 
-    here = solve_worksheet(Worksheet.load(SAMPLES / STEAM))  # in this process, CoolProp HEOS: the reference
+    here = api.solve(Worksheet.load(SAMPLES / STEAM))  # in this process, CoolProp HEOS: the reference
     drawn = trace(here)
     done = subprocess.run([sys.executable, "-c", READ_BACK], input=pickle.dumps((here, drawn)), cwd=ROOT,
                           capture_output=True, timeout=60)
@@ -328,10 +328,10 @@ constraints = ["rigid"]
 @pytest.mark.parametrize("sample", [CO2, "air-test-cylinder-reversible.toml", "argon-membrane-rupture.toml",
                                     "n2-accumulator-polytropic.toml", None])
 def test_results_of_every_model_pickle(sample):
-    from balance.closed import solve_worksheet
+    from balance import api
 
     ws = Worksheet.load(SAMPLES / sample) if sample else Worksheet.from_toml(INCOMPRESSIBLE)
-    here = solve_worksheet(ws)
+    here = api.solve(ws)
     back = pickle.loads(pickle.dumps(here))
     # the result before pickling is the reference (common practice, no source)
     assert back.as_json() == here.as_json()

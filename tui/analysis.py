@@ -21,9 +21,11 @@ from dataclasses import dataclass, field, fields, replace
 
 from balance import api
 from balance.errors import InputError
+from balance.kinds import KINDS
 from balance.worksheet import UNKNOWN, Worksheet
 
 from . import fields as field_checks
+from .steps import BY_ID, SECTION_STEPS
 
 COMPLETE, INCOMPLETE, INVALID = "complete", "incomplete", "invalid"
 
@@ -96,23 +98,24 @@ def statuses(ws: Worksheet, visited: frozenset[str] = frozenset(), error_field: 
         out["purpose"] = INVALID
     else:
         out["purpose"] = COMPLETE if h.title.strip() and h.purpose.strip() and h.basis.strip() else INCOMPLETE
-    if ws.system.kind != "closed":
+    if ws.system.kind not in KINDS:
         out["boundary"] = INVALID
     else:
         out["boundary"] = COMPLETE if ws.system.inside.strip() else INCOMPLETE
-    out["fluid"] = INVALID if step_of_field(error_field) == 3 else _fluid_status(ws)  # e.g. an override
+    at = step_of_field(error_field)
+    out["fluid"] = INVALID if at == "fluid" else _fluid_status(ws)  # e.g. an override
     if state_problems(ws):
         out["states"] = INVALID
     elif ws.initial and all(_state_complete(s, False) for s in ws.initial) and _state_complete(ws.final, True):
         out["states"] = COMPLETE
     else:
         out["states"] = INCOMPLETE
-    if term_problems(ws) or step_of_field(error_field) == 5:
+    if term_problems(ws) or at == "terms":
         out["terms"] = INVALID
     else:
         out["terms"] = COMPLETE if (ws.heat or ws.work or "terms" in visited) else INCOMPLETE
     boundary_work = any(w.kind == "boundary" for w in ws.work)
-    if process_problems(ws) or step_of_field(error_field) == 6:
+    if process_problems(ws) or at == "constraints":
         out["constraints"] = INVALID
     else:
         out["constraints"] = COMPLETE if (ws.process.constraints or boundary_work) else INCOMPLETE
@@ -140,14 +143,11 @@ def _fluid_status(ws: Worksheet) -> str:
     return status
 
 
-#: where a domain error's field is typed: its first word -> step number
-FIELD_STEPS = {"worksheet": 1, "system": 2, "fluid": 3, "initial": 4, "final": 4, "heat": 5, "work": 5,
-               "process": 6}
-
-
-def step_of_field(name: str) -> int | None:
+def step_of_field(name: str) -> str | None:
+    """The step where a domain error's field is typed (its first word is the section)."""
     head = name.replace("'", " ").replace(".", " ").replace("[", " ").split(" ")[0] if name else ""
-    return FIELD_STEPS.get(head)
+    step = SECTION_STEPS.get(head)
+    return step.id if step else None
 
 
 def check(ws: Worksheet, visited: frozenset[str] = frozenset()) -> Check:
@@ -158,7 +158,7 @@ def check(ws: Worksheet, visited: frozenset[str] = frozenset()) -> Check:
     if not counted.error:
         return answer
     step = step_of_field(counted.error_field)
-    prefix = f"not ready (step {step}): " if step else "not ready: "
+    prefix = f"not ready (step {BY_ID[step].number}): " if step else "not ready: "
     return replace(answer, message=prefix + counted.error)
 
 

@@ -21,7 +21,6 @@ from __future__ import annotations
 import gc
 import time
 from dataclasses import dataclass, replace
-from importlib import import_module
 
 from textual import work
 from textual.app import App, SystemCommand
@@ -35,21 +34,10 @@ from balance.worksheet import Worksheet
 
 from . import offload
 from .session import Session
-from .steps import BY_ID, ORDER, STEPS, neighbour
+from .steps import BY_ID, ORDER, STEPS, neighbour, screen_class
 
 UNIT_SETS = ("si", "metric", "us")
 UNIT_NAMES = {"si": "SI", "metric": "metric engineering", "us": "US customary"}
-
-SCREENS_BY_STEP = {
-    "purpose": ("tui.screens.purpose", "PurposeScreen"),
-    "boundary": ("tui.screens.boundary", "BoundaryScreen"),
-    "fluid": ("tui.screens.fluid", "FluidScreen"),
-    "states": ("tui.screens.states", "StatesScreen"),
-    "terms": ("tui.screens.terms", "TermsScreen"),
-    "constraints": ("tui.screens.constraints", "ConstraintsScreen"),
-    "results": ("tui.screens.results", "ResultsScreen"),
-    "review": ("tui.screens.review", "ReviewScreen"),
-}
 
 
 @dataclass(frozen=True)
@@ -58,7 +46,7 @@ class Outcome:
 
     worksheet: Worksheet
     result: object | None = None
-    """balance.closed.Result when solved"""
+    """the solved balance (balance.balances.closed.Result)"""
     error: str = ""
     trace: object | None = None
     """balance.paths.Trace once the diagrams are computed"""
@@ -186,7 +174,7 @@ class JoulebookApp(App):
         offload.warm(self.session.worksheet.fluid.model)
 
     def _warm_up(self) -> None:
-        from balance import problem  # noqa: F401  numpy, scipy, the models
+        from balance.balances import closed  # noqa: F401  numpy, the models, the closed balance
         from balance.species import catalogue
         from balance.units import registry
 
@@ -208,8 +196,7 @@ class JoulebookApp(App):
 
     @staticmethod
     def make_screen(step: str):
-        module, name = SCREENS_BY_STEP[step]
-        return getattr(import_module(module), name)()
+        return screen_class(step)()
 
     # -- the background indicator ---------------------------------------------
     def _set_busy(self, key: str, text: str | None) -> None:
@@ -520,8 +507,7 @@ class JoulebookApp(App):
         if isinstance(self.screen, HelpScreen):
             return
         step = self.session.step
-        module, name = SCREENS_BY_STEP[step]
-        self.push_screen(HelpScreen(BY_ID[step].title, getattr(import_module(module), name).HELP))
+        self.push_screen(HelpScreen(BY_ID[step].title, screen_class(step).HELP))
 
     def action_cycle_units(self) -> None:
         units = UNIT_SETS[(UNIT_SETS.index(self.units) + 1) % len(UNIT_SETS)]

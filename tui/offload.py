@@ -59,7 +59,8 @@ def _quiet() -> None:
 
 def _warm() -> None:
     """Load the domain, the unit registry and CoolProp before the first job."""
-    from balance import adequacy, closed, paths  # noqa: F401
+    from balance import adequacy, paths  # noqa: F401
+    from balance.balances import closed  # noqa: F401
     from balance.species import catalogue
     from balance.units import registry
 

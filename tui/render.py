@@ -8,8 +8,8 @@ from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
-from balance.closed import Result
-from balance.problem import Dof, Problem
+from balance.balances.closed import Problem, Result
+from balance.balances.control_volume import Dof
 from balance.species import Species
 from balance.state import State
 

@@ -34,6 +34,7 @@ from pathlib import Path
 from balance import api
 from balance.errors import InputError
 from balance.worksheet import (
+    SECTIONS,
     Fluid,
     HeatTerm,
     Heading,
@@ -45,34 +46,13 @@ from balance.worksheet import (
 )
 
 from . import offload
+from .steps import STEP_SECTIONS
 
 #: The record file's extension.
 RECORD_SUFFIX = ".jbk"
 #: Appended to the record's path for the autosaved draft.
 DRAFT_SUFFIX = ".draft"
 DRAFT_FORMAT = 1
-
-#: Worksheet sections, in the record's vocabulary, and the attribute holding each.
-SECTIONS = {
-    "worksheet": "heading",
-    "system": "system",
-    "fluid": "fluid",
-    "initial": "initial",
-    "final": "final",
-    "heat": "heat",
-    "work": "work",
-    "process": "process",
-}
-
-#: The sections each worksheet step commits.
-STEP_SECTIONS = {
-    "purpose": ("worksheet",),
-    "boundary": ("system",),
-    "fluid": ("fluid",),
-    "states": ("initial", "final"),
-    "terms": ("heat", "work"),
-    "constraints": ("process",),
-}
 
 
 def record_module():

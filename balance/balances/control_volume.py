@@ -8,7 +8,20 @@ than threaded through it.
 
 from __future__ import annotations
 
+import itertools
 from dataclasses import dataclass
+
+from ..convention import Convention
+from ..errors import InputError
+from ..units import parse
+from ..worksheet import UNKNOWN, HeatTerm, WorkTerm
+
+#: A balance closes when its scaled residual is below this.
+TOLERANCE = 1e-9
+#: The energy balance recomputed from the states' extensive values must close below this (relative).
+RESIDUAL_LIMIT = 1e-7
+#: S_gen below -this × n R is an impossible process rather than round-off.
+SGEN_TOLERANCE = 1e-7
 
 #: The kinds of value a balance may solve for, and how a message names each.
 _WORDS = {
@@ -44,3 +57,143 @@ class Unknown:
 
     def __str__(self) -> str:
         return self.words()
+
+
+# -- the terms that cross the boundary ---------------------------------------------------
+@dataclass(frozen=True)
+class Heat:
+    """A heat term as the balance reads it."""
+
+    name: str
+    Q: float | None
+    """heat to the system [J]; None when unknown"""
+    T_boundary: float | None
+    """boundary or reservoir temperature [K]"""
+    T_boundary_note: str = ""
+    """where T_boundary came from when the worksheet did not give it"""
+
+    @property
+    def unknown(self) -> Unknown:
+        return Unknown("heat", self.name)
+
+
+@dataclass(frozen=True)
+class Work:
+    """A work term as the balance reads it."""
+
+    name: str
+    kind: str
+    W_on: float | None
+    """work done on the system [J]; None when unknown"""
+
+    @property
+    def unknown(self) -> Unknown:
+        return Unknown("work", self.name)
+
+
+@dataclass(frozen=True)
+class Term:
+    """One term of the energy balance, in the canonical sign (on/to the system)."""
+
+    kind: str
+    """'heat', 'work' or 'boundary work'"""
+    name: str
+    value: float
+    """[J], heat to / work on the system"""
+    solved: bool = False
+    """True when the value was an unknown"""
+    T_boundary: float | None = None
+    detail: str = ""
+
+
+def check_term_names(heat: tuple[HeatTerm, ...], work: tuple[WorkTerm, ...]) -> None:
+    """Refuse two heat (or work) terms of one name: they would share one unknown."""
+    for kind, terms in (("heat", heat), ("work", work)):
+        names = [t.name for t in terms]
+        twice = sorted({n for n in names if names.count(n) > 1})
+        if twice:
+            raise InputError(kind, f"two {kind} terms are named {twice[0]!r}: give each its own name")
+
+
+def read_heat(h: HeatTerm, T_default: float | None = None, T_note: str = "") -> Heat:
+    """A heat term's numbers; ``T_default`` [K] (with ``T_note`` saying why) stands in for a
+    boundary temperature the worksheet leaves out."""
+    where = f"heat '{h.name}'"
+    Q = None if h.Q.strip() == UNKNOWN else parse(h.Q, "energy", f"{where}.Q")
+    Tb, note = None, ""
+    if h.T_boundary:
+        Tb = parse(h.T_boundary, "temperature", f"{where}.T_boundary")
+        if not Tb > 0:
+            raise InputError(f"{where}.T_boundary", f"must be positive; got {Tb:g} in SI units")
+    elif T_default is not None:
+        Tb, note = T_default, T_note
+    return Heat(h.name, Q, Tb, note)
+
+
+def read_work(w: WorkTerm, convention: Convention) -> Work:
+    """A work term's numbers, in the canonical sign (done on the system)."""
+    if w.W.strip() == UNKNOWN:
+        return Work(w.name, w.kind, None)
+    return Work(w.name, w.kind, convention.work_on(parse(w.W, "energy", f"work '{w.name}'.W")))
+
+
+# -- the entropy balance of the heat terms ---------------------------------------------------
+def surroundings_entropy(terms) -> float | None:
+    """ΔS of the surroundings [J/K], -Σ Q/T_boundary, or None when a heat term has no T_boundary."""
+    heats = [t for t in terms if t.kind == "heat"]
+    if any(t.T_boundary is None for t in heats):
+        return None
+    return -sum(t.value / t.T_boundary for t in heats)
+
+
+def heat_direction_warnings(terms, T_final: float) -> list[str]:
+    """Heat that would have to flow up a temperature difference by the end.
+
+    The entropy balance with one boundary temperature can stay positive
+    although the system ends hotter than the source feeding it (most heat went
+    in while it was colder); heat alone still cannot do that.
+    """
+    out = []
+    for t in terms:
+        if t.kind != "heat" or t.T_boundary is None or t.detail:  # detail: T_b is the system's own
+            continue
+        if t.value > 0 and T_final > t.T_boundary * (1 + 1e-9):
+            side, verb = "comes from", "hotter"
+        elif t.value < 0 and T_final < t.T_boundary * (1 - 1e-9):
+            side, verb = "goes to", "colder"
+        else:
+            continue
+        out.append(
+            f"heat term '{t.name}' {side} {t.T_boundary - 273.15:.1f} °C but the system ends {verb}, at "
+            f"{T_final - 273.15:.1f} °C: heat alone cannot do that; check Q and T_boundary"
+        )
+    return out
+
+
+# -- counting and eliminating ----------------------------------------------------------------
+@dataclass(frozen=True)
+class Dof:
+    """The degrees-of-freedom count, with the words that explain it."""
+
+    unknowns: tuple[Unknown, ...]
+    equations: tuple[str, ...]
+    fixed: tuple[str, ...]
+    """what fixes the final state, e.g. 'v by rigid'"""
+    message: str
+
+    @property
+    def ok(self) -> bool:
+        return len(self.unknowns) == len(self.equations)
+
+
+def best_rows(A, k: int) -> list[int] | None:
+    """The ``k`` rows of ``A`` (equations × linear unknowns) that fix the unknowns best
+    (largest |det|), or None when no ``k`` rows fix them (they do not enter independently)."""
+    import numpy as np
+
+    best, best_det = None, 0.0
+    for rows in itertools.combinations(range(A.shape[0]), k):
+        det = abs(np.linalg.det(A[list(rows)]))
+        if det > best_det * (1 + 1e-12):
+            best, best_det = list(rows), det
+    return best if best_det > 1e-14 else None

@@ -6,12 +6,14 @@ from textual.app import ComposeResult, SystemCommand
 from textual.binding import Binding
 from textual.widgets import Label, Static, TextArea
 
+from balance.kinds import RESERVED
 from balance.worksheet import HeatTerm, System, Worksheet
 
 from ..widgets.choice_list import ChoiceList
 from ..widgets.field_row import FieldRow
 from .step import StepScreen
 
+#: The kinds a worksheet may name (balance.kinds), in words; the reserved ones are shown greyed.
 KINDS = [
     ("closed", "closed: no mass crosses the boundary"),
     ("open", "open: streams cross it (not available yet)"),
@@ -71,7 +73,7 @@ temperature for heat from a hotter jacket (that hides the entropy generated).
     def compose_form(self) -> ComposeResult:
         ws = self.worksheet
         yield Label("Kind of system", classes="form-label")
-        yield ChoiceList(KINDS, ws.system.kind, disabled_values=("open",), id="kind")
+        yield ChoiceList(KINDS, ws.system.kind, disabled_values=tuple(RESERVED), id="kind")
         yield FieldRow("Inside", ws.system.inside, id="inside", placeholder="what the boundary encloses",
                        tooltip="What the boundary encloses")
         default = self.app.session.extras.get("T_boundary", "")

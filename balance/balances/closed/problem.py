@@ -12,14 +12,14 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-from .balances.control_volume import Unknown
-from .convention import Convention
-from .errors import InputError, SpecificationError
-from .models.base import PropertyModel
-from .species import Species
-from .state import State, make_fluid, read_specs
-from .units import dimension_of, parse
-from .worksheet import UNKNOWN, Worksheet
+from ...convention import Convention
+from ...errors import InputError, SpecificationError
+from ...models.base import PropertyModel
+from ...species import Species
+from ...state import State, make_fluid, read_specs
+from ...units import dimension_of, parse
+from ...worksheet import UNKNOWN, Worksheet
+from ..control_volume import Dof, Heat, Unknown, Work, check_term_names, read_heat, read_work
 
 
 @dataclass(frozen=True)
@@ -30,39 +30,6 @@ class Compartment:
     state: State | None
     V: float | None
     """volume [m3]; None when the amount is the unknown"""
-
-
-@dataclass(frozen=True)
-class Heat:
-    name: str
-    Q: float | None
-    """heat to the system [J]; None when unknown"""
-    T_boundary: float | None
-    """boundary or reservoir temperature [K]"""
-    T_boundary_note: str = ""
-
-
-@dataclass(frozen=True)
-class Work:
-    name: str
-    kind: str
-    W_on: float | None
-    """work done on the system [J]; None when unknown"""
-
-
-@dataclass(frozen=True)
-class Dof:
-    """The degrees-of-freedom count, with the words that explain it."""
-
-    unknowns: tuple[Unknown, ...]
-    equations: tuple[str, ...]
-    fixed: tuple[str, ...]
-    """what fixes the final state, e.g. 'v by rigid'"""
-    message: str
-
-    @property
-    def ok(self) -> bool:
-        return len(self.unknowns) == len(self.equations)
 
 
 @dataclass
@@ -100,8 +67,8 @@ class Problem:
 
     def linear_unknowns(self) -> list[Unknown]:
         """The unknowns that enter the balances linearly: heat, work and the amount."""
-        out = [Unknown("heat", h.name) for h in self.heat if h.Q is None]
-        out += [Unknown("work", w.name) for w in self.work if w.W_on is None]
+        out = [h.unknown for h in self.heat if h.Q is None]
+        out += [w.unknown for w in self.work if w.W_on is None]
         if self.n is None:
             out.append(Unknown("amount"))
         return out
@@ -117,8 +84,6 @@ class Problem:
 
 def prepare(ws: Worksheet) -> Problem:
     """Read a worksheet into a Problem; raises InputError naming the field."""
-    if ws.system.kind != "closed":
-        raise InputError("system.kind", "open systems (streams) are not available yet; use 'closed'")
     p_atm = parse(ws.heading.atmosphere or "1.01325 bar", "pressure", "worksheet.atmosphere")
     if not ws.fluid.species:
         raise InputError("fluid.species", "give the species, e.g. 'N2' (`joulebook species` lists them)")
@@ -216,13 +181,10 @@ def prepare(ws: Worksheet) -> Problem:
         if n_poly < 0:
             raise InputError("process.n", f"expected a polytropic exponent >= 0; got {ws.process.n!r}")
 
-    for kind, terms in (("heat", ws.heat), ("work", ws.work)):
-        names = [t.name for t in terms]
-        twice = sorted({n for n in names if names.count(n) > 1})
-        if twice:
-            raise InputError(kind, f"two {kind} terms are named {twice[0]!r}: give each its own name")
+    check_term_names(ws.heat, ws.work)
     reversible = "reversible" in constraints
-    heat = tuple(_heat(ws, i, constraints, first) for i in range(len(ws.heat)))
+    T_system = first.T if "isothermal" in constraints else None
+    heat = tuple(read_heat(h, T_system, "system temperature (isothermal)") for h in ws.heat)
     if "adiabatic" in constraints and heat:
         raise InputError("heat", f"the process is adiabatic but heat term '{ws.heat[0].name}' is given: remove one")
     if reversible:
@@ -235,7 +197,7 @@ def prepare(ws: Worksheet) -> Problem:
     if not heat and "adiabatic" not in constraints:
         notes.append("no heat term is given, so Q = 0: declare 'adiabatic' to say so explicitly")
     convention = Convention(ws.heading.convention)
-    work = tuple(_work(ws, i, convention) for i in range(len(ws.work)))
+    work = tuple(read_work(w, convention) for w in ws.work)
     dKE = parse(ws.process.dKE, "energy", "process.dKE") if ws.process.dKE else 0.0
     dPE = parse(ws.process.dPE, "energy", "process.dPE") if ws.process.dPE else 0.0
     return Problem(
@@ -319,28 +281,6 @@ def _final_volume(ws: Worksheet, p_atm: float) -> float | None:
     V = parse(text, "volume", "final.V")
     _positive(V, "final.V")
     return V
-
-
-def _heat(ws: Worksheet, i: int, constraints: set, first) -> Heat:
-    h = ws.heat[i]
-    where = f"heat '{h.name}'"
-    Q = None if h.Q.strip() == UNKNOWN else parse(h.Q, "energy", f"{where}.Q")
-    Tb = None
-    note = ""
-    if h.T_boundary:
-        Tb = parse(h.T_boundary, "temperature", f"{where}.T_boundary")
-        _positive(Tb, f"{where}.T_boundary")
-    elif "isothermal" in constraints:
-        Tb, note = first.T, "system temperature (isothermal)"
-    return Heat(h.name, Q, Tb, note)
-
-
-def _work(ws: Worksheet, i: int, convention: Convention) -> Work:
-    w = ws.work[i]
-    where = f"work '{w.name}'"
-    if w.W.strip() == UNKNOWN:
-        return Work(w.name, w.kind, None)
-    return Work(w.name, w.kind, convention.work_on(parse(w.W, "energy", f"{where}.W")))
 
 
 def count_dof(p: Problem) -> Dof:

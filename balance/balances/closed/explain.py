@@ -6,7 +6,7 @@ reviewer can follow every figure with a calculator.
 
 from __future__ import annotations
 
-from .units import R
+from ...units import R
 
 
 def _kJ(x: float) -> str:
@@ -14,7 +14,7 @@ def _kJ(x: float) -> str:
 
 
 def explain(r) -> list[str]:
-    """Lines of equations with numbers substituted for a closed.Result."""
+    """Lines of equations with numbers substituted for a closed-system Result."""
     p = r.problem
     f = r.final
     fp = f.point

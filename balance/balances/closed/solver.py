@@ -1,0 +1,209 @@
+"""The closed-system search: the balances' equations and their solution.
+
+First law (canonical form inside: heat to the system and work done on the
+system positive):
+
+    ΔU + ΔKE + ΔPE = Σ Q_k + Σ W_k + W_boundary,   ΔU = n u2 - Σ n_i u1,i
+
+Second law:
+
+    S_gen = ΔS_system + ΔS_surroundings = (n s2 - Σ n_i s1,i) - Σ Q_k / T_k  >= 0
+
+Boundary work on the system along the path:
+
+    rigid        W_b = 0
+    isobaric     W_b = -P (V2 - V1)
+    isothermal   W_b = n (a2 - a1), a = u - T s   (= -∫P dV along the isotherm)
+    polytropic   W_b = (P2 V2 - P1 V1)/(n - 1)    (n = 1: -P1 V1 ln(V2/V1))
+
+Unknown heat and work values, and an unknown amount, enter these equations
+linearly; they are eliminated exactly, so the search is only over the final
+state's free properties: none (a direct flash), one (a bracket searched
+outward from the initial state, then
+Brent's method) or two (scipy's root from the initial state, then verified).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from ...errors import InputError, SolveError, SpecificationError, TwoPhaseError
+from ...models.base import Point
+from ...rootfind import scan_root
+from ...units import R
+from ..control_volume import TOLERANCE, Unknown, best_rows
+from .problem import Problem
+from .result import Result, result_of
+
+AMOUNT = Unknown("amount")
+
+
+def solve(p: Problem) -> Result:
+    """Solve a prepared problem; raises SpecificationError or SolveError."""
+    dof = p.dof
+    if not dof.ok:
+        raise SpecificationError(dof.message)
+    solver = _Solver(p)
+    final, lin, method = solver.run()
+    return result_of(solver, final, lin, method)
+
+
+class _Solver:
+    def __init__(self, p: Problem):
+        self.p = p
+        self.evaluations = 0
+        self.lin_names = p.linear_unknowns()
+        first = p.gases[0].state.point
+        n_guess = p.n if p.n is not None else 1.0
+        self.E_scale = max(n_guess * R * first.T, 1e-30)
+        self.S_scale = n_guess * R
+
+    def amount(self, lin: dict) -> float:
+        return self.p.n if self.p.n is not None else lin[AMOUNT]
+
+    def initial_sums(self, n: float):
+        """Σ n_i u_i, Σ n_i s_i and Σ V_i of the initial compartments."""
+        U = S = V = 0.0
+        for c in self.p.gases:
+            ni = c.state.n if self.p.n is not None else n
+            U += ni * c.state.point.u
+            S += ni * c.state.point.s
+            V += ni * c.state.point.v
+        V += sum(c.V for c in self.p.initial if c.state is None)
+        return U, S, V
+
+    def boundary_work(self, final: Point, n: float) -> float:
+        """Work done on the system by its moving boundary [J]."""
+        p = self.p
+        first = p.gases[0].state.point
+        _, _, V1 = self.initial_sums(n)
+        V2 = n * final.v
+        if p.path == "rigid":
+            return 0.0
+        if p.path == "isobaric":
+            return -first.P * (V2 - V1)
+        if p.path == "isothermal":
+            return n * (final.a - first.a)
+        if p.path == "polytropic":
+            k = p.n_poly
+            if abs(k - 1.0) < 1e-12:
+                return -first.P * V1 * math.log(V2 / V1)
+            return (final.P * V2 - first.P * V1) / (k - 1.0)
+        return 0.0  # 'given': the boundary term is one of the work terms
+
+    def residuals(self, final: Point, lin: dict) -> np.ndarray:
+        """Scaled residuals of every equation at a final state and linear unknowns."""
+        p = self.p
+        n = self.amount(lin)
+        U1, S1, _ = self.initial_sums(n)
+        Q = sum(lin[h.unknown] if h.Q is None else h.Q for h in p.heat)
+        W = sum(lin[w.unknown] if w.W_on is None else w.W_on for w in p.work)
+        energy = n * final.u - U1 + p.dKE + p.dPE - Q - W - self.boundary_work(final, n)
+        out = [energy / self.E_scale]
+        if p.reversible:
+            q_over_t = sum(
+                (lin[h.unknown] if h.Q is None else h.Q) / h.T_boundary for h in p.heat
+            )
+            out.append((n * final.s - S1 - q_over_t) / self.S_scale)
+        if p.path == "polytropic":
+            first = p.gases[0].state.point
+            k = p.n_poly
+            out.append(final.P * final.v**k / (first.P * first.v**k) - 1.0)
+        return np.array(out)
+
+    def eliminate(self, final: Point):
+        """Solve the linear unknowns at this final state; return them and the leftover residuals."""
+        self.evaluations += 1
+        names = self.lin_names
+        zero = {k: 0.0 for k in names}
+        c = self.residuals(final, zero)
+        if not names:
+            return zero, c
+        A = np.empty((len(c), len(names)))
+        for j, k in enumerate(names):
+            A[:, j] = self.residuals(final, {**zero, k: 1.0}) - c
+        rows = best_rows(A, len(names))
+        if rows is None:
+            raise SolveError(
+                f"{', '.join(u.words() for u in names)} cannot be found from these balances (they do not enter them independently)"
+            )
+        x = np.linalg.solve(A[rows], -c[rows])
+        lin = dict(zip(names, x))
+        rest = [i for i in range(len(c)) if i not in rows]
+        return lin, (A[rest] @ x + c[rest])
+
+    def state(self, specs: dict[str, float]) -> Point:
+        return self.p.model.flash(specs, field="final")
+
+    def run(self):
+        p = self.p
+        fixed = p.final_fixed
+        free = 2 - len(fixed)
+        if free == 0:
+            final = self.state(dict(fixed))
+            lin, _ = self.eliminate(final)
+            return final, lin, "final state fixed directly; linear unknowns from the balances"
+        if free == 1:
+            return self._one(fixed)
+        return self._two()
+
+    def _one(self, fixed: dict[str, float]):
+        (key, value), = fixed.items()
+        first = self.p.gases[0].state.point
+        model = self.p.model
+        # The free property: one the balance residual is monotone in (u, h and s
+        # rise with T at fixed v or P since cv, cp > 0; at fixed T, or across a
+        # dome at fixed P, the volume is the coordinate that moves).
+        if key == "T" or (key in ("P", "u", "h", "s", "x") and model.two_phase):
+            var, start = "v", first.v
+            lo, hi = model.v_bounds(first.T)
+            lo, hi = max(lo, first.v * 1e-4), min(hi, first.v * 1e5)
+        else:
+            var, start = "T", first.T
+            lo, hi = model.T_bounds()
+        grid = np.geomspace(lo, hi, 400)
+
+        def f(theta):
+            final = self.state({key: value, var: theta})
+            return float(self.eliminate(final)[1][0])
+
+        theta, jumps, skipped = scan_root(f, grid, start=start, skip=(InputError, ValueError, ArithmeticError))
+        if theta is None:
+            if jumps or any(isinstance(exc, TwoPhaseError) for exc in skipped):
+                raise TwoPhaseError(
+                    "final",
+                    f"the balance puts the final state inside the two-phase region of {model.label}; "
+                    "use the reference model for a liquid-vapour mixture",
+                )
+            raise SolveError(
+                f"no final state with {key} fixed satisfies the balance between {var} = {lo:.4g} and {hi:.4g} "
+                "(SI); check the given values and the sign of heat and work"
+            )
+        final = self.state({key: value, var: theta})
+        lin, rest = self.eliminate(final)
+        return final, lin, (
+            f"one free property ({var}2): bracket searched outward from the initial {var}, then Brent's method"
+        )
+
+    def _two(self):
+        first = self.p.gases[0].state.point
+
+        def f(z):
+            final = self.state({"T": math.exp(z[0]), "v": math.exp(z[1])})
+            return self.eliminate(final)[1]
+
+        starts = [(first.T, first.v), (first.T, first.v * 2), (first.T * 1.5, first.v), (first.T * 0.7, first.v * 0.5)]
+        from scipy.optimize import root as nd_root  # lazy: scipy.optimize costs ~0.4 s to import
+
+        for T0, v0 in starts:
+            try:
+                sol = nd_root(f, [math.log(T0), math.log(v0)], method="hybr", options={"xtol": 1e-13})
+            except (InputError, ValueError, FloatingPointError):
+                continue
+            if sol.success and np.max(np.abs(sol.fun)) < TOLERANCE:
+                final = self.state({"T": math.exp(sol.x[0]), "v": math.exp(sol.x[1])})
+                lin, _ = self.eliminate(final)
+                return final, lin, "two free properties (T2, v2): scipy root (hybr), verified"
+        raise SolveError("the solver did not converge on a final state (two free properties); give T2, P2 or v2")

@@ -1,0 +1,96 @@
+"""The kinds of balance, by ``[system] kind``: one registry.
+
+A worksheet says what its boundary is (``[system] kind``); this registry
+says, for each kind, which worksheet sections it reads and which module
+balances it. The façade (:mod:`balance.api`) prepares, solves and files a
+result (the record's solve entry) through the kind it looks up here, so no
+other module branches on the kind.
+
+A kind's module provides three functions:
+
+``prepare(worksheet) -> Problem``
+    read the worksheet's text into SI numbers and count its degrees of freedom
+    (``Problem.dof``); raise InputError naming the field;
+``solve(problem) -> Result``
+    solve it; raise SpecificationError or SolveError;
+``as_json(result) -> dict``
+    everything in the result, quantities as ``{"value", "unit"}`` in SI: what
+    ``joulebook solve --json`` prints and what a record's solve entry holds.
+
+Modules are named, not imported, here (as Textual's screen registry names
+screens): reading the registry costs nothing, and a kind's numerics load on
+its first solve. A new kind (a steady-flow device, a transient vessel) is a
+module beside :mod:`balance.balances.closed`, sharing
+:mod:`balance.balances.control_volume`, and one :class:`Kind` below.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from importlib import import_module
+from types import MappingProxyType
+
+from .errors import InputError
+
+
+@dataclass(frozen=True)
+class Kind:
+    """One kind of balance."""
+
+    name: str
+    """as ``[system] kind`` writes it"""
+    title: str
+    """in words, e.g. 'closed system'"""
+    sections: tuple[str, ...]
+    """the worksheet sections it reads, in the order a record takes them"""
+    module: str
+    """the module that balances it (``prepare``, ``solve``, ``as_json``)"""
+
+    def _balance(self):
+        return import_module(self.module)
+
+    def prepare(self, worksheet):
+        """The problem in SI numbers (``Problem.dof`` counts it); raises InputError naming the field."""
+        return self._balance().prepare(worksheet)
+
+    def solve(self, problem):
+        """The solved balance; raises SpecificationError or SolveError."""
+        return self._balance().solve(problem)
+
+    def as_json(self, result) -> dict:
+        """Everything in a result (what a record's solve entry holds after its pins)."""
+        return self._balance().as_json(result)
+
+
+#: The kinds that can be balanced, by name.
+KINDS = MappingProxyType({k.name: k for k in (
+    Kind("closed", "closed system",
+         ("worksheet", "system", "fluid", "initial", "final", "heat", "work", "process"),
+         "balance.balances.closed"),
+)})
+
+#: Kinds a worksheet may already name, and why they cannot be balanced yet.
+RESERVED = MappingProxyType({
+    "open": "open systems (streams) are not available yet; use 'closed'",
+})
+
+
+def kind_of(name: str, field: str = "system.kind") -> Kind:
+    """The kind a worksheet names; raises InputError naming ``field`` for a reserved or unknown one.
+
+    >>> kind_of("closed").title
+    'closed system'
+    """
+    if name in KINDS:
+        return KINDS[name]
+    if name in RESERVED:
+        raise InputError(field, RESERVED[name])
+    raise InputError(field, f"expected {' or '.join(repr(k) for k in KINDS)}; got {name!r}")
+
+
+def known(name: str) -> bool:
+    """Whether a worksheet may name this kind (one that can be balanced, or a reserved one)."""
+    return name in KINDS or name in RESERVED
+
+
+__all__ = ["KINDS", "Kind", "RESERVED", "kind_of", "known"]
