@@ -10,8 +10,6 @@ These tests run on the draft alone (no record package needed).
 
 from __future__ import annotations
 
-import pytest
-
 from balance.worksheet import Worksheet
 from tests.test_tui_pilot import SIZE, author, fill, in_row, ready, settle, wait_until  # noqa: F401
 from tui.app import JoulebookApp
@@ -50,13 +48,6 @@ W = "1 kJ"
 constraints = ["polytropic"]
 n = "1.3"
 """
-
-
-@pytest.fixture
-def draft_only(monkeypatch):
-    import tui.session as session_module
-
-    monkeypatch.setattr(session_module, "record_module", lambda: None)
 
 
 def app_on(tmp_path, step: str) -> JoulebookApp:
@@ -101,7 +92,7 @@ STATE_CASES = [
 ]
 
 
-async def test_every_state_field_rejects_bad_text_inline(tmp_path, author, draft_only):
+async def test_every_state_field_rejects_bad_text_inline(tmp_path, author):
     app = app_on(tmp_path, "states")
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
@@ -120,7 +111,7 @@ async def test_every_state_field_rejects_bad_text_inline(tmp_path, author, draft
     assert reopened.worksheet.initial[0].props == typed.initial[0].props
 
 
-async def test_terms_fields_reject_bad_text_inline(tmp_path, author, draft_only):
+async def test_terms_fields_reject_bad_text_inline(tmp_path, author):
     app = app_on(tmp_path, "terms")
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
@@ -135,7 +126,7 @@ async def test_terms_fields_reject_bad_text_inline(tmp_path, author, draft_only)
         assert app.is_running
 
 
-async def test_purpose_boundary_and_process_fields_reject_bad_text(tmp_path, author, draft_only):
+async def test_purpose_boundary_and_process_fields_reject_bad_text(tmp_path, author):
     app = app_on(tmp_path, "purpose")
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
@@ -159,7 +150,7 @@ async def test_purpose_boundary_and_process_fields_reject_bad_text(tmp_path, aut
         assert app.is_running
 
 
-async def test_the_message_goes_when_the_text_is_put_right(tmp_path, author, draft_only):
+async def test_the_message_goes_when_the_text_is_put_right(tmp_path, author):
     app = app_on(tmp_path, "purpose")
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
@@ -172,7 +163,7 @@ async def test_the_message_goes_when_the_text_is_put_right(tmp_path, author, dra
         assert app.session.worksheet.heading.atmosphere == "1 bar"
 
 
-async def test_overrides_are_typed_in_the_fluid_step_and_a_bad_one_is_named(tmp_path, author, draft_only):
+async def test_overrides_are_typed_in_the_fluid_step_and_a_bad_one_is_named(tmp_path, author):
     """Overrides replace species constants (NAME = VALUE; ...). The check names a bad one, the
     fluid step is marked invalid, and the text stays as typed."""
     app = app_on(tmp_path, "fluid")
@@ -190,7 +181,7 @@ async def test_overrides_are_typed_in_the_fluid_step_and_a_bad_one_is_named(tmp_
         assert app.statuses["fluid"] == "complete" and not app.check.message.startswith("not ready (step 3)")
 
 
-async def test_keys_typed_ahead_of_the_screen_land_in_the_next_field(tmp_path, author, draft_only):
+async def test_keys_typed_ahead_of_the_screen_land_in_the_next_field(tmp_path, author):
     """A burst of keys (a fast typist, a slow SSH link): after Enter, the rest goes to the next field.
 
     The keys are queued all at once, before the app has handled any, as a
@@ -210,7 +201,7 @@ async def test_keys_typed_ahead_of_the_screen_land_in_the_next_field(tmp_path, a
         assert in_row("purpose")(app.focused)
 
 
-async def test_an_unknown_species_is_named_and_the_step_marked_invalid(tmp_path, author, draft_only):
+async def test_an_unknown_species_is_named_and_the_step_marked_invalid(tmp_path, author):
     app = app_on(tmp_path, "fluid")
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
@@ -227,7 +218,7 @@ async def test_an_unknown_species_is_named_and_the_step_marked_invalid(tmp_path,
         assert app.is_running
 
 
-async def test_dof_recount_follows_every_edit(tmp_path, author, draft_only):
+async def test_dof_recount_follows_every_edit(tmp_path, author):
     """The live degrees-of-freedom line follows each edit (its speed, under 100 ms for a
     cubic, is measured by benchmarks/bench_tui_recount.py, not here)."""
     app = app_on(tmp_path, "states")

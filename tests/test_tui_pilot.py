@@ -170,7 +170,6 @@ async def solve_on_results(pilot) -> None:
 
 # -- the demo -----------------------------------------------------------------------------------
 async def test_demo_walked_solved_recorded_and_signed(tmp_path, author):
-    pytest.importorskip("balance.record")
     from tui.session import demo_session
 
     session = demo_session(SAMPLES / "n2-buffer-into-receiver.toml", tmp_path / "demo.jbk")
@@ -225,7 +224,6 @@ async def test_demo_walked_solved_recorded_and_signed(tmp_path, author):
 
 # -- typed from nothing -----------------------------------------------------------------------------
 async def test_methane_isothermal_typed_from_scratch(tmp_path, author):
-    pytest.importorskip("balance.record")
     app = new_app(tmp_path)
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
@@ -267,7 +265,6 @@ async def test_methane_isothermal_typed_from_scratch(tmp_path, author):
 
 
 async def test_argon_rupture_two_compartments_typed(tmp_path, author):
-    pytest.importorskip("balance.record")
     app = new_app(tmp_path)
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
@@ -302,7 +299,6 @@ async def test_argon_rupture_two_compartments_typed(tmp_path, author):
 
 
 async def test_air_reversible_with_a_boundary_work_term(tmp_path, author):
-    pytest.importorskip("balance.record")
     app = new_app(tmp_path)
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
@@ -339,7 +335,6 @@ async def test_air_reversible_with_a_boundary_work_term(tmp_path, author):
 
 # -- safety of work --------------------------------------------------------------------------------
 async def test_uncommitted_edits_survive_a_quit_and_come_back(tmp_path, author):
-    pytest.importorskip("balance.record")
     app = sample_app(tmp_path, "n2-buffer-into-receiver.toml")
     path = app.session.path
     async with app.run_test(size=SIZE) as pilot:
@@ -367,7 +362,6 @@ async def test_uncommitted_edits_survive_a_quit_and_come_back(tmp_path, author):
 
 
 async def test_leaving_a_step_commits_it_and_quitting_clean_does_not_ask(tmp_path, author):
-    pytest.importorskip("balance.record")
     app = sample_app(tmp_path, "n2-buffer-into-receiver.toml")
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
@@ -384,12 +378,9 @@ async def test_leaving_a_step_commits_it_and_quitting_clean_does_not_ask(tmp_pat
     assert not app.is_running
 
 
-async def test_draft_restores_text_exactly_without_a_record_package(tmp_path, author, monkeypatch):
-    """The fallback: with no record package the draft alone keeps the work."""
-    import tui.session as session_module
-
-    monkeypatch.setattr(session_module, "record_module", lambda: None)
-    app = new_app(tmp_path, "draft-only.jbk")
+async def test_the_draft_restores_uncommitted_text_exactly(tmp_path, author):
+    """What was typed and not committed comes back from the draft, bad text and all."""
+    app = new_app(tmp_path, "drafted.jbk")
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
         await fill(pilot, in_row("title"), "Half-typed title")
@@ -397,10 +388,11 @@ async def test_draft_restores_text_exactly_without_a_record_package(tmp_path, au
         await next_step(pilot)
         await fill(pilot, in_row("inside"), "the gas")
         await settle(pilot)
-    reopened = Session.open(tmp_path / "draft-only.jbk")
+    reopened = Session.open(tmp_path / "drafted.jbk")
     assert reopened.worksheet.heading.title == "Half-typed title"
     assert reopened.worksheet.heading.atmosphere == "0.98 barr"
     assert reopened.worksheet.system.inside == "the gas"
     assert reopened.step == "boundary"
-    assert reopened.dirty() == ("system",)  # leaving step 1 committed it (in the draft)
-    assert not (tmp_path / "draft-only.jbk").exists()  # no record file without the package
+    assert reopened.dirty() == ("system",)  # leaving step 1 committed it, to the record
+    assert [e.kind for e in reopened.entries()] == ["opening", "purpose and basis"]
+    assert reopened.committed.heading.atmosphere == "0.98 barr"  # kept as typed there too

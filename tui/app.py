@@ -49,7 +49,7 @@ class Outcome:
     """the solved balance (balance.balances.closed.Result)"""
     error: str = ""
     trace: object | None = None
-    """balance.paths.Trace once the diagrams are computed"""
+    """balance.diagrams.Trace once the diagrams are computed"""
     seconds: float = 0.0
 
 
@@ -218,9 +218,9 @@ class JoulebookApp(App):
         if ws == self.session.worksheet:
             return
         self.session.edit(ws)
-        if self.session.write_error:
-            self.notify(f"draft not saved: {self.session.write_error}", severity="error", timeout=10)
-            self.session.write_error = ""
+        error = self.session.take_write_error()
+        if error:
+            self.notify(f"draft not saved: {error}", severity="error", timeout=10)
         self.worksheet = ws
         dirty = self.session.dirty()
         if dirty != self.dirty:

@@ -57,11 +57,6 @@ def show(value: float | None, kind: str, units: str, digits: int = 6) -> str:
     return f"{converted:.{digits}g}"
 
 
-def per_mass(point_value: float, M: float) -> float:
-    """A molar value [x/mol] per unit mass [x/kg]."""
-    return point_value / M
-
-
 def converter(kind: str, units: str):
     """A function taking SI values (mass-based for intensive ones) to the chosen set.
 

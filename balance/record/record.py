@@ -18,7 +18,7 @@ from .format import (COMMENT, FORMAT, GENESIS, LIST_SECTIONS, MAGIC_LINE, NOTE, 
                      SECTION_KINDS, SIGN_OFF, SOLVE, TAG_SEAL, Entry, clean_author, entry_lines,
                      format_time, parse, prune, seal)
 from .replay import DEFAULT_TOLERANCE, ReplayReport, fold, replay_entries, solve_data, worksheet_of
-from .review import (comment_problem, current_revision, open_comments, resolution_problem,
+from .review import (comment_problem, current_revision, open_comments, resolution_problem, roles_of,
                      signoff_problem)
 from .signing import NAMESPACE, ROLES, check_allowed_signers, message
 from .signing import sign as ssh_sign
@@ -82,6 +82,42 @@ class Record:
 
     def last_solve(self) -> Entry | None:
         return next((e for e in reversed(self._entries) if e.kind == SOLVE), None)
+
+    @property
+    def roles(self) -> tuple[str, ...]:
+        """The sign-off roles, in their order (pinned in the opening entry)."""
+        return roles_of(self._entries)
+
+    def needs_solve(self) -> bool:
+        """Whether the inputs changed since the last solve entry (a step entry follows it)."""
+        for e in reversed(self._entries):
+            if e.kind == SOLVE:
+                return False
+            if e.section:
+                return True
+        return False
+
+    def signed(self) -> bool:
+        """Whether a sign-off follows the last change of the calculation (only comments
+        and resolutions may come after it)."""
+        for e in reversed(self._entries):
+            if e.kind == SIGN_OFF:
+                return True
+            if e.kind not in (COMMENT, RESOLUTION):
+                return False
+        return False
+
+    def next_role(self) -> str:
+        """The first role not yet signed since the calculation last changed (the last role
+        once all are)."""
+        signed = set()
+        for e in reversed(self._entries):
+            if e.kind == SIGN_OFF:
+                signed.add(e.data.get("role"))
+            elif e.kind not in (COMMENT, RESOLUTION):
+                break
+        roles = self.roles
+        return next((r for r in roles if r not in signed), roles[-1] if roles else "")
 
     def worksheet(self) -> Worksheet:
         """The current worksheet: the replay of every step entry (raises InputError naming the field)."""

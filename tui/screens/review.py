@@ -67,23 +67,11 @@ that starts a new revision, which needs signing again.
         table.add_columns("#", "kind", "by", "at (UTC)")
         self.reload()
 
-    def check_action(self, action: str, parameters) -> bool | None:
-        if action in ("comment", "resolve", "sign"):
-            return True if self.app.session.record_available else None
-        return True
-
     def reload(self, select_seq: int | None = None) -> None:
         session = self.app.session
         table = self.query_one("#entries", DataTable)
         summary = self.query_one("#summary", Static)
         table.clear()
-        if not session.record_available:
-            summary.update(Content.styled(
-                "The record package is not installed in this build: edits are kept in the draft "
-                f"{session.draft_path.name} only, and there is nothing to sign.", "$text-warning"))
-            for button in self.query(Button):
-                button.disabled = True
-            return
         entries = session.entries()
         for e in entries:
             table.add_row(str(e.seq), e.kind, e.author, e.time.replace("T", " ").rstrip("Z"), key=str(e.seq))

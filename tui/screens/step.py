@@ -134,6 +134,3 @@ class StepScreen(Screen):
         """Check every unit-aware field again (after warm-up, or a new atmosphere)."""
         for row in self.query(FieldRow):
             row.revalidate()
-
-    def refresh_from_session(self) -> None:
-        """Show the session's worksheet again after a change made elsewhere (override)."""
