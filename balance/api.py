@@ -47,7 +47,7 @@ if TYPE_CHECKING:  # the rest loads on first use: the app imports this module be
     from .balances.closed import Problem, Result
     from .kinds import Kind
     from .models.base import PropertyModel
-    from .paths import Trace
+    from .diagrams import Trace
     from .species import Species
 
 #: What :func:`read` takes: TOML text, a path, the sections as plain data, or a worksheet.
@@ -213,9 +213,9 @@ def entry_data(solved: Attempt) -> dict:
 # -- what the app draws and advises --------------------------------------------------------
 def trace(result: Result) -> Trace:
     """The P–v and T–s diagrams' lines of a result; raises BalanceError."""
-    from .paths import trace as trace_paths
+    from .diagrams import trace as trace_diagrams
 
-    return trace_paths(result)
+    return trace_diagrams(result)
 
 
 def advise(ws: Worksheet) -> Advice:

@@ -31,7 +31,7 @@ HEADLESS = [
     "balance.balances.closed",
     "balance.api",
     "balance.adequacy",
-    "balance.paths",
+    "balance.diagrams",
     "balance.record",
     "tui.cli",
 ]

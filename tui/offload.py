@@ -59,7 +59,7 @@ def _quiet() -> None:
 
 def _warm() -> None:
     """Load the domain, the unit registry and CoolProp before the first job."""
-    from balance import adequacy, paths  # noqa: F401
+    from balance import adequacy, diagrams  # noqa: F401
     from balance.balances import closed  # noqa: F401
     from balance.species import catalogue
     from balance.units import registry

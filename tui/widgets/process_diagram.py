@@ -1,6 +1,6 @@
 """P–v and T–s diagrams of the process, drawn in the terminal with plotext.
 
-The widget only draws: the points come from :func:`balance.paths.trace`
+The widget only draws: the points come from :func:`balance.diagrams.trace`
 (molar SI) and are shown per unit mass in the display units.
 """
 

@@ -1,4 +1,4 @@
-"""The process as lines for the P-v and T-s diagrams.
+"""The diagrams: the process drawn as lines on the P-v and T-s planes.
 
 Quasi-static paths are followed through the model; processes without one
 (free expansion, a ruptured membrane, a boundary work given as a number)

@@ -11,7 +11,7 @@ import pytest
 
 from balance import api
 from balance.adequacy import advise
-from balance.paths import trace
+from balance.diagrams import trace
 from tests.helpers import WET_WATER_PR, sample, sheet
 
 
