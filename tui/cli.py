@@ -130,14 +130,14 @@ def cmd_demo(args) -> int:
         return cmd_solve(args)
     from .session import demo_session
 
-    return _run_app(demo_session(sample_path(DEMO_SAMPLE), args.record))
+    return args.run_app(demo_session(sample_path(DEMO_SAMPLE), args.record))
 
 
 def cmd_open(args) -> int:
     from .session import open_target
 
     _announce_reference_solve(args.record)
-    return _run_app(open_target(args.record, must_exist=args.command == "open"))
+    return args.run_app(open_target(args.record, must_exist=args.command == "open"))
 
 
 def _announce_reference_solve(target: str | None) -> None:
@@ -158,7 +158,8 @@ def _announce_reference_solve(target: str | None) -> None:
               file=sys.stderr, flush=True)
 
 
-def _run_app(session) -> int:
+def run_app(session) -> int:
+    """Run the terminal app on ``session``; its exit code."""
     app = app_for(session)
     from .app import run
 
@@ -249,7 +250,9 @@ def build_parser():
 COMMANDS = ("solve", "check", "state", "species", "demo", "open", "record")
 
 
-def main(argv: list[str] | None = None) -> int:
+def main(argv: list[str] | None = None, *, run_app=run_app) -> int:
+    """``joulebook`` with ``argv`` (default: the command line). ``run_app(session) -> int``
+    runs the terminal app where a command opens it (a test passes a recorder)."""
     argv = list(sys.argv[1:] if argv is None else argv)
     # opening the app builds no parser: its first screen is timed (benchmarks/bench_tui_startup.py)
     if not argv:
@@ -263,6 +266,7 @@ def main(argv: list[str] | None = None) -> int:
     if not getattr(args, "func", None):
         build_parser().print_help()
         return EXIT_OK
+    args.run_app = run_app
     try:
         return args.func(args)
     except (InputError, SpecificationError) as exc:
