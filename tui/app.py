@@ -1,16 +1,12 @@
-"""The terminal app: a guided worksheet in eight steps.
+"""The terminal app: a guided worksheet, one step a screen (tui/steps.py lists them).
 
 The app holds the :class:`~tui.session.Session` and the few values every
 screen watches (each replaced, never mutated): the worksheet, the
 degrees-of-freedom check, the step statuses, the latest solve, the display
-units, what is uncommitted, and what is running in the background.
-
-Work that may be slow runs in thread workers and reports back with a
-message: the check (prepare + DOF count), the adequacy hint, the solve and
-the diagram. For the reference model the workers hand the work to its own
-process (:mod:`tui.offload`) and wait: CoolProp is never imported here.
-Errors from workers end up in one place,
-:meth:`JoulebookApp.on_worker_state_changed`.
+units, what is uncommitted, and what is running in the background. This
+module owns the steps, committing, quitting, help, units and the command
+palette; the work in the background (the check, the advice, the solve and
+its record entry, the diagrams) is :mod:`tui.background`.
 
 Nothing heavy is imported before the first screen is shown: numpy, scipy,
 pint and the models load in a warm-up worker after it.
@@ -19,20 +15,16 @@ pint and the models load in a warm-up worker after it.
 from __future__ import annotations
 
 import gc
-import time
-from dataclasses import dataclass, replace
 
-from textual import work
 from textual.app import App, SystemCommand
 from textual.binding import Binding
-from textual.message import Message
 from textual.reactive import reactive
-from textual.worker import Worker, WorkerState
 
 from balance.errors import BalanceError
 from balance.worksheet import Worksheet
 
 from . import offload
+from .background import BackgroundWork, Outcome
 from .session import Session
 from .steps import BY_ID, ORDER, STEPS, neighbour, screen_class
 
@@ -40,60 +32,7 @@ UNIT_SETS = ("si", "metric", "us")
 UNIT_NAMES = {"si": "SI", "metric": "metric engineering", "us": "US customary"}
 
 
-@dataclass(frozen=True)
-class Outcome:
-    """The latest solve: for which worksheet, and what came of it."""
-
-    worksheet: Worksheet
-    result: object | None = None
-    """the solved balance (balance.balances.closed.Result)"""
-    error: str = ""
-    trace: object | None = None
-    """balance.diagrams.Trace once the diagrams are computed"""
-    seconds: float = 0.0
-
-
-class Checked(Message):
-    def __init__(self, version: int, check) -> None:
-        super().__init__()
-        self.version = version
-        self.check = check
-
-
-class Advised(Message):
-    def __init__(self, worksheet: Worksheet, advice) -> None:
-        super().__init__()
-        self.worksheet = worksheet
-        self.advice = advice
-
-
-class Solved(Message):
-    def __init__(self, outcome: Outcome) -> None:
-        super().__init__()
-        self.outcome = outcome
-
-
-class Traced(Message):
-    def __init__(self, worksheet: Worksheet, trace) -> None:
-        super().__init__()
-        self.worksheet = worksheet
-        self.trace = trace
-
-
-class Recorded(Message):
-    """A solve entry was appended to the record (or failed to be)."""
-
-    def __init__(self, entry, error: str = "") -> None:
-        super().__init__()
-        self.entry = entry
-        self.error = error
-
-
-class Warmed(Message):
-    """numpy, scipy, pint and the models are loaded: units can be checked."""
-
-
-class JoulebookApp(App):
+class JoulebookApp(BackgroundWork, App):
     """joulebook's guided worksheet."""
 
     CSS_PATH = "app.tcss"
@@ -168,28 +107,6 @@ class JoulebookApp(App):
         # a moment later: the imports would compete for the GIL with the first frame's writing
         self.set_timer(0.05, self._start_background)
 
-    def _start_background(self) -> None:
-        if self._warm_first:
-            self.run_worker(self._warm_up, thread=True, group="warm", exit_on_error=False)
-        offload.warm(self.session.worksheet.fluid.model)
-
-    def _warm_up(self) -> None:
-        from balance.balances import closed  # noqa: F401  numpy, the models, the closed balance
-        from balance.species import catalogue
-        from balance.units import registry
-
-        registry()
-        catalogue()
-        self.post_message(Warmed())
-
-    def on_warmed(self, message: Warmed) -> None:
-        self.units_ready = True
-        if hasattr(self.screen, "revalidate"):
-            self.screen.revalidate()
-        self.start_check()
-        if self.session.step == "fluid":
-            self.start_advice()
-
     def on_unmount(self) -> None:
         self.session.flush()  # the latest draft is on disk before the app goes
         offload.shutdown()
@@ -197,20 +114,6 @@ class JoulebookApp(App):
     @staticmethod
     def make_screen(step: str):
         return screen_class(step)()
-
-    # -- the background indicator ---------------------------------------------
-    def _set_busy(self, key: str, text: str | None) -> None:
-        tasks = dict(self._busy_tasks)
-        if text:
-            tasks[key] = text
-        else:
-            tasks.pop(key, None)
-        self._busy_tasks = tasks
-        self.busy = "; ".join(dict.fromkeys(tasks.values()))  # the same words once
-
-    @property
-    def solving(self) -> bool:
-        return "solve" in self._busy_tasks
 
     # -- edits -------------------------------------------------------------------
     def edit(self, ws: Worksheet) -> None:
@@ -231,45 +134,6 @@ class JoulebookApp(App):
 
     def set_extra(self, key: str, value) -> None:
         self.session.set_extra(key, value)
-
-    def _slow(self, ws: Worksheet) -> bool:
-        """Whether the work goes to the reference-model process (with the indicator shown)."""
-        return offload.uses_reference(ws.fluid.model)
-
-    def _slow_text(self, doing: str) -> str:
-        if not offload.ready():
-            return "starting the reference model (seconds)"  # once a session; fits at 80 columns
-        return f"{doing} with the reference model"
-
-    def start_check(self) -> None:
-        if not self.units_ready:
-            return
-        self._version += 1
-        ws = self.session.worksheet
-        if self._slow(ws):
-            self._set_busy("check", self._slow_text("checking"))
-        self._check_worker(ws, self._version, frozenset(self._visited))
-
-    @work(thread=True, exclusive=True, group="check", exit_on_error=False)
-    def _check_worker(self, ws: Worksheet, version: int, visited: frozenset) -> None:
-        from .analysis import Check, check, statuses
-
-        try:
-            answer = offload.call(ws.fluid.model, check, ws, visited)
-        except offload.OffloadError as exc:
-            self.notify(str(exc), title="not checked", severity="error", timeout=10, markup=False)
-            answer = Check(ws, False, f"not checked: {exc}", statuses(ws, visited))
-        self.post_message(Checked(version, answer))
-
-    def on_checked(self, message: Checked) -> None:
-        if message.version != self._version:
-            return  # an older worksheet's count
-        self._set_busy("check", None)
-        was_ready = self.check is not None and self.check.ready
-        self.check = message.check
-        self._update_statuses()
-        if message.check.ready != was_ready:
-            self._bindings_changed()  # grey or ungrey Solve
 
     def _bindings_changed(self) -> None:
         """Ask the key bar to redraw (greyed actions may have become possible)."""
@@ -292,31 +156,6 @@ class JoulebookApp(App):
         statuses["review"] = "complete" if self.session.signed() else "incomplete"
         if statuses != self.statuses:
             self.statuses = statuses
-
-    def start_advice(self) -> None:
-        if not self.units_ready:
-            return
-        ws = self.session.worksheet
-        if self._slow(ws):
-            self._set_busy("advice", self._slow_text("evaluating the states"))
-        self._advice_worker(ws)
-
-    @work(thread=True, exclusive=True, group="advice", exit_on_error=False)
-    def _advice_worker(self, ws: Worksheet) -> None:
-        from balance import api
-        from balance.adequacy import Advice
-
-        try:
-            answer = offload.call(ws.fluid.model, api.advise, ws)
-        except offload.OffloadError as exc:
-            answer = Advice(ws.fluid.model, problems=(str(exc),), adequate=False)
-        self.post_message(Advised(ws, answer))
-
-    def on_advised(self, message: Advised) -> None:
-        if message.worksheet.fluid != self.session.worksheet.fluid:
-            return
-        self._set_busy("advice", None)
-        self.advice = message.advice
 
     # -- steps -----------------------------------------------------------------------
     def _visit(self, step: str) -> None:
@@ -412,94 +251,6 @@ class JoulebookApp(App):
         else:
             self.start_solve()
 
-    def start_solve(self) -> None:
-        self.commit_all(quiet=True)  # the record solves what it holds: commit first
-        ws = self.session.worksheet
-        self._set_busy("solve", self._slow_text("solving") if self._slow(ws) else "solving")
-        self._solve_worker(ws)
-
-    @work(thread=True, exclusive=True, group="solve", exit_on_error=False)
-    def _solve_worker(self, ws: Worksheet) -> None:
-        from . import analysis
-
-        t0 = time.perf_counter()
-        try:
-            solved = offload.call(ws.fluid.model, analysis.solve, ws)
-        except offload.OffloadError as exc:  # not solved at all: nothing to record
-            self.post_message(Solved(Outcome(ws, error=str(exc), seconds=time.perf_counter() - t0)))
-            return
-        self.post_message(Solved(Outcome(ws, solved.result, solved.message, seconds=time.perf_counter() - t0)))
-        self._record_solve(solved)  # the record files this very solve
-        if solved.result is None:
-            return
-        try:
-            drawn = offload.call(ws.fluid.model, analysis.trace, solved.result)
-        except BalanceError as exc:
-            self.notify(f"diagram not drawn: {exc}", severity="warning", markup=False)
-            drawn = None
-        self.post_message(Traced(ws, drawn))
-
-    def _record_solve(self, solved=None) -> None:
-        """Append the solve to the record, from a worker: ``solved`` as it is (the one
-        shown), or without it the record's due solve, worked out by :meth:`Session.append_solve`."""
-        try:
-            entry = self.session.append_solve(solved)
-        except BalanceError as exc:
-            self.post_message(Recorded(None, str(exc)))
-            return
-        self.post_message(Recorded(entry))
-
-    def solve_before_signing(self, then) -> bool:
-        """A sign-off covers a solve: when one is due on the reference model, record it in a
-        worker (the indicator shown) and call ``then`` on the UI thread after; False when no
-        solve has to wait for that model's process (the sign-off then solves as it goes).
-
-        Commit first: what is due is worked out from the record.
-        """
-        if not (self._slow(self.session.worksheet) and self.session.solve_due() is not None):
-            return False
-        self._set_busy("sign", self._slow_text("solving before the sign-off"))
-        self._sign_solve_worker(then)
-        return True
-
-    @work(thread=True, exclusive=True, group="sign", exit_on_error=False)
-    def _sign_solve_worker(self, then) -> None:
-        try:
-            self._record_solve()  # a failure is reported by on_recorded
-        finally:
-            self.call_from_thread(self._set_busy, "sign", None)
-        if self.session.solve_due() is None:
-            self.call_from_thread(then)
-        else:
-            self.notify("not signed off: the solve it covers was not recorded", severity="error", timeout=10)
-
-    def on_solved(self, message: Solved) -> None:
-        self._set_busy("solve", None)
-        self.outcome = message.outcome
-        self._update_statuses()
-
-    def on_traced(self, message: Traced) -> None:
-        if self.outcome is not None and self.outcome.worksheet == message.worksheet:
-            self.outcome = replace(self.outcome, trace=message.trace)
-
-    def on_recorded(self, message: Recorded) -> None:
-        if message.error:
-            self.notify(f"solve not recorded: {message.error}", severity="error", timeout=10)
-        elif message.entry is not None:
-            self.notify(f"solve recorded as entry {message.entry.seq}")
-        self._update_statuses()
-        self._bindings_changed()
-
-    # -- errors from workers: one place ------------------------------------------------------
-    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
-        if event.state != WorkerState.ERROR:
-            return
-        group = event.worker.group
-        self._set_busy({"check": "check", "advice": "advice", "solve": "solve"}.get(group, group), None)
-        error = event.worker.error
-        self.notify(f"{group}: {type(error).__name__}: {error}", title="internal error", severity="error",
-                    timeout=15)
-
     # -- help, units, theme ---------------------------------------------------------------------
     def action_help(self) -> None:
         from .screens.help import HelpScreen
@@ -538,7 +289,6 @@ class JoulebookApp(App):
         extra = getattr(screen, "step_commands", None)
         if extra is not None:
             yield from extra()
-
 
 def run(app: JoulebookApp) -> int:
     """Run the app; 0 when it closes normally."""
