@@ -35,6 +35,16 @@ def _load(path: str):
     return rec
 
 
+def _broken(rec, path: str, what: str) -> bool:
+    """Say on standard error that the record's chain is broken and what that means for ``what``
+    this command printed; True when it is (the command then exits 1, as verify does)."""
+    if rec.broken is None:
+        return False
+    seq, reason = rec.broken
+    print(f"joulebook: {path}: the chain is broken at entry {seq}: {reason}; {what}", file=sys.stderr)
+    return True
+
+
 def _allowed(args) -> str | None:
     if getattr(args, "allowed_signers", None):
         return args.allowed_signers
@@ -92,6 +102,9 @@ def cmd_show(args) -> int:
     status = {s.seq: s for s in v.signoffs}
     con = _console()
     con.print(Text(f"{args.record}: {len(rec.entries)} entries, revision {rec.revision}", style="bold"))
+    if rec.broken:
+        con.print(Text(f"The chain is BROKEN at entry {rec.broken[0]}: {rec.broken[1]}. The entries below are "
+                       "shown as read, not as filed.", style="bold red"), soft_wrap=True)
     for e in rec.entries:
         head = Text()
         head.append(f"entry {e.seq}", style="bold cyan")
@@ -111,7 +124,7 @@ def cmd_show(args) -> int:
     style = "green" if v.ok else ("yellow" if v.chain_ok and not v.problems else "red")
     for line in v.lines():
         con.print(Text(line, style=style if line.startswith("verdict") else ""), soft_wrap=True)
-    return EXIT_OK
+    return EXIT_FAILED if _broken(rec, args.record, "the entries shown are not the record as filed") else EXIT_OK
 
 
 @_pipe_safe
@@ -186,19 +199,16 @@ def cmd_diff(args) -> int:
     d = diff(rec, _point(rec, args.from_, "--from"), to)
     for line in d.lines():
         print(line)
-    return EXIT_OK
+    return EXIT_FAILED if _broken(rec, args.record, "the entries compared are not the record as filed") else EXIT_OK
 
 
 @_pipe_safe
 def cmd_replay(args) -> int:
     rec = _load(args.record)
-    chain = rec.verify()
-    if not chain.chain_ok:
-        print(f"joulebook: warning: {args.record}: the chain is broken at entry {chain.broken_seq}; "
-              "replaying anyway", file=sys.stderr)
     report = rec.replay(args.tolerance)
     for line in report.lines():
         print(line)
+    _broken(rec, args.record, "only the entries before it were replayed, and nothing is confirmed")
     return EXIT_OK if report.ok else EXIT_FAILED
 
 
@@ -216,14 +226,19 @@ def cmd_export(args) -> int:
         print(f"{args.output}: {args.format} report of {args.record} written")
     else:
         sys.stdout.write(text)
-    return EXIT_OK
+    return EXIT_FAILED if _broken(rec, args.record, "the report says so; its entries and results cannot be "
+                                                    "relied on") else EXIT_OK
 
 
 @_pipe_safe
 def cmd_worksheet(args) -> int:
     rec = _load(args.record)
-    sys.stdout.write(rec.worksheet().to_toml())
-    return EXIT_OK
+    ws = rec.worksheet()
+    if rec.broken:  # said in the TOML too, where the worksheet is kept
+        print(f"# joulebook: the record's chain is BROKEN at entry {rec.broken[0]}: this worksheet is folded "
+              "from its entries as read, not as filed")
+    sys.stdout.write(ws.to_toml())
+    return EXIT_FAILED if _broken(rec, args.record, "the worksheet printed is not the record's as filed") else EXIT_OK
 
 
 @_pipe_safe

@@ -38,6 +38,9 @@ def blocks(record, verification) -> list[Block]:
         ws, head, ws_error = None, None, str(exc)
     title = (head.title if head and head.title else "Closed-system energy balance")
     out: list[Block] = [("h1", title)]
+    broken = _broken(verification)
+    if broken:
+        out.append(("p", broken))
     opening = entries[0].data if entries else {}
     kv = []
     if head:
@@ -67,6 +70,8 @@ def blocks(record, verification) -> list[Block]:
         out.append(("pre", e.text.split("\n")))
 
     out.append(("h2", "Results"))
+    if broken:
+        out.append(("p", broken))
     solve = next((e for e in reversed(entries) if e.kind == SOLVE), None)
     if solve is None:
         out.append(("p", "Not solved: the record has no solve entry."))
@@ -110,6 +115,15 @@ def blocks(record, verification) -> list[Block]:
                      f"Check the record itself with: joulebook record verify {record.path.name} "
                      "--allowed-signers FILE"))
     return out
+
+
+def _broken(v) -> str:
+    """The warning a report of a record with a broken chain opens with ("" when the chain is intact)."""
+    if v.chain_ok:
+        return ""
+    where = f"at entry {v.broken_seq}" if v.broken_seq else "in the file"
+    return (f"WARNING: this record's chain is BROKEN {where}: {v.reason}. The entries and results in this "
+            "report are shown as read, not as filed: they cannot be relied on. Restore the filed copy.")
 
 
 def _as_list(value) -> list:

@@ -72,6 +72,12 @@ class Record:
         return head_of(self._entries)
 
     @property
+    def broken(self) -> tuple[int, str] | None:
+        """Where the chain breaks, as (entry, reason) (:func:`.chain.chain_break`); None when intact.
+        A broken record can be read, never extended."""
+        return self._break
+
+    @property
     def revision(self) -> int:
         return current_revision(self._entries)
 

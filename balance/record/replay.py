@@ -13,6 +13,11 @@ unit in that result (so a ΔU that is round-off near zero is judged against
 the energies around it); numbers inside text (equations, warnings) are
 compared the same way at the precision they are printed with (6 significant
 digits). Text, phases and names must be equal.
+
+A record whose chain is broken (:func:`balance.record.chain.chain_break`)
+does not reproduce, whatever its numbers: the entries from the break on are
+not those that were filed, so they are not replayed, and the report names
+the break instead of calling any result reproduced.
 """
 
 from __future__ import annotations
@@ -24,6 +29,7 @@ from typing import Sequence
 from .. import api
 from ..errors import BalanceError
 from ..worksheet import Worksheet
+from .chain import chain_break
 from .format import OPENING, SOLVE, Entry, prune
 
 #: Keys of a solve entry that pin what the numbers depend on (compared separately).
@@ -206,9 +212,19 @@ class ReplayReport:
     worksheet: Worksheet | None
     worksheet_error: str = ""
     notes: tuple[str, ...] = field(default=())
+    broken: tuple[int, str] | None = None
+    """where the chain breaks (entry, reason), as :func:`.chain.chain_break` says; None when intact"""
+    entries: int = 0
+    """how many entries the record has (replayed or not)"""
 
     def lines(self) -> list[str]:
         out = [f"Replay with tolerance {self.tolerance:g} (relative; see README, 'Replay')."]
+        if self.broken:
+            seq, reason = self.broken
+            rest = (f"entry {seq} was not: it is" if seq == self.entries else
+                    f"entries {seq}–{self.entries} were not: they are")
+            out.append(f"The chain is BROKEN at entry {seq}: {reason}.")
+            out.append(f"Only the entries before it were replayed; {rest} not the record as filed.")
         if self.pins:
             out.append("Recorded with a different joulebook or species data:")
             out += ["  " + d.line() for d in self.pins]
@@ -223,13 +239,23 @@ class ReplayReport:
             out += ["  note: " + d.line() for d in s.notes]
         if self.worksheet_error:
             out.append(f"The replayed worksheet cannot be read: {self.worksheet_error}")
-        out.append("All recorded results reproduce." if self.ok else "Some recorded results do NOT reproduce.")
+        if self.broken:
+            out.append(f"NOT reproduced: the record's chain is broken at entry {self.broken[0]}; "
+                       "no result of a broken record is confirmed (restore the filed copy).")
+        else:
+            out.append("All recorded results reproduce." if self.ok else "Some recorded results do NOT reproduce.")
         return out
 
 
 def replay_entries(entries: Sequence[Entry], tolerance: float = DEFAULT_TOLERANCE) -> ReplayReport:
+    """Solve each solve entry's inputs again and compare (see the module docstring); only
+    the entries before a break of the chain are replayed."""
     if not tolerance >= 0:
         raise ValueError("the tolerance must be a number >= 0")
+    count = len(entries)
+    broken = chain_break(entries)
+    if broken:
+        entries = entries[:broken[0] - 1]
     now_pins = api.pins()
     pin_diffs: list[Difference] = []
     opening = next((e for e in entries if e.kind == OPENING), None)
@@ -266,5 +292,5 @@ def replay_entries(entries: Sequence[Entry], tolerance: float = DEFAULT_TOLERANC
         ws, ws_error = worksheet_of(entries), ""
     except BalanceError as exc:
         ws, ws_error = None, str(exc)
-    ok = all(s.ok for s in solves)
-    return ReplayReport(ok, tolerance, tuple(solves), tuple(pin_diffs), ws, ws_error)
+    ok = broken is None and all(s.ok for s in solves)
+    return ReplayReport(ok, tolerance, tuple(solves), tuple(pin_diffs), ws, ws_error, broken=broken, entries=count)

@@ -23,6 +23,7 @@ from dataclasses import dataclass
 from typing import Sequence
 
 from ..errors import InputError
+from .chain import chain_break
 from .format import COMMENT, CONTENT_KINDS, OPENING, RESOLUTION, SIGN_OFF, SOLVE, Entry
 from .replay import Difference, compare, fold
 from .signing import ROLES
@@ -122,10 +123,16 @@ class RecordDiff:
     to_solve: int | None
     from_revision: int
     to_revision: int
+    broken: tuple[int, str] | None = None
+    """where the record's chain breaks (entry, reason); None when intact"""
 
     def lines(self) -> list[str]:
-        out = [f"From entry {self.from_seq} (revision {self.from_revision}) "
-               f"to entry {self.to_seq} (revision {self.to_revision})"]
+        out = []
+        if self.broken:
+            out.append(f"The chain is BROKEN at entry {self.broken[0]}: {self.broken[1]}; from there on the "
+                       "entries compared are shown as read, not as filed.")
+        out.append(f"From entry {self.from_seq} (revision {self.from_revision}) "
+                   f"to entry {self.to_seq} (revision {self.to_revision})")
         out.append("Inputs:")
         out += [f"  {d.line('was', 'now')}" for d in self.inputs] or ["  no change"]
         out.append("Results" + (f" (solve entry {self.from_solve} against entry {self.to_solve})"
@@ -192,4 +199,4 @@ def diff_entries(entries: Sequence[Entry], from_seq: int, to_seq: int, tolerance
             results = sorted(failing, key=lambda d: d.path.startswith(text_first)) + info
     revs = revisions(entries)
     return RecordDiff(from_seq, to_seq, tuple(inputs), tuple(results), sa.seq if sa else None,
-                      sb.seq if sb else None, revs[from_seq - 1], revs[to_seq - 1])
+                      sb.seq if sb else None, revs[from_seq - 1], revs[to_seq - 1], chain_break(entries))
