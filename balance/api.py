@@ -36,10 +36,11 @@ purpose.
 from __future__ import annotations
 
 import os
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Mapping, Union
 
 from .errors import BalanceError
+from .kinds import kind_of
 from .worksheet import Worksheet
 
 if TYPE_CHECKING:  # the rest loads on first use: the app imports this module before its first screen
@@ -84,8 +85,6 @@ def read(source: Source, name: str = "worksheet") -> Worksheet:
 def kind(ws: Worksheet) -> Kind:
     """The kind of balance the worksheet's ``[system] kind`` names (:mod:`balance.kinds`);
     raises InputError naming ``system.kind`` for one that cannot be balanced."""
-    from .kinds import kind_of
-
     return kind_of(ws.system.kind)
 
 
@@ -118,6 +117,8 @@ class Check:
     """what stopped the count (``field: what was expected``), or '' when it was made"""
     error_field: str = ""
     """the field the error names"""
+    problem: Problem | None = field(default=None, repr=False, compare=False)
+    """the problem prepared for the count (None when it failed): :func:`solve` takes it on"""
 
 
 def check(ws: Worksheet) -> Check:
@@ -128,12 +129,18 @@ def check(ws: Worksheet) -> Check:
     except BalanceError as exc:
         return Check(ws, False, str(exc), error=str(exc), error_field=getattr(exc, "field", ""))
     return Check(ws, dof.ok, dof.message, tuple(u.words() for u in dof.unknowns), dof.equations, dof.fixed,
-                 problem.path, problem.constraints)
+                 problem.path, problem.constraints, problem=problem)
 
 
 # -- solving -----------------------------------------------------------------------------
-def solve(source: Source) -> Result:
-    """The solved balance; raises InputError, SpecificationError or SolveError."""
+def solve(source: Source | Check) -> Result:
+    """The solved balance; raises InputError, SpecificationError or SolveError.
+
+    A :class:`Check` is solved from the problem it prepared (not prepared again).
+    """
+    if isinstance(source, Check):
+        problem = source.problem if source.problem is not None else prepare(source.worksheet)
+        return kind(problem.worksheet).solve(problem)
     ws = read(source)
     balance = kind(ws)
     return balance.solve(balance.prepare(ws))

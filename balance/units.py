@@ -154,35 +154,46 @@ def parse(text, dimension: str, field: str, *, p_atm: float = P_ATM) -> float:
         )
     if not isinstance(text, str):
         raise InputError(field, f"must be {dim.phrase} written as text; got {text!r}")
-    value, unit = _split(text, field)
+    si, gauge, problem = _convert(text, dimension)
+    if problem:
+        raise InputError(field, problem)
+    return si + p_atm if gauge else si
+
+
+@lru_cache(maxsize=4096)
+def _convert(text: str, dimension: str) -> tuple[float, bool, str]:
+    """``text`` as (SI value, whether it is a gauge pressure, '') or (nan, False, what is wrong).
+
+    Cached: pint takes tens of microseconds a conversion, and a worksheet is
+    read again at every check and solve. The atmosphere is not part of the
+    key: a gauge reading is cached as its value above the atmosphere and the
+    caller adds its own. The answer depends on nothing else (the registry is
+    built once), so a cached answer is the answer; errors are cached as their
+    words, without the field, which the caller names.
+    """
+    dim = DIMENSIONS[dimension]
+    try:
+        value, unit = _split(text, "")
+    except InputError as exc:
+        return math.nan, False, exc.message
     if not math.isfinite(value):
-        raise InputError(field, f"must be a finite number; got {text!r}")
+        return math.nan, False, f"must be a finite number; got {text!r}"
     if dimension == "dimensionless":
         if unit in ("", "-", "1"):
-            return value
-        raise InputError(field, f"must be a pure number; got {text!r}")
+            return value, False, ""
+        return math.nan, False, f"must be a pure number; got {text!r}"
     if not unit:
-        raise InputError(
-            field, f"must be {dim.phrase} with a unit, like '{_example(dimension)}'; got {text!r}"
-        )
+        return math.nan, False, f"must be {dim.phrase} with a unit, like '{_example(dimension)}'; got {text!r}"
     kind = None
     if dimension == "pressure":
         unit, kind = _pressure_suffix(unit)
     try:
-        q = Q_(value, unit)
-        si = q.to(dim.si_unit).magnitude
+        si = Q_(value, unit).to(dim.si_unit).magnitude
     except Exception:
-        raise InputError(
-            field, f"must be {dim.phrase} (like '{_example(dimension)}'); got {text!r}"
-        ) from None
+        return math.nan, False, f"must be {dim.phrase} (like '{_example(dimension)}'); got {text!r}"
     if dimension == "temperature_difference" and _is_offset(unit):
-        raise InputError(
-            field, f"is a temperature difference: write it in K or delta_degC; got {text!r}"
-        )
-    si = float(si)
-    if kind == "gauge":
-        si += p_atm
-    return si
+        return math.nan, False, f"is a temperature difference: write it in K or delta_degC; got {text!r}"
+    return float(si), kind == "gauge", ""
 
 
 def _is_offset(unit: str) -> bool:

@@ -153,8 +153,8 @@ def step_of_field(name: str) -> str | None:
 def check(ws: Worksheet, visited: frozenset[str] = frozenset()) -> Check:
     """The degrees of freedom (:func:`balance.api.check`) and the steps' statuses; never raises for bad input."""
     counted = api.check(ws)
-    answer = Check(**{f.name: getattr(counted, f.name) for f in fields(api.Check)},
-                   statuses=statuses(ws, visited, counted.error_field))
+    answer = Check(**{f.name: getattr(counted, f.name) for f in fields(api.Check) if f.name != "problem"},
+                   statuses=statuses(ws, visited, counted.error_field))  # no problem: it crosses processes
     if not counted.error:
         return answer
     step = step_of_field(counted.error_field)

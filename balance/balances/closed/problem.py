@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import cached_property
 
 from ...convention import Convention
 from ...errors import InputError, SpecificationError
@@ -61,8 +62,9 @@ class Problem:
     def gases(self) -> list[Compartment]:
         return [c for c in self.initial if c.state is not None]
 
-    @property
+    @cached_property
     def dof(self) -> Dof:
+        """The degrees-of-freedom count (worked out once: a prepared problem does not change)."""
         return count_dof(self)
 
     def linear_unknowns(self) -> list[Unknown]:

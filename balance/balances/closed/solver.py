@@ -26,6 +26,7 @@ Brent's method) or two (scipy's root from the initial state, then verified).
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 
 import numpy as np
 
@@ -38,6 +39,15 @@ from .problem import Problem
 from .result import Result, result_of
 
 AMOUNT = Unknown("amount")
+#: Points of the bracket scan's grid over the free property's range.
+GRID_POINTS = 400
+
+
+@lru_cache(maxsize=64)
+def _grid(lo: float, hi: float) -> tuple[float, ...]:
+    """The scan's grid, geometric from ``lo`` to ``hi`` (built once per range: a model's
+    temperature range is the same for every solve on it)."""
+    return tuple(float(x) for x in np.geomspace(lo, hi, GRID_POINTS))
 
 
 def solve(p: Problem) -> Result:
@@ -59,12 +69,14 @@ class _Solver:
         n_guess = p.n if p.n is not None else 1.0
         self.E_scale = max(n_guess * R * first.T, 1e-30)
         self.S_scale = n_guess * R
+        self._first = first
+        # the initial sums, worked out once when the amount is known (every evaluation needs them)
+        self._known_sums = self._sums(p.n) if p.n is not None else None
 
     def amount(self, lin: dict) -> float:
         return self.p.n if self.p.n is not None else lin[AMOUNT]
 
-    def initial_sums(self, n: float):
-        """Σ n_i u_i, Σ n_i s_i and Σ V_i of the initial compartments."""
+    def _sums(self, n: float):
         U = S = V = 0.0
         for c in self.p.gases:
             ni = c.state.n if self.p.n is not None else n
@@ -74,33 +86,39 @@ class _Solver:
         V += sum(c.V for c in self.p.initial if c.state is None)
         return U, S, V
 
-    def boundary_work(self, final: Point, n: float) -> float:
-        """Work done on the system by its moving boundary [J]."""
+    def initial_sums(self, n: float):
+        """Σ n_i u_i [J], Σ n_i s_i [J/K] and Σ V_i [m3] of the initial compartments."""
+        return self._known_sums if self._known_sums is not None else self._sums(n)
+
+    def boundary_work(self, final: Point, n: float, V1: float | None = None) -> float:
+        """Work done on the system by its moving boundary [J] (``V1``: the initial volume, when known)."""
         p = self.p
-        first = p.gases[0].state.point
-        _, _, V1 = self.initial_sums(n)
-        V2 = n * final.v
-        if p.path == "rigid":
+        path = p.path
+        if path == "rigid":
             return 0.0
-        if p.path == "isobaric":
+        first = self._first
+        if V1 is None:
+            V1 = self.initial_sums(n)[2]
+        V2 = n * final.v
+        if path == "isobaric":
             return -first.P * (V2 - V1)
-        if p.path == "isothermal":
+        if path == "isothermal":
             return n * (final.a - first.a)
-        if p.path == "polytropic":
+        if path == "polytropic":
             k = p.n_poly
             if abs(k - 1.0) < 1e-12:
                 return -first.P * V1 * math.log(V2 / V1)
             return (final.P * V2 - first.P * V1) / (k - 1.0)
         return 0.0  # 'given': the boundary term is one of the work terms
 
-    def residuals(self, final: Point, lin: dict) -> np.ndarray:
+    def residuals(self, final: Point, lin: dict) -> list[float]:
         """Scaled residuals of every equation at a final state and linear unknowns."""
         p = self.p
         n = self.amount(lin)
-        U1, S1, _ = self.initial_sums(n)
+        U1, S1, V1 = self.initial_sums(n)
         Q = sum(lin[h.unknown] if h.Q is None else h.Q for h in p.heat)
         W = sum(lin[w.unknown] if w.W_on is None else w.W_on for w in p.work)
-        energy = n * final.u - U1 + p.dKE + p.dPE - Q - W - self.boundary_work(final, n)
+        energy = n * final.u - U1 + p.dKE + p.dPE - Q - W - self.boundary_work(final, n, V1)
         out = [energy / self.E_scale]
         if p.reversible:
             q_over_t = sum(
@@ -108,22 +126,22 @@ class _Solver:
             )
             out.append((n * final.s - S1 - q_over_t) / self.S_scale)
         if p.path == "polytropic":
-            first = p.gases[0].state.point
+            first = self._first
             k = p.n_poly
             out.append(final.P * final.v**k / (first.P * first.v**k) - 1.0)
-        return np.array(out)
+        return out
 
     def eliminate(self, final: Point):
         """Solve the linear unknowns at this final state; return them and the leftover residuals."""
         self.evaluations += 1
         names = self.lin_names
-        zero = {k: 0.0 for k in names}
-        c = self.residuals(final, zero)
         if not names:
-            return zero, c
+            return {}, self.residuals(final, {})
+        zero = {k: 0.0 for k in names}
+        c = np.array(self.residuals(final, zero))
         A = np.empty((len(c), len(names)))
         for j, k in enumerate(names):
-            A[:, j] = self.residuals(final, {**zero, k: 1.0}) - c
+            A[:, j] = np.array(self.residuals(final, {**zero, k: 1.0})) - c
         rows = best_rows(A, len(names))
         if rows is None:
             raise SolveError(
@@ -163,7 +181,7 @@ class _Solver:
         else:
             var, start = "T", first.T
             lo, hi = model.T_bounds()
-        grid = np.geomspace(lo, hi, 400)
+        grid = _grid(lo, hi)
 
         def f(theta):
             final = self.state({key: value, var: theta})
