@@ -19,7 +19,11 @@ each entry is::
     sha256  HEX                   SEAL     (the SHA-256 of the lines from HEADER to FOLLOWS)
 
 Every line is UTF-8 and ends in a newline, never a carriage return; a text
-line never ends in a space or a tab. The README ("The record") and the package
+line never ends in a space or a tab. An entry's data stays within bounds that both
+the writer and the reader apply (:func:`value_problem`, :func:`nesting_problem`):
+tables and lists at most :data:`MAX_DEPTH` levels deep, texts of at most
+:data:`MAX_TEXT` characters, a data part of at most :data:`MAX_DATA`, 64-bit
+integers; so nothing after the reader recurses without end or reads without end. The README ("The record") and the package
 docstring (:mod:`balance.record`) describe what the lines mean.
 """
 
@@ -194,6 +198,115 @@ def clean_author(author: str, field: str = "author") -> str:
     if any(unicodedata.category(ch) in _HIDDEN for ch in name):
         raise InputError(field, f"must be one line of printable text; got {author!r}")
     return name
+
+
+# -- how far a value may go ------------------------------------------------------------------
+#: The deepest nesting of tables and lists in an entry's data (the data part itself is level 1). The
+#: entries joulebook writes nest four levels (a solve's terms: a list of tables of quantities); readers
+#: walk nesting recursively (Python's own TOML reader does), so deeper data is refused before anything
+#: walks it.
+MAX_DEPTH = 32
+#: The longest text (or key) in an entry's data, in characters.
+MAX_TEXT = 100_000
+#: The longest data part of an entry, in characters of its TOML text (its lines joined by newlines):
+#: a solve's takes some five thousand.
+MAX_DATA = 1_000_000
+#: TOML integers are 64-bit signed (TOML 1.0.0, "Integer"); larger ones do not become floats either.
+_INT_MIN, _INT_MAX = -(2 ** 63), 2 ** 63 - 1
+
+#: What Python's TOML reader does not look into for nesting: strings and comments (their brackets do
+#: not nest). In turn: a multi-line basic string (up to two quotes end its content) or a basic string;
+#: a multi-line literal string or a literal string; a comment.
+_TOML_OPAQUE = (r'"(?:""(?:[^"\\]|\\.|"(?!""))*"{3,5}|[^"\\\n]*(?:\\.[^"\\\n]*)*")'
+                r"|'(?:''.*?'{3,5}|[^'\n]*')"
+                r"|#[^\n]*")
+_OPAQUE = re.compile(_TOML_OPAQUE, re.S)
+_NOT_BRACKETS = re.compile(r"[^\[\]{}]+")
+#: The same, and what the reader recurses on: arrays and inline tables.
+_TOML_TOKENS = re.compile(_TOML_OPAQUE + r"|(?P<open>[\[{])|(?P<close>[\]}])", re.S)
+
+
+def nesting_problem(fragment: str) -> tuple[int, str] | None:
+    """Where the arrays and inline tables of a TOML fragment nest deeper than :data:`MAX_DEPTH`,
+    found without parsing it: (the line of the fragment, 0-based; what is wrong), or None.
+
+    Run before the fragment is parsed: the parser recurses once a level. A string the scan does
+    not see as one (unterminated) is where the parser stops with an error, so what follows it
+    is never parsed, however deep.
+    """
+    if fragment.count("[") + fragment.count("{") <= MAX_DEPTH:  # cannot nest deeper (the usual case)
+        return None
+    depth = 0
+    for ch in _NOT_BRACKETS.sub("", _OPAQUE.sub("", fragment)):  # the brackets outside strings, in order
+        if ch in "[{":
+            depth += 1
+            if depth > MAX_DEPTH:
+                break
+        else:
+            depth = max(0, depth - 1)  # more closing than opening: the parser refuses it, at no depth
+    else:
+        return None
+    depth = 0
+    for m in _TOML_TOKENS.finditer(fragment):  # the same scan again, for the line
+        if m.lastgroup == "open":
+            depth += 1
+            if depth > MAX_DEPTH:
+                return fragment.count("\n", 0, m.start()), _too_deep()
+        elif m.lastgroup == "close":
+            depth = max(0, depth - 1)
+    raise RuntimeError("the two scans of a TOML fragment disagree")  # pragma: no cover - a defect
+
+
+def _too_deep(where: str = "") -> str:
+    at = f" (at {where})" if where else ""
+    return f"nests tables and lists more than {MAX_DEPTH} levels deep{at}; at most {MAX_DEPTH} levels are allowed"
+
+
+def value_problem(data) -> str | None:
+    """What puts an entry's data beyond what a record may hold (None when nothing does): tables and
+    lists nested more than :data:`MAX_DEPTH` levels, a text or key of more than :data:`MAX_TEXT`
+    characters, an integer outside TOML's 64-bit range.
+
+    Walks without recursion, so it is safe on any data. Every entry the reader returns and every
+    entry the writer writes has passed it: the code after them may walk entry data recursively.
+    """
+    stack = [(data, 1, ())]
+    while stack:
+        value, depth, path = stack.pop()
+        if isinstance(value, dict):
+            if depth > MAX_DEPTH:
+                return _too_deep(_path(path))
+            for k, v in value.items():
+                if isinstance(k, str) and len(k) > MAX_TEXT:
+                    return f"has a key of {len(k)} characters (at {_path(path)}); at most {MAX_TEXT} are allowed"
+                stack.append((v, depth + 1, (*path, k)))
+        elif isinstance(value, (list, tuple)):
+            if depth > MAX_DEPTH:
+                return _too_deep(_path(path))
+            stack.extend((v, depth + 1, (*path, i + 1)) for i, v in enumerate(value))
+        elif isinstance(value, str):
+            if len(value) > MAX_TEXT:
+                return f"holds a text of {len(value)} characters (at {_path(path)}); at most {MAX_TEXT} are allowed"
+        elif isinstance(value, int) and not isinstance(value, bool) and not _INT_MIN <= value <= _INT_MAX:
+            return f"holds an integer outside TOML's 64-bit range (at {_path(path)})"
+    return None
+
+
+def check_depth(depth: int, field: str = "data") -> None:
+    """For a recursive walker of entry data, at each level: refuse to go deeper than :data:`MAX_DEPTH`
+    (data that did not come through :func:`value_problem` cannot make it recurse without end)."""
+    if depth > MAX_DEPTH:
+        raise InputError(field, _too_deep())
+
+
+def _path(path: tuple) -> str:
+    """Where a value sits, as ``'a.b[2].c'``: its first levels only, when it sits deep."""
+    text = ""
+    for part in path[:6]:
+        text += f"[{part}]" if isinstance(part, int) else (f".{part}" if text else str(part))
+    if not text:
+        return "the top"
+    return repr(text[:80] + (" …" if len(path) > 6 or len(text) > 80 else ""))
 
 
 # -- an entry -------------------------------------------------------------------------------

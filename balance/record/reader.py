@@ -21,10 +21,11 @@ from dataclasses import dataclass
 from ..errors import InputError
 from .layout import (ANY_MAGIC, AT, BY, DATA_MARK, ENTRY, EXPECTED, FIXED_LINES, FOLLOWS, FORMAT, HEADER,
                      MAGIC, SEAL, TAG_FOLLOWS, TEXT, TEXT_MARK, Entry, author_problem, content, contents, is_marked,
-                     kind_problem, time_problem)
+                     MAX_DATA, kind_problem, nesting_problem, time_problem, value_problem)
 from .shapes import shape_problem
 
 _TOML_POS = re.compile(r"\(at line (\d+), column (\d+)\)")
+_LONG_NUMBER = re.compile(r"[0-9_]{4000}")
 
 
 @dataclass(frozen=True)
@@ -118,11 +119,14 @@ def _read_fast(data: bytes, structure_only: bool) -> tuple[list[Entry], int | No
         parsed: dict = {}
         body = ""
         if not structure_only:
-            try:
-                parsed = tomllib.loads(contents(data_part))
-            except tomllib.TOMLDecodeError:
+            fragment = contents(data_part)
+            if len(fragment) > MAX_DATA or nesting_problem(fragment):
                 return entries, index
-            if shape_problem(kind, parsed):
+            try:
+                parsed = tomllib.loads(fragment)
+            except ValueError:  # TOMLDecodeError, or an integer of too many digits for Python
+                return entries, index
+            if value_problem(parsed) or shape_problem(kind, parsed):
                 return entries, index
             body = contents(text_part)
         entries.append(Entry(seq=int(m["seq"]), time=time, author=author, kind=kind, data=parsed, text=body,
@@ -235,12 +239,27 @@ def _read_entry(lines: _Lines, i: int, with_data: bool = True) -> tuple[Entry, i
 
 
 def _data(lines: _Lines, data: list[str], first: int) -> dict:
-    """The data part read as TOML; a TOML error names the line of the record it is on."""
+    """The data part read as TOML, within the bounds of :func:`.layout.value_problem`; an error
+    names the line of the record it is on (for data beyond the bounds, where the data part starts)."""
+    fragment = "\n".join(data)
+    if len(fragment) > MAX_DATA:
+        raise lines.error(first, f"the data part is {len(fragment)} characters long; at most {MAX_DATA} are read")
+    deep = nesting_problem(fragment)  # before the parser, which recurses once a level
+    if deep:
+        raise lines.error(first + deep[0], f"the data part {deep[1]}")
     try:
-        return tomllib.loads("\n".join(data))
+        parsed = tomllib.loads(fragment)
     except tomllib.TOMLDecodeError as exc:
         message = str(exc)
         m = _TOML_POS.search(message)
         where = first + int(m.group(1)) - 1 if m else first
         message = _TOML_POS.sub("", message).strip()
         raise lines.error(where, f"the data part is not valid TOML: {message}") from None
+    except ValueError:  # Python reads no integer of more than 4300 digits (TOML's have at most 19)
+        long = next((k for k, line in enumerate(data) if _LONG_NUMBER.search(line)), 0)
+        raise lines.error(first + long, "the data part holds an integer of thousands of digits; "
+                                        "TOML integers are 64-bit (at most 19 digits)") from None
+    problem = value_problem(parsed)
+    if problem:
+        raise lines.error(first, f"the data part {problem}")
+    return parsed

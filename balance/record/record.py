@@ -17,6 +17,7 @@ from .chain import chain_break, head_of
 from .format import (COMMENT, FORMAT, GENESIS, LIST_SECTIONS, MAGIC_LINE, NOTE, OPENING, RESOLUTION,
                      SECTION_KINDS, SIGN_OFF, SOLVE, TAG_SEAL, Entry, clean_author, entry_lines,
                      format_time, parse, prune, seal)
+from .layout import MAX_TEXT, value_problem
 from .replay import DEFAULT_TOLERANCE, ReplayReport, fold, replay_entries, solve_data, worksheet_of
 from .review import (comment_problem, current_revision, open_comments, resolution_problem, roles_of,
                      signoff_problem)
@@ -212,6 +213,9 @@ class Record:
 
     def _stage(self, kind: str, data: dict, author: str | None, text: str | None = None) -> Entry:
         """Add an entry in memory (not written): returns it as a reader will see it."""
+        problem = value_problem(data)  # what a reader would refuse is never written
+        if problem:
+            raise InputError(kind, f"its data {problem}")
         data = prune(data)
         if text is None:
             text = render(kind, data, self._entries)
@@ -332,7 +336,10 @@ class Record:
 def _words(text, field: str) -> str:
     if not isinstance(text, str) or not text.strip():
         raise InputError(field, "must not be empty")
-    return text.strip()
+    text = text.strip()
+    if len(text) > MAX_TEXT:
+        raise InputError(field, f"is {len(text)} characters long; a record holds at most {MAX_TEXT} in one text")
+    return text
 
 
 __all__ = ["Record", "utc_now", "GENESIS"]

@@ -31,6 +31,7 @@ from ..errors import BalanceError
 from ..worksheet import Worksheet
 from .chain import chain_break
 from .format import OPENING, SOLVE, Entry, prune
+from .layout import check_depth
 
 #: Keys of a solve entry that pin what the numbers depend on (compared separately).
 PIN_KEYS = ("joulebook", "species_data_sha256")
@@ -96,16 +97,18 @@ def _is_quantity(v) -> bool:
         and not isinstance(v["value"], bool)
 
 
-def _scales(data, out: dict | None = None) -> dict:
+def _scales(data, out: dict | None = None, depth: int = 1) -> dict:
     out = {} if out is None else out
     if _is_quantity(data):
         out[data["unit"]] = max(out.get(data["unit"], 0.0), abs(float(data["value"])))
     elif isinstance(data, dict):
+        check_depth(depth)
         for v in data.values():
-            _scales(v, out)
+            _scales(v, out, depth + 1)
     elif isinstance(data, list):
+        check_depth(depth)
         for v in data:
-            _scales(v, out)
+            _scales(v, out, depth + 1)
     return out
 
 
@@ -136,7 +139,7 @@ def compare(recorded: dict, now: dict, tolerance: float = DEFAULT_TOLERANCE) -> 
     failing: list[Difference] = []
     info: list[Difference] = []
 
-    def walk(path: str, a, b):
+    def walk(path: str, a, b, depth: int = 1):
         key = path.rsplit(".", 1)[-1]
         if path in PIN_KEYS:
             return
@@ -158,15 +161,17 @@ def compare(recorded: dict, now: dict, tolerance: float = DEFAULT_TOLERANCE) -> 
                 failing.append(Difference(path, float(a["value"]), float(b["value"]), a["unit"]))
             return
         if isinstance(a, dict) and isinstance(b, dict):
+            check_depth(depth)
             for k in a:
-                walk(f"{path}.{k}" if path else k, a[k], b.get(k))
+                walk(f"{path}.{k}" if path else k, a[k], b.get(k), depth + 1)
             for k in b:
                 if k not in a:
-                    walk(f"{path}.{k}" if path else k, None, b[k])
+                    walk(f"{path}.{k}" if path else k, None, b[k], depth + 1)
             return
         if isinstance(a, list) and isinstance(b, list):
+            check_depth(depth)
             for i in range(max(len(a), len(b))):
-                walk(f"{path}[{i + 1}]", a[i] if i < len(a) else None, b[i] if i < len(b) else None)
+                walk(f"{path}[{i + 1}]", a[i] if i < len(a) else None, b[i] if i < len(b) else None, depth + 1)
             return
         if isinstance(a, str) and isinstance(b, str):
             if not same_text(a, b, tolerance):

@@ -25,6 +25,7 @@ from typing import Sequence
 from ..errors import InputError
 from .chain import chain_break
 from .format import COMMENT, CONTENT_KINDS, OPENING, RESOLUTION, SIGN_OFF, SOLVE, Entry
+from .layout import check_depth
 from .replay import Difference, compare, fold
 from .signing import ROLES
 
@@ -149,15 +150,17 @@ class RecordDiff:
         return out
 
 
-def _flatten(prefix: str, value, out: dict) -> None:
+def _flatten(prefix: str, value, out: dict, depth: int = 1) -> None:
     if isinstance(value, dict):
+        check_depth(depth)
         for k, v in value.items():
-            _flatten(f"{prefix}.{k}" if prefix else k, v, out)
+            _flatten(f"{prefix}.{k}" if prefix else k, v, out, depth + 1)
         if not value and prefix:
             out[prefix] = {}
     elif isinstance(value, list) and (value and all(isinstance(v, dict) for v in value)):
+        check_depth(depth)
         for i, v in enumerate(value):
-            _flatten(f"{prefix}[{i + 1}]", v, out)
+            _flatten(f"{prefix}[{i + 1}]", v, out, depth + 1)
     else:
         out[prefix] = value
 

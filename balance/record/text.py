@@ -13,7 +13,8 @@ from __future__ import annotations
 
 from typing import Sequence
 
-from .layout import COMMENT, NOTE, OPENING, RESOLUTION, SECTION_KINDS, SIGN_OFF, SOLVE, Entry
+from ..errors import InputError
+from .layout import COMMENT, NOTE, OPENING, RESOLUTION, SECTION_KINDS, SIGN_OFF, SOLVE, Entry, value_problem
 from .plain import wrap
 from .solve_text import energy_rows, entropy_rows, solve_text, state_rows
 from .step_text import step_text
@@ -71,7 +72,11 @@ def note_text(data: dict) -> str:
 
 # -- any entry -----------------------------------------------------------------------------
 def render(kind: str, data: dict, before: Sequence[Entry]) -> str:
-    """The human text of an entry of this kind and data, placed after ``before``."""
+    """The human text of an entry of this kind and data, placed after ``before`` (data within
+    what a record holds, :func:`.layout.value_problem`: the renderings compare and print it whole)."""
+    problem = value_problem(data)
+    if problem:
+        raise InputError(kind, f"its data {problem}")
     if kind == OPENING:
         return opening_text(data)
     for section, k in SECTION_KINDS.items():

@@ -13,8 +13,9 @@ import math
 import tomllib
 import unicodedata
 
-from .layout import (KINDS, TAG_AT, TAG_BY, TAG_FOLLOWS, data_line, header_line, normal_text,
-                     text_line)
+from ..errors import InputError
+from .layout import (KINDS, MAX_DATA, TAG_AT, TAG_BY, TAG_FOLLOWS, check_depth, data_line, header_line,
+                     normal_text, text_line)
 
 
 # -- the data part: a TOML fragment ---------------------------------------------------
@@ -32,12 +33,15 @@ def _key(key: str) -> str:
     return tomli_w.dumps({key: 0})[: -len(" = 0\n")]
 
 
-def prune(value):
-    """TOML has no null: None values of tables are left out; tuples become lists."""
+def prune(value, depth: int = 1):
+    """TOML has no null: None values of tables are left out; tuples become lists.
+    Refuses data nested deeper than a record holds (:data:`.layout.MAX_DEPTH`)."""
     if isinstance(value, dict):
-        return {str(k): prune(v) for k, v in value.items() if v is not None}
+        check_depth(depth)
+        return {str(k): prune(v, depth + 1) for k, v in value.items() if v is not None}
     if isinstance(value, (list, tuple)):
-        return [prune(v) for v in value]
+        check_depth(depth)
+        return [prune(v, depth + 1) for v in value]
     return value
 
 
@@ -49,12 +53,14 @@ def _inline(v) -> bool:
     return isinstance(v, dict) and len(v) <= 4 and all(_is_scalar(x) for x in v.values())
 
 
-def _literal(v, indent: str = "") -> list[str]:
+def _literal(v, indent: str = "", depth: int = 2) -> list[str]:
     """A value as one or more lines (the first continues ``key = ``)."""
+    check_depth(depth)
     if _is_scalar(v):
         return [_scalar(v)]
     if isinstance(v, dict):
-        return ["{ " + ", ".join(f"{_key(k)} = {_literal(x)[0]}" for k, x in v.items()) + " }" if v else "{}"]
+        return ["{ " + ", ".join(f"{_key(k)} = {_literal(x, depth=depth + 1)[0]}" for k, x in v.items()) + " }"
+                if v else "{}"]
     if isinstance(v, list):
         if not v:
             return ["[]"]
@@ -62,7 +68,7 @@ def _literal(v, indent: str = "") -> list[str]:
             return ["[" + ", ".join(_scalar(x) for x in v) + "]"]
         lines = ["["]
         for x in v:
-            item = _literal(x, indent + "    ")
+            item = _literal(x, indent + "    ", depth + 1)
             lines.append(indent + "    " + item[0] + ("," if len(item) == 1 else ""))
             lines.extend(item[1:-1])
             if len(item) > 1:
@@ -76,7 +82,8 @@ def _quantity_like(v) -> bool:
     return isinstance(v, dict) and (not v or set(v) <= {"value", "unit"})
 
 
-def _table_lines(table: dict, name: str) -> list[str]:
+def _table_lines(table: dict, name: str, depth: int = 1) -> list[str]:
+    check_depth(depth)
     lines: list[str] = []
     later: list[tuple[str, object]] = []
     for k, v in table.items():
@@ -87,7 +94,7 @@ def _table_lines(table: dict, name: str) -> list[str]:
                 all(all(_is_scalar(y) or _inline(y) for y in x.values()) for x in v):
             later.append((k, v))
         else:
-            lit = _literal(v)
+            lit = _literal(v, depth=depth + 1)
             lines.append(f"{_key(k)} = {lit[0]}")
             lines.extend(lit[1:])
     for k, v in later:
@@ -100,9 +107,9 @@ def _table_lines(table: dict, name: str) -> list[str]:
                     lines.append("")
                 lines.append(f"[[{full}]]")
                 for ik, iv in item.items():
-                    lines.append(f"{_key(ik)} = {_literal(iv)[0]}")
+                    lines.append(f"{_key(ik)} = {_literal(iv, depth=depth + 3)[0]}")
         else:
-            sub = _table_lines(v, full)
+            sub = _table_lines(v, full, depth + 1)
             if not sub or sub[0].startswith("["):  # only sub-tables: the header is implied
                 lines.extend(sub if sub else [f"[{full}]"])
             else:
@@ -128,6 +135,10 @@ def data_lines(data: dict) -> list[str]:
         import tomli_w
 
         lines = [_escape(line) for line in tomli_w.dumps(data).rstrip("\n").split("\n")]
+    size = sum(map(len, lines)) + len(lines) - 1  # as a reader joins them
+    if size > MAX_DATA:
+        raise InputError("data", f"takes {size} characters in the record; a record holds at most {MAX_DATA} "
+                                 "in one entry")
     return lines
 
 
