@@ -136,6 +136,50 @@ def scan_root(f, grid, start: float | None = None, scale: float = 1.0, skip=(Val
     return None, jumps, skipped
 
 
+def root_near(f, x0: float, lo: float, hi: float, *, scale: float = 1.0, skip=(ValueError,),
+              rtol: float = 1e-13, first_step: float = 1e-3) -> float | None:
+    """A root of f near x0 in [lo, hi] (0 < lo <= x0 <= hi), found in a few evaluations, or None.
+
+    A secant probe from x0 estimates the step to the root; steps of that
+    size, doubling, go the way |f| falls until the sign changes; then
+    Brent's method. Where f is smooth and monotone near x0 (a balance's
+    residual in the final T or v, as a rule) this costs some eight
+    evaluations. None — the caller then scans a grid (:func:`scan_root`),
+    which handles the rest — when an evaluation raises one of ``skip``, |f|
+    grows on the way, a bound is reached, or the root found is a jump
+    (|f| above 1e-7 scale there: f is discontinuous across a dome).
+    """
+    try:
+        f0 = f(x0)
+        if f0 == 0.0:
+            return x0
+        x1 = min(max(x0 * (1.0 + first_step), lo), hi)
+        if x1 == x0:
+            x1 = max(x0 * (1.0 - first_step), lo)
+        f1 = f(x1)
+        slope = (f1 - f0) / (x1 - x0)
+        if not (slope != 0.0 and math.isfinite(slope)):
+            return None
+        a, fa = x0, f0
+        step = -f0 / slope
+        step = max(min(step, x0), -0.5 * x0)  # at most a factor of 2 either way at first
+        for _ in range(60):
+            b = min(max(a + step, lo), hi)
+            if b == a:
+                return None
+            fb = f(b)
+            if fa * fb <= 0.0:
+                x = brent(f, a, b, rtol=rtol, fa=fa, fb=fb)
+                return x if abs(f(x)) <= 1e-7 * scale else None
+            if abs(fb) >= abs(fa):
+                return None  # going the wrong way, or a turning point: leave it to the scan
+            a, fa = b, fb
+            step *= 2.0
+    except skip:
+        return None
+    return None
+
+
 def _outward(grid, start: float):
     """Indices of a monotone grid from the point nearest ``start`` outward: i0, i0-1, i0+1, i0-2 ..."""
     n = len(grid)

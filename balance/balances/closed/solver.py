@@ -31,8 +31,8 @@ from functools import lru_cache
 import numpy as np
 
 from ...errors import InputError, SolveError, SpecificationError, TwoPhaseError
-from ...models.base import Point
-from ...rootfind import scan_root
+from ...models.base import SPEC_KEYS, Point, pair_of
+from ...rootfind import root_near, scan_root
 from ...units import R
 from ..control_volume import TOLERANCE, Unknown, best_rows
 from .problem import Problem
@@ -181,13 +181,21 @@ class _Solver:
         else:
             var, start = "T", first.T
             lo, hi = model.T_bounds()
-        grid = _grid(lo, hi)
+        last: dict = {}
+        keys = tuple(sorted((key, var), key=SPEC_KEYS.index))
+        pair = pair_of(model, keys, "final")
+        given_first = keys[0] == key
 
         def f(theta):
-            final = self.state({key: value, var: theta})
-            return float(self.eliminate(final)[1][0])
+            final = pair(value, theta) if given_first else pair(theta, value)
+            lin, rest = self.eliminate(final)
+            last.update(theta=theta, final=final, lin=lin)
+            return float(rest[0])
 
-        theta, jumps, skipped = scan_root(f, grid, start=start, skip=(InputError, ValueError, ArithmeticError))
+        skip = (InputError, ValueError, ArithmeticError)
+        theta, jumps, skipped = root_near(f, start, lo, hi, skip=skip), 0, []
+        if theta is None:  # not smooth near the start: scan the whole range
+            theta, jumps, skipped = scan_root(f, _grid(lo, hi), start=start, skip=skip)
         if theta is None:
             if jumps or any(isinstance(exc, TwoPhaseError) for exc in skipped):
                 raise TwoPhaseError(
@@ -199,8 +207,11 @@ class _Solver:
                 f"no final state with {key} fixed satisfies the balance between {var} = {lo:.4g} and {hi:.4g} "
                 "(SI); check the given values and the sign of heat and work"
             )
-        final = self.state({key: value, var: theta})
-        lin, rest = self.eliminate(final)
+        if last.get("theta") == theta:  # the search's last evaluation was at the root
+            final, lin = last["final"], last["lin"]
+        else:
+            final = self.state({key: value, var: theta})
+            lin, _ = self.eliminate(final)
         return final, lin, (
             f"one free property ({var}2): bracket searched outward from the initial {var}, then Brent's method"
         )

@@ -265,13 +265,13 @@ class Cubic(PropertyModel):
             "wet states: for a liquid-vapour mixture choose the reference model for the fluid",
         )
 
-    def flash(self, specs: dict[str, float], field: str = "state") -> Point:
-        v = specs.get("v")
-        if isinstance(v, (int, float)) and 0 < v <= self.b:
-            raise InputError(f"{field}.v", self.below_b(v))
-        return super().flash(specs, field)
-
     def solve_pair(self, keys: tuple[str, str], values: tuple[float, float], field: str) -> Point:
+        if "v" in keys:
+            v = values[keys.index("v")]
+            if v <= self.b:
+                raise InputError(f"{field}.v", self.below_b(v))
+            if keys[0] == "T":
+                return self.at_Tv(values[0], v, field)
         from .flash import solve_pair
 
         return solve_pair(self, keys, values, field)
