@@ -34,6 +34,12 @@ HEADLESS = [
     "balance.diagrams",
     "balance.record",
     "tui.cli",
+    "tui.record_cli",
+    "tui.session",
+    "tui.draft",
+    "tui.analysis",
+    "tui.offload",
+    "tui.steps",
 ]
 
 
