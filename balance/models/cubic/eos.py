@@ -21,6 +21,7 @@ from ...species import Species
 from ...units import R
 from ..base import Point, PropertyModel, check_arguments
 from . import formulas as fm
+from .flash import solve_pair
 from .forms import CubicForm
 from .saturation import SaturationCurve
 
@@ -272,8 +273,6 @@ class Cubic(PropertyModel):
                 raise InputError(f"{field}.v", self.below_b(v))
             if keys[0] == "T":
                 return self.at_Tv(values[0], v, field)
-        from .flash import solve_pair
-
         return solve_pair(self, keys, values, field)
 
     def spinodal_volumes(self, T: float) -> tuple[float, float] | None:
