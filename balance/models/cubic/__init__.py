@@ -5,6 +5,8 @@
 * :mod:`.eos`         :class:`Cubic`: states at (T, v) and (T, P), scalar and vectorised
 * :mod:`.saturation`  the coexistence curve, solved exactly and fitted once per model
 * :mod:`.flash`       every other input pair, by Newton on (T, v) with the phase decided first
+* :mod:`.twins`       the pairs two states can meet (T with h, u with h)
+* :mod:`.lines`       what the searches share
 """
 
 from .eos import Cubic, cubic_roots, z_roots
