@@ -85,7 +85,7 @@ def _forge_signoff(rec, key, signer, covers, namespace=NAMESPACE, role="prepared
                           input=message(seq, role, signer, covers), capture_output=True, check=True)
     data = {"role": role, "signer": signer, "revision": rec.revision, "covers": covers,
             "namespace": NAMESPACE, "signature": done.stdout.decode().strip().split("\n")}
-    return rec._append("sign-off", data, None)
+    return rec._append("sign-off", lambda _: data, None)
 
 
 def test_a_signature_in_another_namespace_fails(tmp_path, keys):
@@ -213,7 +213,8 @@ def test_signing_needs_a_successful_solve_of_the_current_inputs(tmp_path):
 ])
 def test_broken_rules_in_a_written_record_fail_verification(tmp_path, role, signer, problem):
     rec = new_record(tmp_path)
-    rec._append("sign-off", {"role": role, "signer": signer, "revision": 1, "covers": rec.head, "unsigned": True}, None)
+    data = {"role": role, "signer": signer, "revision": 1, "covers": rec.head, "unsigned": True}
+    rec._append("sign-off", lambda _: data, None)
     v = rec.verify()
     assert not v.ok and v.broken_seq == 9 and problem in v.reason
 
@@ -221,8 +222,8 @@ def test_broken_rules_in_a_written_record_fail_verification(tmp_path, role, sign
 def test_a_checker_who_prepared_fails_verification(tmp_path):
     rec = new_record(tmp_path)
     rec.sign("prepared", unsigned=True, signer=ALICE)
-    rec._append("sign-off", {"role": "checked", "signer": ALICE, "revision": 1, "covers": rec.head,
-                             "unsigned": True}, None)
+    data = {"role": "checked", "signer": ALICE, "revision": 1, "covers": rec.head, "unsigned": True}
+    rec._append("sign-off", lambda _: data, None)
     v = rec.verify()
     assert not v.ok and v.broken_seq == 10 and "may not be the preparer" in v.reason
 

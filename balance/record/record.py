@@ -14,7 +14,7 @@ from ..models import MODEL_NAMES
 from ..worksheet import Worksheet
 from . import store
 from .chain import chain_break, head_of
-from .format import (COMMENT, FORMAT, GENESIS, LIST_SECTIONS, MAGIC_LINE, NOTE, OPENING, RESOLUTION,
+from .format import (COMMENT, CONTENT_KINDS, FORMAT, GENESIS, LIST_SECTIONS, MAGIC_LINE, NOTE, OPENING, RESOLUTION,
                      SECTION_KINDS, SIGN_OFF, SOLVE, TAG_SEAL, Entry, clean_author, entry_lines,
                      format_time, parse, prune, seal)
 from .layout import MAX_TEXT, value_problem
@@ -27,6 +27,9 @@ from .text import render
 from .verify import Verification, verify_entries
 
 Clock = Callable[[], datetime]
+#: What an append works out its entry's data with, from the entries it follows (raising InputError
+#: when the rules refuse it there).
+Maker = Callable[[tuple[Entry, ...]], dict]
 STEP_ORDER = tuple(SECTION_KINDS)
 
 
@@ -45,11 +48,15 @@ class Record:
     ``clock`` (a function returning an aware datetime) and ``author`` may be
     given to fix the time and author of new entries; by default the time is
     now (UTC) and the author comes from :func:`balance.record.default_author`.
+    ``wait`` is how long a write waits for another writer of the record's
+    folder [s] (:data:`.store.WAIT` by default).
     """
 
     def __init__(self, path: Path, entries: tuple[Entry, ...], raw: bytes, *, clock: Clock | None = None,
-                 author: str | None = None, recovered: str | None = None, read_only: str | None = None):
+                 author: str | None = None, recovered: str | None = None, read_only: str | None = None,
+                 wait: float = store.WAIT):
         self.path = Path(path)
+        self.wait = wait
         self._entries = tuple(entries)
         self._raw = raw
         self.clock: Clock = clock or utc_now
@@ -150,7 +157,8 @@ class Record:
     # -- making --------------------------------------------------------------------------
     @classmethod
     def create(cls, path, author: str | None = None, worksheet: Worksheet | None = None, *,
-               clock: Clock | None = None, roles=None, solver: Callable[[dict], dict] | None = None) -> "Record":
+               clock: Clock | None = None, roles=None, solver: Callable[[dict], dict] | None = None,
+               wait: float = store.WAIT) -> "Record":
         """A new record file: the opening entry, then (given a worksheet) one step entry per
         section and a solve entry. Written in one atomic step; refuses an existing file.
 
@@ -165,7 +173,7 @@ class Record:
         if not roles or len(set(roles)) != len(roles) or \
                 not all(isinstance(r, str) and re.fullmatch(r"[a-z][a-z-]*", r) for r in roles):
             raise InputError("roles", "expected distinct lowercase names, like prepared, checked, approved")
-        rec = cls(path, (), MAGIC_LINE, clock=clock, author=author)
+        rec = cls(path, (), MAGIC_LINE, clock=clock, author=author, wait=wait)
         data = {"format": FORMAT, **api.pins(), "models": list(MODEL_NAMES), "roles": list(roles)}
         rec._stage(OPENING, data, None)
         if worksheet is not None:
@@ -174,11 +182,12 @@ class Record:
                 if section in sheet:
                     rec._stage(SECTION_KINDS[section], {section: sheet[section]}, None)
             rec._stage(SOLVE, (solver or solve_data)(fold(rec._entries)), None)
-        store.create(path, rec._raw)
+        store.create(path, rec._raw, wait)
         return rec
 
     @classmethod
-    def load(cls, path, *, clock: Clock | None = None, author: str | None = None) -> "Record":
+    def load(cls, path, *, clock: Clock | None = None, author: str | None = None,
+             wait: float = store.WAIT) -> "Record":
         """Read a record. A torn last entry is set aside into ``<record>.torn-<time>``
         (reported in ``recovered``); a malformed record raises InputError naming the line."""
         path = Path(path)
@@ -193,13 +202,13 @@ class Record:
             what = (f"entry {n + 1} was cut off at the end of the file (from line {parsed.torn_line}, "
                     f"{len(parsed.torn)} bytes)")
             try:
-                side = store.set_aside(path, raw, parsed.good, parsed.torn, (clock or utc_now)())
+                side = store.set_aside(path, raw, parsed.good, parsed.torn, (clock or utc_now)(), wait)
                 recovered = f"{what} and was set aside in {side}; the {n} entries before it are intact"
             except InputError as exc:
                 read_only = f"its cut-off last entry could not be set aside ({exc}); nothing can be added until it is"
                 recovered = f"{what}; it could not be set aside: {exc}"
         return cls(path, parsed.entries, parsed.good, clock=clock, author=author, recovered=recovered,
-                   read_only=read_only)
+                   read_only=read_only, wait=wait)
 
     # -- appending ------------------------------------------------------------------------
     def _who(self, author: str | None) -> str:
@@ -244,16 +253,69 @@ class Record:
             raise InputError(str(self.path), f"its chain is broken at entry {self._break[0]} ({self._break[1]}); "
                                              "a broken record cannot be extended: restore the filed copy")
 
-    def _append(self, kind: str, data: dict, author: str | None) -> Entry:
+    def _append(self, kind: str, make: Maker, author: str | None) -> Entry:
+        """Append an entry of this kind whose data is ``make(entries)``, made after the entries it follows.
+
+        The record is read again first, and once more under the folder lock (:func:`.store.commit`).
+        When other writers appended since this object read it, their entries are taken in (this
+        object shows them from then on, also when the append is refused) and the data is made after
+        them, so the rules are checked against what is on disk; an entry that depends on the
+        calculation (a step, a solve, a revision note, a sign-off) is refused when the calculation
+        changed since. Nothing on disk is ever replaced unseen.
+        """
         self._check_writable()
-        old_raw, old_entries = self._raw, self._entries
-        entry = self._stage(kind, data, author)
+        seen = len(self._entries)
+        current = store.read(self.path)  # a whole file, old or new (writers replace it atomically)
+        if current != self._raw:
+            self._catch_up(current, seen, kind)
+        self._check_writable()
+        data = make(self._entries)  # before the lock: a signature is made here, not while others wait
+        staged: list = []
+
+        def build(current: bytes) -> bytes:
+            nonlocal data
+            if current != self._raw:
+                self._catch_up(current, seen, kind)
+                data = make(self._entries)
+            staged.append((self._raw, self._entries))
+            staged.append(self._stage(kind, data, author))
+            return self._raw
+
         try:
-            store.commit(self.path, self._raw, old_raw)
+            store.commit(self.path, build, self.wait)
         except BaseException:
-            self._raw, self._entries = old_raw, old_entries
+            if staged:
+                self._raw, self._entries = staged[0]
             raise
-        return entry
+        return staged[1]
+
+    def _catch_up(self, current: bytes, seen: int, kind: str) -> None:
+        """Take in the entries other writers appended since this object read the record (``current``
+        is the file under the lock); refuse what is not an append, and an entry of ``kind`` that the
+        appended entries make stale (see :meth:`_append`); ``seen`` entries are the caller's view."""
+        where = str(self.path)
+        if not current.startswith(self._raw):
+            raise InputError(where, "was replaced by another writer since it was read (not appended to); "
+                                    "load it again (nothing was written)")
+        try:
+            parsed = parse(MAGIC_LINE + current[len(self._raw):], where)  # only what was appended
+        except InputError:
+            parse(current, where)  # the same error, naming the line of the whole file
+            raise
+        if parsed.torn:
+            raise InputError(where, "another writer left a cut-off entry at its end; load it again "
+                                    "(nothing was written)")
+        lines_before = self._raw.count(b"\n") - 1  # the tail was read after a first line of its own
+        new = tuple(dataclasses.replace(e, line=e.line + lines_before) for e in parsed.entries)
+        self._raw, self._entries = current, self._entries + new
+        self._break = chain_break(self._entries)
+        self._check_writable()
+        if kind in CONTENT_KINDS or kind == SIGN_OFF:
+            changed = next((e for e in self._entries[seen:] if e.kind in CONTENT_KINDS), None)
+            if changed is not None:
+                raise InputError(where, f"the calculation changed meanwhile (entry {changed.seq}, {changed.kind}, "
+                                        f"by {changed.author}); nothing was written: review the change and "
+                                        "try again")
 
     def append_step(self, section: str, data, author: str | None = None) -> Entry:
         """Set one worksheet section (its plain data, as in ``Worksheet.to_dict()``).
@@ -270,7 +332,7 @@ class Record:
         elif not isinstance(data, dict):
             raise InputError(section, f"expected a table for [{section}]")
         Worksheet.from_dict({section: data})  # raises InputError naming the field
-        return self._append(SECTION_KINDS[section], {section: data}, author)
+        return self._append(SECTION_KINDS[section], lambda _: {section: data}, author)
 
     def append_solve(self, author: str | None = None, *, data: dict | None = None) -> Entry:
         """Solve the current worksheet and record the result (or the error: a failed solve is recorded).
@@ -281,25 +343,36 @@ class Record:
         """
         if data is None:
             data = solve_data(fold(self._entries))
-        return self._append(SOLVE, data, author)
+        return self._append(SOLVE, lambda _: data, author)
 
     def note(self, text: str, author: str | None = None) -> Entry:
         """A revision note: why the calculation changes (counts as a change of the calculation)."""
-        return self._append(NOTE, {"note": _words(text, "note")}, author)
+        data = {"note": _words(text, "note")}
+        return self._append(NOTE, lambda _: data, author)
 
     def comment(self, on_seq: int, text: str, author: str | None = None) -> Entry:
         """A review comment on entry ``on_seq``, open until resolved."""
-        problem = comment_problem(self._entries, on_seq)
-        if problem:
-            raise InputError("comment", problem)
-        return self._append(COMMENT, {"on": on_seq, "text": _words(text, "comment")}, author)
+        data = {"on": on_seq, "text": _words(text, "comment")}
+
+        def make(entries) -> dict:
+            problem = comment_problem(entries, on_seq)
+            if problem:
+                raise InputError("comment", problem)
+            return data
+
+        return self._append(COMMENT, make, author)
 
     def resolve(self, comment_seq: int, note: str, author: str | None = None) -> Entry:
         """Resolve the open comment in entry ``comment_seq``."""
-        problem = resolution_problem(self._entries, comment_seq)
-        if problem:
-            raise InputError("resolve", problem)
-        return self._append(RESOLUTION, {"comment": comment_seq, "note": _words(note, "note")}, author)
+        data = {"comment": comment_seq, "note": _words(note, "note")}
+
+        def make(entries) -> dict:
+            problem = resolution_problem(entries, comment_seq)  # another writer may have resolved it meanwhile
+            if problem:
+                raise InputError("resolve", problem)
+            return data
+
+        return self._append(RESOLUTION, make, author)
 
     def sign(self, role: str, key_path=None, signer: str | None = None, unsigned: bool = False,
              author: str | None = None) -> Entry:
@@ -308,29 +381,37 @@ class Record:
         Signs with ``ssh-keygen -Y sign`` and the key file ``key_path``, or,
         with ``unsigned=True``, records a sign-off without a signature.
         Raises InputError for a broken role order, a checker who prepared,
-        approval with open comments, or an unsolved or failed calculation.
+        approval with open comments, or an unsolved or failed calculation;
+        also when another writer changed the calculation after this object
+        read the record. When another writer appended only review entries
+        meanwhile, the rules are checked again after them and the sign-off
+        covers the new head (signed again with ssh-keygen, the record's folder
+        held meanwhile).
         """
         who = self._who(author)
         signer = clean_author(signer if signer is not None else who, "signer")
-        problem = signoff_problem(self._entries, role, signer)
-        if problem:
-            raise InputError("sign-off", problem)
         if unsigned and key_path is not None:
             raise InputError("sign-off", "a sign-off is either signed with a key or marked unsigned, not both")
         if not unsigned and key_path is None:
             raise InputError("--key", "give the SSH key to sign with, or mark the sign-off unsigned")
-        seq, covers = len(self._entries) + 1, self.head
-        data: dict = {"role": role, "signer": signer, "revision": current_revision(self._entries), "covers": covers}
-        if unsigned:
-            data["unsigned"] = True
-        else:
-            self._check_writable()  # before ssh-keygen asks for a passphrase
-            lines, fingerprint = ssh_sign(key_path, message(seq, role, signer, covers))
-            data["namespace"] = NAMESPACE
-            if fingerprint:
-                data["key"] = fingerprint
-            data["signature"] = lines
-        return self._append(SIGN_OFF, data, who)
+
+        def make(entries) -> dict:
+            problem = signoff_problem(entries, role, signer)
+            if problem:
+                raise InputError("sign-off", problem)
+            seq, covers = len(entries) + 1, head_of(entries)
+            data: dict = {"role": role, "signer": signer, "revision": current_revision(entries), "covers": covers}
+            if unsigned:
+                data["unsigned"] = True
+            else:
+                lines, fingerprint = ssh_sign(key_path, message(seq, role, signer, covers))
+                data["namespace"] = NAMESPACE
+                if fingerprint:
+                    data["key"] = fingerprint
+                data["signature"] = lines
+            return data
+
+        return self._append(SIGN_OFF, make, who)
 
 
 def _words(text, field: str) -> str:

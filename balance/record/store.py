@@ -9,10 +9,14 @@ place. The cost is rewriting the file on each append, which for records of
 tens to hundreds of kilobytes is well under the time of the fsync itself.
 
 Writers of the same folder take an exclusive ``flock`` on the folder while
-they check and replace a record, and refuse to write when the record on
-disk is no longer the one they read (another writer appended meanwhile).
-Temporary files left by a writer that was killed are removed by the next
-writer of that record, under the same lock.
+they check and replace a record, waiting for it at most :data:`WAIT`
+seconds while another writer holds it (then nothing is written, and the
+message says so). Under the lock a writer reads the record again; when
+another writer appended meanwhile, the writer's own entry is made again
+from what is on disk, after the rules are checked again against it
+(:meth:`balance.record.Record` does that), so no writer ever replaces a
+change it has not seen. Temporary files left by a writer that was killed
+are removed by the next writer of that record, under the same lock.
 
 A torn tail (an entry cut off at the end of the file) can still reach a
 record by other routes: a copy interrupted, a file system without atomic
@@ -24,9 +28,12 @@ from __future__ import annotations
 
 import contextlib
 import os
+import random
 import secrets
+import time
 from datetime import datetime
 from pathlib import Path
+from typing import Callable
 
 from ..errors import InputError
 
@@ -48,25 +55,65 @@ def read(path: Path) -> bytes:
         raise InputError(str(path), f"cannot be read: {exc.strerror}") from None
 
 
+#: How long a writer waits for the folder lock while another writer holds it [s]. A write holds it
+#: for a few milliseconds (mostly the fsyncs), so this is room for a queue of writers, not for one.
+WAIT = 5.0
+
+
 @contextlib.contextmanager
-def locked(path: Path):
-    """Hold an exclusive lock on the record's folder (not re-entrant)."""
-    folder = path.parent
+def locked(path: Path, wait: float = WAIT):
+    """Hold an exclusive lock on the record's folder (not re-entrant), waiting at most ``wait`` seconds.
+
+    Raises InputError naming the record when another writer holds the lock
+    longer than that (nothing was written). Yields True when the lock is
+    held; False on a file system without ``flock``, where reading the record
+    again before replacing it is the only guard.
+    """
     fd = None
     if fcntl is not None:
         try:
-            fd = os.open(folder, os.O_RDONLY)
-            fcntl.flock(fd, fcntl.LOCK_EX)
-        except OSError:  # a file system without flock: the on-disk comparison still guards
-            if fd is not None:
-                os.close(fd)
+            fd = os.open(path.parent, os.O_RDONLY)
+        except OSError:
             fd = None
+    if fd is not None:
+        try:
+            _take(fd, path, wait)
+        except _NoLocks:
+            os.close(fd)
+            fd = None
+        except BaseException:
+            os.close(fd)
+            raise
     try:
-        yield
+        yield fd is not None
     finally:
         if fd is not None:
             fcntl.flock(fd, fcntl.LOCK_UN)
             os.close(fd)
+
+
+class _NoLocks(Exception):
+    """The file system does not lock."""
+
+
+def _take(fd: int, path: Path, wait: float) -> None:
+    """Take the lock on fd, polling (flock has no timeout) with short randomised pauses that grow."""
+    deadline = time.monotonic() + wait
+    pause = 0.001
+    while True:
+        try:
+            fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
+            return
+        except BlockingIOError:  # held by another writer
+            pass
+        except OSError:
+            raise _NoLocks from None
+        left = deadline - time.monotonic()
+        if left <= 0:
+            raise InputError(str(path), f"another writer has held its folder for more than {wait:g} s; "
+                                        "nothing was written: try again")
+        time.sleep(min(left, pause * random.uniform(0.5, 1.5)))
+        pause = min(pause * 2, 0.02)
 
 
 def _temp_prefix(path: Path) -> str:
@@ -134,22 +181,20 @@ def _write_replace(path: Path, data: bytes, overwrite: bool = True) -> None:
             os.unlink(temp)
 
 
-def create(path: Path, data: bytes) -> None:
+def create(path: Path, data: bytes, wait: float = WAIT) -> None:
     """Write a new record; refuses if the file exists."""
-    with locked(path):
+    with locked(path, wait):
         if path.exists():
             raise InputError(str(path), "already exists; a record is never overwritten")
         _remove_stale_temps(path)
         _write_replace(path, data, overwrite=False)
 
 
-def commit(path: Path, data: bytes, expected: bytes) -> None:
-    """Replace the record with data, provided the file on disk is still ``expected``."""
-    with locked(path):
-        current = read(path)
-        if current != expected:
-            raise InputError(str(path), "was changed by another writer since it was read; "
-                                        "load it again (nothing was written)")
+def commit(path: Path, build: Callable[[bytes], bytes], wait: float = WAIT) -> None:
+    """Replace the record with ``build(current)``, ``current`` being the file as it is on disk
+    under the folder lock; ``build`` raises to write nothing."""
+    with locked(path, wait):
+        data = build(read(path))
         _remove_stale_temps(path)
         _write_replace(path, data)
 
@@ -164,13 +209,13 @@ def side_path(path: Path, moment: datetime) -> Path:
     return candidate
 
 
-def set_aside(path: Path, as_read: bytes, good: bytes, torn: bytes, moment: datetime) -> Path:
+def set_aside(path: Path, as_read: bytes, good: bytes, torn: bytes, moment: datetime, wait: float = WAIT) -> Path:
     """Move a torn tail into a side file and rewrite the record without it.
 
     The side file is written (and flushed) before the record is replaced, so
     the torn bytes exist on disk at every moment. Returns the side file.
     """
-    with locked(path):
+    with locked(path, wait):
         if read(path) != as_read:
             raise InputError(str(path), "changed while it was being read; load it again")
         side = side_path(path, moment)
