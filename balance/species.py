@@ -325,7 +325,12 @@ def with_overrides(sp: Species, overrides: dict[str, str], field: str = "fluid.o
             )
         dim = OVERRIDABLE[key]
         name = f"{field}.{key}"
-        if isinstance(dim, tuple):
+        if key == "a":  # a cubic's a at Tc, or Redlich-Kwong's own a (a / √T in the equation)
+            kind, value = dimension_of(text, ("cubic_a", "cubic_a_rk"), name)
+            if not value > 0:
+                raise InputError(name, f"must be positive; got {text!r}")
+            model_params["a" if kind == "cubic_a" else "a_rk"] = value
+        elif isinstance(dim, tuple):
             kind, value = dimension_of(text, dim, name)
             if kind == "specific_entropy":
                 value *= changes.get("M", sp.M)

@@ -87,6 +87,7 @@ DIMENSIONS: dict[str, Dimension] = {
         Dimension("molar_mass", "kg/mol", "a molar mass"),
         Dimension("dimensionless", "dimensionless", "a pure number"),
         Dimension("cubic_a", "Pa*m**6/mol**2", "a cubic attraction parameter a"),
+        Dimension("cubic_a_rk", "Pa*m**6*K**0.5/mol**2", "Redlich-Kwong's attraction parameter a (with K^0.5)"),
     )
 }
 
@@ -96,8 +97,8 @@ _ABSOLUTE = re.compile(r"^(.*?)\s*(?:\(a\)|a| a|\(abs\)| abs)$")
 _PRESSURE_UNITS = {"bar", "psi", "kPa", "MPa", "Pa", "mbar", "atm", "kgf/cm2", "kgf/cm**2"}
 
 
-# 'm3', 'cm3', 'ft3', 'm2' as people write them: a power after a letter
-_POWER = re.compile(r"(?<=[A-Za-z])([23])(?![\d.])")
+# 'm3', 'cm3', 'ft3', 'm2', 'm6' (a cubic's a, Pa m6/mol2) as people write them: a power after a letter
+_POWER = re.compile(r"(?<=[A-Za-z])([2-6])(?![\d.])")
 
 
 def _split(text: str, field: str) -> tuple[float, str]:
@@ -219,6 +220,7 @@ def _example(dimension: str) -> str:
         "specific_entropy": "1.04 kJ/(kg K)",
         "molar_mass": "28.01 g/mol",
         "cubic_a": "0.137 Pa m6/mol2",
+        "cubic_a_rk": "1.56 Pa m6 K^0.5/mol2",
     }.get(dimension, "1")
 
 

@@ -83,12 +83,12 @@ def make_model(name: str, species: Species, params: dict[str, float] | None = No
 def _model(key: str, species: Species, items: tuple) -> PropertyModel:
     params = dict(items)
     heat_capacity = {k: params.pop(k) for k in ("cp", "cv") if k in params}
-    allowed = {"a", "b"} if key in _CUBICS else {"rho"} if key == "incompressible" else set()
+    allowed = {"a", "a_rk", "b"} if key in _CUBICS else {"rho"} if key == "incompressible" else set()
     extra = set(params) - allowed
     if extra:
         raise InputError(
             "fluid.overrides",
-            f"{', '.join(sorted(extra))} does not apply to the {key} model",
+            f"{', '.join(sorted({k.replace('a_rk', 'a') for k in extra}))} does not apply to the {key} model",
         )
     if key == "ideal-gas":
         from .idealgas import IdealGas
@@ -97,7 +97,7 @@ def _model(key: str, species: Species, items: tuple) -> PropertyModel:
     if key in _CUBICS:
         from .cubic import FORMS, Cubic
 
-        return Cubic(species, FORMS[key], a=params.get("a"), b=params.get("b"))
+        return Cubic(species, FORMS[key], a=params.get("a"), b=params.get("b"), a_rk=params.get("a_rk"))
     if key == "incompressible":
         from .incompressible import Incompressible
 

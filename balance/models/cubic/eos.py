@@ -113,15 +113,24 @@ class Cubic(PropertyModel):
     form : CubicForm  which member of the generic cubic
     a : float, optional  attraction parameter at Tc [Pa m6/mol2] (a worksheet may set it)
     b : float, optional  co-volume [m3/mol]
+    a_rk : float, optional  Redlich-Kwong's own a [Pa m6 K^0.5/mol2], the a of a / (√T v (v + b));
+        a_c = a_rk / √Tc (only for Redlich-Kwong)
     """
 
     def __init__(self, species: Species, form: CubicForm, a: float | None = None,
-                 b: float | None = None):
+                 b: float | None = None, a_rk: float | None = None):
         super().__init__(species)
         self.form = form
         self.name = form.name
         self.label = form.label
         sp = species
+        if a_rk is not None:
+            if form.alpha != "rk":
+                raise InputError("fluid.overrides.a", f"is in Pa m6 K^0.5/mol2, Redlich-Kwong's form of a (a / √T in "
+                                                      f"the equation); {form.label} takes a at Tc, in Pa m6/mol2")
+            a = a_rk / math.sqrt(sp.Tc)
+        self.a_rk = a_rk
+        """Redlich-Kwong's a as given [Pa m6 K^0.5/mol2], or None"""
         self.a_c = a if a is not None else form.omega_a * R**2 * sp.Tc**2 / sp.Pc
         """attraction parameter at Tc [Pa m6/mol2]"""
         self.b = b if b is not None else form.omega_b * R * sp.Tc / sp.Pc
@@ -356,8 +365,10 @@ class Cubic(PropertyModel):
         f = self.form
         lines = [
             f"P = R T/(v - b) - a(T)/((v + ε b)(v + σ b)),  ε = {f.epsilon:.6g}, σ = {f.sigma:.6g}",
-            f"a(T) = a_c α(T),  a_c = {self.a_c:.6g} Pa m6/mol2"
-            + (" (given)" if self.a_given else f" = Ωa R² Tc²/Pc, Ωa = {f.omega_a:.8f}"),
+            f"a(T) = a_c α(T),  a_c = {self.a_c:.6g} Pa m6/mol2" + (
+                f" (read from Redlich-Kwong's a = {self.a_rk:.6g} Pa m6 K^0.5/mol2 given: a_c = a / √Tc)"
+                if self.a_rk is not None else " (given, the value at Tc)" if self.a_given
+                else f" = Ωa R² Tc²/Pc, Ωa = {f.omega_a:.8f}"),
             f"b = {self.b:.6g} m3/mol" + (" (given)" if self.b_given else f" = Ωb R Tc/Pc, Ωb = {f.omega_b:.8f}"),
             f.alpha_text + (f",  m = {self.m:.6f}" if f.alpha == "soave" else ""),
             "u = u_ig(T) + (T a' - a) I;  s = s_ig(T, P) + R ln(1 - b/v) + a' I + R ln Z",
