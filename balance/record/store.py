@@ -15,8 +15,14 @@ message says so). Under the lock a writer reads the record again; when
 another writer appended meanwhile, the writer's own entry is made again
 from what is on disk, after the rules are checked again against it
 (:meth:`balance.record.Record` does that), so no writer ever replaces a
-change it has not seen. Temporary files left by a writer that was killed
-are removed by the next writer of that record, under the same lock.
+change it has not seen.
+
+Every file joulebook writes here (a record, a side file, an export) is
+written through a temporary file named ``.<name>.writing-<pid>-<8 hex>.tmp``,
+created, renamed and removed only under the folder lock. So a temporary file
+of that pattern that a writer finds while it holds the lock was left by a
+writer that was killed, whichever file of the folder it was writing, and the
+writer removes it before it writes (:func:`_remove_stale_temps`).
 
 A torn tail (an entry cut off at the end of the file) can still reach a
 record by other routes: a copy interrupted, a file system without atomic
@@ -29,6 +35,7 @@ from __future__ import annotations
 import contextlib
 import os
 import random
+import re
 import secrets
 import time
 from datetime import datetime
@@ -116,21 +123,27 @@ def _take(fd: int, path: Path, wait: float) -> None:
         pause = min(pause * 2, 0.02)
 
 
-def _temp_prefix(path: Path) -> str:
-    return f".{path.name}.writing-"
+#: The temporary file of a write in progress (see the module docstring); nothing else is named so.
+_TEMP = re.compile(r"\..+\.writing-[0-9]+-[0-9a-f]{8}\.tmp", re.S)
 
 
-def _remove_stale_temps(path: Path) -> None:
-    """Temporary files of killed writers (only called with the lock held)."""
-    prefix = _temp_prefix(path)
+def _temp_path(path: Path) -> Path:
+    return path.parent / f".{path.name}.writing-{os.getpid()}-{secrets.token_hex(4)}.tmp"
+
+
+def _remove_stale_temps(folder: Path, held: bool) -> None:
+    """Remove the temporary files of killed writers from the folder, whatever file they were writing;
+    only while the folder lock is held (``held``), when no temporary file there is in use."""
+    if not held:  # a file system without flock: another writer may be using one
+        return
     try:
-        names = os.listdir(path.parent)
+        names = os.listdir(folder)
     except OSError:
         return
     for name in names:
-        if name.startswith(prefix) and name.endswith(".tmp"):
+        if _TEMP.fullmatch(name):
             with contextlib.suppress(OSError):
-                os.unlink(path.parent / name)
+                os.unlink(folder / name)
 
 
 def _fsync_folder(folder: Path) -> None:
@@ -148,7 +161,7 @@ def _write_replace(path: Path, data: bytes, overwrite: bool = True) -> None:
     With overwrite False the final step is a hard link, which fails if path
     exists, so nothing is ever overwritten.
     """
-    temp = path.parent / f"{_temp_prefix(path)}{os.getpid()}-{secrets.token_hex(4)}.tmp"
+    temp = _temp_path(path)
     try:
         fd = os.open(temp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666)
         try:
@@ -183,19 +196,19 @@ def _write_replace(path: Path, data: bytes, overwrite: bool = True) -> None:
 
 def create(path: Path, data: bytes, wait: float = WAIT) -> None:
     """Write a new record; refuses if the file exists."""
-    with locked(path, wait):
+    with locked(path, wait) as held:
+        _remove_stale_temps(path.parent, held)
         if path.exists():
             raise InputError(str(path), "already exists; a record is never overwritten")
-        _remove_stale_temps(path)
         _write_replace(path, data, overwrite=False)
 
 
 def commit(path: Path, build: Callable[[bytes], bytes], wait: float = WAIT) -> None:
     """Replace the record with ``build(current)``, ``current`` being the file as it is on disk
     under the folder lock; ``build`` raises to write nothing."""
-    with locked(path, wait):
+    with locked(path, wait) as held:
+        _remove_stale_temps(path.parent, held)
         data = build(read(path))
-        _remove_stale_temps(path)
         _write_replace(path, data)
 
 
@@ -215,21 +228,24 @@ def set_aside(path: Path, as_read: bytes, good: bytes, torn: bytes, moment: date
     The side file is written (and flushed) before the record is replaced, so
     the torn bytes exist on disk at every moment. Returns the side file.
     """
-    with locked(path, wait):
+    with locked(path, wait) as held:
+        _remove_stale_temps(path.parent, held)
         if read(path) != as_read:
             raise InputError(str(path), "changed while it was being read; load it again")
         side = side_path(path, moment)
         _write_replace(side, torn, overwrite=False)
-        _remove_stale_temps(path)
         _write_replace(path, good)
     return side
 
 
-def write_output(path: Path, data: bytes) -> None:
-    """Write an export (replacing any earlier export) atomically."""
+def write_output(path: Path, data: bytes, wait: float = WAIT) -> None:
+    """Write an export (replacing any earlier export) atomically, under its folder's lock as every
+    write of joulebook's is (its temporary file is then one the next writer may remove)."""
     path = Path(path)
     if path.is_dir():
         raise InputError(str(path), "is a folder; give a file name")
     if not path.parent.is_dir():
         raise InputError(str(path), "its folder does not exist")
-    _write_replace(path, data)
+    with locked(path, wait) as held:
+        _remove_stale_temps(path.parent, held)
+        _write_replace(path, data)
