@@ -92,22 +92,66 @@ DIMENSIONS: dict[str, Dimension] = {
 }
 
 _NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+_DECIMAL_COMMA = re.compile(r"^\s*[-+]?\d*,\d")
 _GAUGE = re.compile(r"^(.*?)\s*(?:\(g\)|g| g|\(gauge\)| gauge)$")
 _ABSOLUTE = re.compile(r"^(.*?)\s*(?:\(a\)|a| a|\(abs\)| abs)$")
 _PRESSURE_UNITS = {"bar", "psi", "kPa", "MPa", "Pa", "mbar", "atm", "kgf/cm2", "kgf/cm**2"}
 
+#: The longest text a quantity field takes [characters]. A value and its unit are a few tens
+#: ('1.01325 bar(a)', '29.1 J/(mol K)'); longer text is refused before anything reads it.
+MAX_TEXT = 200
+#: The largest power a unit may carry ('m**3', 'K^0.5', 'm6'); a power of a power is refused:
+#: pint evaluates what it is given, and '10**10**10' is a number of ten billion digits.
+MAX_POWER = 12
 
 # 'm3', 'cm3', 'ft3', 'm2', 'm6' (a cubic's a, Pa m6/mol2) as people write them: a power after a letter
 _POWER = re.compile(r"(?<=[A-Za-z])([2-6])(?![\d.])")
+# a power in a unit: '**3', '^0.5', '** (-2)', '^-1'
+_EXPONENT = re.compile(r"(?:\*\*|\^)\s*(\(\s*)?([-+]?\s*(?:\d+\.?\d*|\.\d+))\s*(\))?")
+
+# Celsius and Fahrenheit as people write them in a temperature field. pint reads 'C' as the
+# coulomb and 'F' as the farad (and has no 'degc'), but neither is ever a temperature: in a
+# field that expects one, these spellings can only mean the temperature scales.
+_TEMPERATURE_SPELLINGS = {
+    **dict.fromkeys(("C", "c", "degc", "deg C", "deg c", "deg_C", "°c", "° C", "ºC", "º C", "℃",
+                     "Celsius", "celcius", "Celcius"), "degC"),
+    **dict.fromkeys(("F", "degf", "deg F", "deg f", "deg_F", "°f", "° F", "ºF", "º F", "℉",
+                     "Fahrenheit"), "degF"),
+    **dict.fromkeys(("deg K", "kelvin", "Kelvin"), "K"),
+}
 
 
-def _split(text: str, field: str) -> tuple[float, str]:
+def _split(text: str, dimension: str) -> tuple[float, str] | str:
+    """``text`` as (its number, its unit with powers written as pint reads them), or what is wrong."""
+    if _DECIMAL_COMMA.match(text):
+        return (f"has a comma in its number; write a decimal point and no thousands separators, "
+                f"like '{_example(dimension)}'; got {text!r}")
     m = _NUMBER.match(text)
     if not m:
-        raise InputError(field, f"expected a number and a unit, like '500 K'; got {text!r}")
+        return _no_number(DIMENSIONS[dimension].phrase, dimension, text)
     value = float(m.group(1))
-    unit = _POWER.sub(r"**\1", m.group(2).replace("³", "3").replace("²", "2"))
+    unit = m.group(2)
+    if dimension in ("temperature", "temperature_difference"):
+        unit = _TEMPERATURE_SPELLINGS.get(unit, unit)
+    unit = _POWER.sub(r"**\1", unit.replace("³", "3").replace("²", "2"))
     return value, unit
+
+
+def _no_number(phrase: str, dimension: str, text: str) -> str:
+    return f"expected {phrase}: a number and a unit, like '{_example(dimension)}'; got {text!r}"
+
+
+def _unit_problem(unit: str, text: str) -> str:
+    """What makes a unit unsafe or wrong to hand to pint ('' when nothing): a number in it
+    that is not a small power, or a power of a power."""
+    for m in _EXPONENT.finditer(unit):
+        if float(m.group(2).replace(" ", "")) > MAX_POWER or float(m.group(2).replace(" ", "")) < -MAX_POWER:
+            return f"has a power beyond ±{MAX_POWER} in its unit; got {text!r}"
+        if re.match(r"\s*(?:\*\*|\^)", unit[m.end():]):
+            return f"has a power of a power in its unit; write the unit plainly, like 'm**3'; got {text!r}"
+    if any(ch.isdigit() for ch in _EXPONENT.sub("", unit)):
+        return f"has a number inside its unit; write one number, then the unit; got {text!r}"
+    return ""
 
 
 def _pressure_suffix(unit: str) -> tuple[str, str | None]:
@@ -119,7 +163,7 @@ def _pressure_suffix(unit: str) -> tuple[str, str | None]:
     return unit, None
 
 
-def parse(text, dimension: str, field: str, *, p_atm: float = P_ATM) -> float:
+def parse(text, dimension: str, field: str, *, p_atm: float = P_ATM, gauge: bool = True) -> float:
     """Read what a person typed as an SI float of the expected dimension.
 
     Parameters
@@ -133,14 +177,21 @@ def parse(text, dimension: str, field: str, *, p_atm: float = P_ATM) -> float:
         The field's name, used in error messages.
     p_atm : float
         Atmospheric pressure for gauge readings [Pa].
+    gauge : bool
+        Whether a gauge reading is accepted (not for the atmosphere itself).
 
     Returns
     -------
     float
-        The value in the dimension's SI unit (K, Pa, m3, ...).
+        The value in the dimension's SI unit (K, Pa, m3, ...). A temperature
+        is above absolute zero and a pressure above vacuum, or InputError says
+        so; ``C``, ``degc``, ``deg C`` in a temperature field read as °C
+        (and ``F`` as °F): pint's coulomb and farad are never temperatures.
 
     >>> parse("20 degC", "temperature", "T1")
     293.15
+    >>> parse("25 C", "temperature", "T1")
+    298.15
     >>> parse("3.2 barg", "pressure", "P1")
     421325.0
     """
@@ -148,22 +199,36 @@ def parse(text, dimension: str, field: str, *, p_atm: float = P_ATM) -> float:
     if isinstance(text, bool):
         raise InputError(field, f"must be {dim.phrase}; got {text!r}")
     if isinstance(text, (int, float)):
-        if dimension == "dimensionless":
+        if dimension == "dimensionless" and math.isfinite(text):
             return float(text)
+        if dimension == "dimensionless":
+            raise InputError(field, f"must be a finite number; got {text!r}")
         raise InputError(
             field, f"must be {dim.phrase} with a unit, like '{_example(dimension)}'; got {text!r}"
         )
     if not isinstance(text, str):
-        raise InputError(field, f"must be {dim.phrase} written as text; got {text!r}")
-    si, gauge, problem = _convert(text, dimension)
+        raise InputError(field, f"must be {dim.phrase} written as text; got {type(text).__name__}")
+    if len(text) > MAX_TEXT:  # before the cache, which would keep it
+        raise InputError(field, f"is {len(text)} characters long; {dim.phrase} is a number and a unit, "
+                                f"like '{_example(dimension)}', at most {MAX_TEXT} characters")
+    si, is_gauge, problem, _ = _convert(text, dimension)
     if problem:
         raise InputError(field, problem)
-    return si + p_atm if gauge else si
+    if not is_gauge:
+        return si
+    if not gauge:
+        raise InputError(field, f"must be an absolute pressure, not a gauge reading; got {text!r}")
+    if not si + p_atm > 0:
+        raise InputError(field, f"is at or below vacuum: {text!r} is {(si + p_atm) / 1e5:.6g} bar absolute against "
+                                f"an atmosphere of {p_atm / 1e5:.6g} bar; a gauge reading cannot be below "
+                                f"-{p_atm / 1e5:.6g} bar(g)")
+    return si + p_atm
 
 
 @lru_cache(maxsize=4096)
-def _convert(text: str, dimension: str) -> tuple[float, bool, str]:
-    """``text`` as (SI value, whether it is a gauge pressure, '') or (nan, False, what is wrong).
+def _convert(text: str, dimension: str) -> tuple[float, bool, str, bool]:
+    """``text`` as (SI value, whether it is a gauge pressure, '', False) or (nan, False, what is
+    wrong, whether it is only the dimension that is wrong).
 
     Cached: pint takes tens of microseconds a conversion, and a worksheet is
     read again at every check and solve. The atmosphere is not part of the
@@ -173,28 +238,38 @@ def _convert(text: str, dimension: str) -> tuple[float, bool, str]:
     words, without the field, which the caller names.
     """
     dim = DIMENSIONS[dimension]
-    try:
-        value, unit = _split(text, "")
-    except InputError as exc:
-        return math.nan, False, exc.message
+    split = _split(text, dimension)
+    if isinstance(split, str):
+        return math.nan, False, split, False
+    value, unit = split
     if not math.isfinite(value):
-        return math.nan, False, f"must be a finite number; got {text!r}"
+        return math.nan, False, f"must be a finite number; got {text!r}", False
     if dimension == "dimensionless":
         if unit in ("", "-", "1"):
-            return value, False, ""
-        return math.nan, False, f"must be a pure number; got {text!r}"
+            return value, False, "", False
+        return math.nan, False, f"must be a pure number; got {text!r}", True
     if not unit:
-        return math.nan, False, f"must be {dim.phrase} with a unit, like '{_example(dimension)}'; got {text!r}"
+        return math.nan, False, f"must be {dim.phrase} with a unit, like '{_example(dimension)}'; got {text!r}", True
+    problem = _unit_problem(unit, text)
+    if problem:
+        return math.nan, False, problem, False
     kind = None
     if dimension == "pressure":
         unit, kind = _pressure_suffix(unit)
     try:
-        si = Q_(value, unit).to(dim.si_unit).magnitude
+        si = float(Q_(value, unit).to(dim.si_unit).magnitude)
     except Exception:
-        return math.nan, False, f"must be {dim.phrase} (like '{_example(dimension)}'); got {text!r}"
+        return math.nan, False, f"must be {dim.phrase} (like '{_example(dimension)}'); got {text!r}", True
+    if not math.isfinite(si):
+        return math.nan, False, f"is too large to compute with; got {text!r}", False
     if dimension == "temperature_difference" and _is_offset(unit):
-        return math.nan, False, f"is a temperature difference: write it in K or delta_degC; got {text!r}"
-    return float(si), kind == "gauge", ""
+        return math.nan, False, f"is a temperature difference: write it in K or delta_degC; got {text!r}", True
+    if dimension == "temperature" and not si > 0:
+        which = f", which is {si:.6g} K" if unit != "K" else ""
+        return math.nan, False, f"must be above absolute zero (0 K, -273.15 degC); got {text!r}{which}", False
+    if dimension == "pressure" and kind != "gauge" and not si > 0:
+        return math.nan, False, f"must be an absolute pressure above zero (a vacuum); got {text!r}", False
+    return si, kind == "gauge", "", False
 
 
 def _is_offset(unit: str) -> bool:
@@ -228,14 +303,19 @@ def dimension_of(text: str, candidates: tuple[str, ...], field: str) -> tuple[st
     """Which of ``candidates`` the typed quantity is, and its SI value.
 
     Used where one field accepts several kinds (an amount given as moles or
-    as kilograms; v given per mole or per kilogram).
+    as kilograms; v given per mole or per kilogram). A text that is wrong
+    whatever the dimension (a decimal comma, no number, too long) gets that
+    message; a quantity of none of them is told all the dimensions expected.
     """
+    phrases = " or ".join(DIMENSIONS[c].phrase for c in candidates)
     for key in candidates:
         try:
             return key, parse(text, key, field)
-        except InputError:
-            continue
-    phrases = " or ".join(DIMENSIONS[c].phrase for c in candidates)
+        except InputError as exc:
+            if not (isinstance(text, str) and len(text) <= MAX_TEXT and _convert(text, key)[3]):
+                if isinstance(text, str) and not _DECIMAL_COMMA.match(text) and not _NUMBER.match(text):
+                    raise InputError(field, _no_number(phrases, key, text)) from None
+                raise  # not a question of dimension: the same for every candidate
     raise InputError(field, f"must be {phrases}; got {text!r}")
 
 
