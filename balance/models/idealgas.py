@@ -15,6 +15,26 @@ from ..units import P_REF, R
 from .base import Point, PropertyModel, check_arguments, fmt_spec
 
 
+def ideal_temperature(cp_ig, key: str, target: float, lo: float, hi: float, along: str | None = None,
+                      fixed: float = 0.0, rtol: float = 1e-15) -> float:
+    """T [K] in [lo, hi] where the ideal gas has ``key`` (u or h; s at fixed P or v, ``along``)
+    equal to ``target`` (molar SI); each rises with T, so Newton kept in the bracket finds the one.
+
+    Raises NoBracket when no T in the range meets it.
+    """
+    def fdf(T: float):
+        cp, h, s = cp_ig.terms(T)
+        if key == "h":
+            return h - target, cp
+        if key == "u":
+            return h - R * T - target, cp - R
+        if along == "P":
+            return s - R * math.log(fixed / P_REF) - target, cp / T
+        return s - R * math.log(R * T / (fixed * P_REF)) - target, (cp - R) / T
+
+    return newton_bracketed(fdf, lo, hi, x0=min(max(300.0, lo * 1.0001), hi * 0.9999), rtol=rtol)
+
+
 #: The ideal gas is warned about where Peng-Robinson's |Z - 1| at the same T and P exceeds this.
 Z_TOLERANCE = 0.01
 
@@ -75,21 +95,9 @@ class IdealGas(PropertyModel):
 
     def _temperature(self, key: str, target: float, along: str | None, fixed: float, field: str) -> float:
         """T [K] where ``key`` (u, h or s) reaches ``target``, at fixed P or v (``along``)."""
-        cp_ig = self.species.cp_ig
-
-        def fdf(T: float):
-            cp, h, s = cp_ig.terms(T)
-            if key == "h":
-                return h - target, cp
-            if key == "u":
-                return h - R * T - target, cp - R
-            if along == "P":
-                return s - R * math.log(fixed / P_REF) - target, cp / T
-            return s - R * math.log(R * T / (fixed * P_REF)) - target, (cp - R) / T
-
         lo, hi = self.T_bounds()
         try:
-            return newton_bracketed(fdf, lo, hi, x0=min(max(300.0, lo), hi), rtol=1e-15)
+            return ideal_temperature(self.species.cp_ig, key, target, lo, hi, along, fixed, rtol=1e-15)
         except NoBracket:
             where = f" at {fmt_spec(along, fixed)}" if along else ""
             raise InputError(field, f"no state of the ideal gas between {lo:g} K and {hi:g} K has "

@@ -10,8 +10,8 @@ import math
 
 from ...errors import InputError
 from ...rootfind import NoBracket, newton_bracketed
-from ...units import P_REF
 from ...units import R as R_GAS
+from ..idealgas import ideal_temperature
 
 #: Largest molar volume searched [m3/mol] (0.25 Pa at 300 K).
 V_MAX = 1e4
@@ -132,24 +132,14 @@ def ideal_start(m, key: str, target: float, T_lo: float, T_hi: float, P: float |
                  v: float | None = None) -> float:
     """T [K] where the ideal gas meets key = target (u or h; s or v at the given P or v),
     inside the bracket: the departures neglected, a first point for Newton."""
-    cp_ig = m.species.cp_ig
     if key == "v":
         T = P * target / R_GAS
     elif key == "P":
         T = target * v / R_GAS
     else:
-        def fdf(T: float):
-            cp, h, s0 = cp_ig.terms(T)
-            if key == "h":
-                return h - target, cp
-            if key == "u":
-                return h - R_GAS * T - target, cp - R_GAS
-            if P is not None:
-                return s0 - R_GAS * math.log(P / P_REF) - target, cp / T
-            return s0 - R_GAS * math.log(R_GAS * T / (v * P_REF)) - target, (cp - R_GAS) / T
-
         try:
-            T = newton_bracketed(fdf, T_lo, T_hi, min(max(300.0, T_lo * 1.0001), T_hi * 0.9999), xtol=0.0, rtol=1e-8)
+            T = ideal_temperature(m.species.cp_ig, key, target, T_lo, T_hi, "P" if P is not None else "v",
+                                  P if P is not None else (v or 0.0), rtol=1e-8)
         except NoBracket:
             return 0.5 * (T_lo + T_hi)
     return min(max(T, T_lo * 1.0001), T_hi * 0.9999)
