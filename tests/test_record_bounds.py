@@ -62,7 +62,8 @@ def _same_on_both_paths(path):
 
 
 @pytest.mark.parametrize("value", ["[" * 500 + "]" * 500, "{ a = " * 500 + "1" + " }" * 500,
-                                   "[" * 300 + "{ a = " * 200 + "1" + " }" * 200 + "]" * 300])
+                                   "[" * 300 + "{ a = " * 200 + "1" + " }" * 200 + "]" * 300],
+                         ids=["arrays", "inline tables", "both"])
 def test_a_500_deep_value_is_refused_naming_file_line_and_limit(rec, capsys, value):
     path, first = _with_comment(rec, ["on = 2", 'text = "see the data"', "deep = " + value], "deep.jbk")
     expected = f"{path}, line {first + 2}: the data part {DEEP}; at most {MAX_DEPTH} levels are allowed"
@@ -155,3 +156,9 @@ def test_every_recursive_walker_refuses_unchecked_deep_data():
             walk()
     with pytest.raises(InputError, match=f"^comment: its data {DEEP}"):
         render("comment", {"on": 1, "text": "x", "more": deep}, ())
+
+
+def test_a_toml_date_is_refused_as_the_writer_cannot_write_one(rec):
+    path, first = _with_comment(rec, ["on = 2", "text = 1979-05-27T07:32:00Z"], "date.jbk")
+    assert _same_on_both_paths(path) == (f"{path}, line {first}: the data part holds a datetime (at 'text'); "
+                                         "a record holds text, numbers, true or false, lists and tables")

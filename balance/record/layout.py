@@ -265,7 +265,7 @@ def _too_deep(where: str = "") -> str:
 def value_problem(data) -> str | None:
     """What puts an entry's data beyond what a record may hold (None when nothing does): tables and
     lists nested more than :data:`MAX_DEPTH` levels, a text or key of more than :data:`MAX_TEXT`
-    characters, an integer outside TOML's 64-bit range.
+    characters, an integer outside TOML's 64-bit range, a value of another kind (a TOML date or time).
 
     Walks without recursion, so it is safe on any data. Every entry the reader returns and every
     entry the writer writes has passed it: the code after them may walk entry data recursively.
@@ -287,8 +287,12 @@ def value_problem(data) -> str | None:
         elif isinstance(value, str):
             if len(value) > MAX_TEXT:
                 return f"holds a text of {len(value)} characters (at {_path(path)}); at most {MAX_TEXT} are allowed"
-        elif isinstance(value, int) and not isinstance(value, bool) and not _INT_MIN <= value <= _INT_MAX:
-            return f"holds an integer outside TOML's 64-bit range (at {_path(path)})"
+        elif isinstance(value, int) and not isinstance(value, bool):
+            if not _INT_MIN <= value <= _INT_MAX:
+                return f"holds an integer outside TOML's 64-bit range (at {_path(path)})"
+        elif not (value is None or isinstance(value, (float, bool))):  # None: left out when written (no null)
+            return (f"holds a {type(value).__name__} (at {_path(path)}); a record holds text, numbers, "
+                    "true or false, lists and tables")
     return None
 
 
