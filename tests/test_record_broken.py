@@ -133,3 +133,12 @@ def test_a_broken_record_is_never_extended(doubled, capsys):
     assert main(["record", "comment", str(doubled), "2", "one more"]) == 2
     err = capsys.readouterr().err
     assert "its chain is broken at entry 9" in err and "cannot be extended" in err
+
+
+def test_update_refuses_a_broken_record_even_with_no_change(doubled, tmp_path, capsys):
+    from tests.helpers import SAMPLES
+
+    assert main(["record", "update", str(doubled), str(SAMPLES / "n2-buffer-into-receiver.toml")]) == 2
+    captured = capsys.readouterr()
+    assert "no change" not in captured.out
+    assert "its chain is broken at entry 9" in captured.err and "restore the filed copy" in captured.err

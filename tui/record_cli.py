@@ -248,6 +248,11 @@ def cmd_update(args) -> int:
     from balance.worksheet import Worksheet
 
     rec = _load(args.record)
+    if rec.broken:  # not even "no change": what it holds is not the record as filed
+        from balance.errors import InputError
+
+        raise InputError(args.record, f"its chain is broken at entry {rec.broken[0]} ({rec.broken[1]}); "
+                                      "a broken record cannot be extended: restore the filed copy")
     new = Worksheet.load(args.worksheet).to_dict()
     current = fold(rec.entries)
     changed = []
