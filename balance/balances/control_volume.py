@@ -115,6 +115,12 @@ def check_term_names(heat: tuple[HeatTerm, ...], work: tuple[WorkTerm, ...]) -> 
             raise InputError(kind, f"two {kind} terms are named {twice[0]!r}: give each its own name")
 
 
+def read_atmosphere(text: str, field: str = "worksheet.atmosphere") -> float:
+    """The atmospheric pressure gauge readings are taken against [Pa] (blank: the standard
+    atmosphere): an absolute pressure above vacuum; raises InputError naming ``field``."""
+    return parse(text or "1.01325 bar", "pressure", field, gauge=False)
+
+
 def read_heat(h: HeatTerm, T_default: float | None = None, T_note: str = "") -> Heat:
     """A heat term's numbers; ``T_default`` [K] (with ``T_note`` saying why) stands in for a
     boundary temperature the worksheet leaves out."""
@@ -180,6 +186,8 @@ class Dof:
     fixed: tuple[str, ...]
     """what fixes the final state, e.g. 'v by rigid'"""
     message: str
+    implied: tuple[str, ...] = ()
+    """equations a constraint adds that the others already imply, and why (not counted again)"""
 
     @property
     def ok(self) -> bool:

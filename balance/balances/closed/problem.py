@@ -15,12 +15,13 @@ from functools import cached_property
 
 from ...convention import Convention
 from ...errors import InputError, SpecificationError
-from ...models.base import PropertyModel
+from ...models.base import Point, PropertyModel
 from ...species import Species
 from ...state import State, make_fluid, read_specs
 from ...units import dimension_of, parse
 from ...worksheet import UNKNOWN, Worksheet
-from ..control_volume import Dof, Heat, Unknown, Work, check_term_names, read_heat, read_work
+from ..control_volume import (Dof, Heat, Unknown, Work, check_term_names, read_atmosphere, read_heat,
+                              read_work)
 
 
 @dataclass(frozen=True)
@@ -57,6 +58,18 @@ class Problem:
     dPE: float
     constraints: tuple[str, ...]
     notes: list[str] = field(default_factory=list)
+    implied: tuple[str, ...] = ()
+    """equations the constraints add that the others already imply, in words (counted once)"""
+    pressure_undetermined: bool = False
+    """the model cannot give the final pressure (the incompressible model, with no P given or
+    implied): the result's P is NaN, and its words and cautions must say so"""
+    final_point: Point | None = None
+    """the final state, when the worksheet fixes it directly (flashed while checking)"""
+
+    @property
+    def reversible_equation(self) -> bool:
+        """Whether S_gen = 0 is one of the equations counted (declared, and not implied by the others)."""
+        return self.reversible and not self.implied
 
     @property
     def gases(self) -> list[Compartment]:
@@ -77,7 +90,7 @@ class Problem:
 
     def equation_names(self) -> list[str]:
         eqs = ["energy balance (first law)"]
-        if self.reversible:
+        if self.reversible_equation:
             eqs.append("reversible: S_gen = 0 (second law)")
         if self.path == "polytropic":
             eqs.append(f"polytropic path P v^{self.n_poly:g} = const")
@@ -86,7 +99,7 @@ class Problem:
 
 def prepare(ws: Worksheet) -> Problem:
     """Read a worksheet into a Problem; raises InputError naming the field."""
-    p_atm = parse(ws.heading.atmosphere or "1.01325 bar", "pressure", "worksheet.atmosphere")
+    p_atm = read_atmosphere(ws.heading.atmosphere)
     if not ws.fluid.species:
         raise InputError("fluid.species", "give the species, e.g. 'N2' (`joulebook species` lists them)")
     if not ws.fluid.model:
@@ -102,7 +115,8 @@ def prepare(ws: Worksheet) -> Problem:
     if not ws.initial:
         raise InputError("initial", "give the initial state: two properties and an amount")
 
-    compartments, n_total = _compartments(ws, model, p_atm)
+    notes: list[str] = []
+    compartments, n_total = _compartments(ws, model, p_atm, notes)
     gases = [c for c in compartments if c.state is not None]
     if not gases:
         raise InputError("initial", "every compartment is empty: at least one must hold the fluid")
@@ -121,16 +135,9 @@ def prepare(ws: Worksheet) -> Problem:
         raise InputError(
             "work", f"the {path} path fixes the boundary work; remove the work term '{boundary_terms[0].name}' of kind 'boundary'"
         )
-    if path == "given" and not boundary_terms:
-        raise InputError(
-            "process.constraints",
-            "the volume may change but no path says how: add rigid, isobaric, isothermal or polytropic, "
-            "or a work term of kind 'boundary'",
-        )
 
     fixed: dict[str, float] = {}
     sources: dict[str, str] = {}
-    notes: list[str] = []
     M = species.M
     given = read_specs(ws.final.props, M, "final", p_atm)
     for key, value in given.items():
@@ -141,9 +148,10 @@ def prepare(ws: Worksheet) -> Problem:
             if math.isclose(fixed[key], value, rel_tol=1e-9):
                 notes.append(f"final {key} is both given and implied by {why}; counted once")
                 return
+            unit = {"T": "K", "P": "Pa", "v": "m3/mol"}.get(key, "(SI)")
             raise InputError(
                 f"final.{key}",
-                f"{key} is given as {fixed[key]:.6g} but {why} makes it {value:.6g} (SI): remove one",
+                f"{key} is given as {fixed[key]:.6g} {unit} but {why} makes it {value:.6g} {unit}: remove one",
             )
         fixed[key], sources[key] = value, why
 
@@ -168,20 +176,25 @@ def prepare(ws: Worksheet) -> Problem:
             raise InputError("final.V", f"rigid keeps V = {V_total:.6g} m3; the final V given differs")
         if path != "rigid":
             imply("v", V_final / n_total, "final V")
+    if path == "given" and not boundary_terms:
+        if _fixed_volume(model) is None:
+            _whole_work(ws, fixed, notes)
+        else:
+            notes.append(f"the {model.name} model keeps v = M/ρ in every state: no boundary work, whatever the path")
+    undetermined = False
+    if _fixed_volume(model) is not None:
+        undetermined = _volume_of_the_model(ws, model, path, fixed, sources, notes)
     if len(fixed) > 2:
         listed = ", ".join(f"{k} ({sources[k]})" for k in fixed)
         raise SpecificationError(
             f"the final state is over-specified: {listed} are all fixed but a state takes two; remove one"
         )
+    final_point = model.flash(dict(fixed), field="final") if len(fixed) == 2 else None
     n_poly = None
     if path == "polytropic":
         if len(gases) > 1:
             raise InputError("process.constraints", "a polytropic path applies to one compartment")
-        if not ws.process.n:
-            raise InputError("process.n", "give the polytropic exponent n, e.g. 1.3")
-        n_poly = parse(ws.process.n, "dimensionless", "process.n")
-        if n_poly < 0:
-            raise InputError("process.n", f"expected a polytropic exponent >= 0; got {ws.process.n!r}")
+        n_poly = read_polytropic_n(ws.process.n)
 
     check_term_names(ws.heat, ws.work)
     reversible = "reversible" in constraints
@@ -202,12 +215,115 @@ def prepare(ws: Worksheet) -> Problem:
     work = tuple(read_work(w, convention) for w in ws.work)
     dKE = parse(ws.process.dKE, "energy", "process.dKE") if ws.process.dKE else 0.0
     dPE = parse(ws.process.dPE, "energy", "process.dPE") if ws.process.dPE else 0.0
+    implied = ()
+    if reversible:
+        why = _reversible_implied(path, compartments, heat, work, dKE, dPE, T_system)
+        implied = (why,) if why else ()
     return Problem(
         worksheet=ws, species=species, model=model, p_atm=p_atm,
         convention=convention, initial=compartments, n=n_total,
         final_fixed=fixed, final_sources=sources, path=path, n_poly=n_poly, heat=heat,
         work=work, reversible=reversible, dKE=dKE, dPE=dPE,
-        constraints=tuple(sorted(constraints)), notes=notes,
+        constraints=tuple(sorted(constraints)), notes=notes, implied=implied,
+        pressure_undetermined=undetermined, final_point=final_point,
+    )
+
+
+#: The largest polytropic exponent taken: beyond it the path is a rigid vessel to within parts
+#: per million of the volume (v2/v1 = (P1/P2)^(1/n)), and 'rigid' says so plainly.
+N_POLY_MAX = 1e6
+
+
+def read_polytropic_n(text: str, field: str = "process.n") -> float:
+    """The polytropic exponent n of P v^n = const [-], 0 <= n <= N_POLY_MAX; raises InputError."""
+    if not text.strip():
+        raise InputError(field, "give the polytropic exponent n, e.g. 1.3")
+    n = parse(text, "dimensionless", field)
+    if not 0.0 <= n <= N_POLY_MAX:
+        raise InputError(field, f"expected a polytropic exponent from 0 (isobaric) to {N_POLY_MAX:g} "
+                                f"(beyond that, tick 'rigid'); got {text!r}")
+    return n
+
+
+def _reversible_implied(path: str, compartments, heat: tuple[Heat, ...], work: tuple[Work, ...],
+                        dKE: float, dPE: float, T_system: float | None) -> str:
+    """Why S_gen = 0 follows from the other equations ('' when it is an equation of its own).
+
+    - The isothermal path's work is the reversible work, n (a2 - a1) with a = u - T s; with every
+      heat term crossing at the system's temperature and no other work or energy, the energy
+      balance is n Δu = Q + n (Δu - T Δs), i.e. n Δs = Q / T: the entropy balance itself.
+    - A rigid or isobaric boundary that nothing crosses (no heat, no work, no change of kinetic or
+      potential energy) around one compartment keeps u and v (rigid) or h and P (isobaric): the
+      state cannot change, and ΔS = 0 already.
+    """
+    quiet = not work and dKE == 0.0 and dPE == 0.0
+    if path == "isothermal" and quiet and T_system is not None and all(
+            h.T_boundary is not None and math.isclose(h.T_boundary, T_system, rel_tol=1e-9) for h in heat):
+        return ("reversible (S_gen = 0) follows from the isothermal path: its work n (a2 - a1) is the "
+                "reversible work and every heat term crosses at the system temperature, so the entropy "
+                "balance is the energy balance divided by T")
+    if path in ("rigid", "isobaric") and quiet and not heat and len(compartments) == 1:
+        kept = "u and v" if path == "rigid" else "h and P"
+        return (f"reversible (S_gen = 0) follows from the others: nothing crosses the {path} boundary, "
+                f"so {kept} stay as they were, the state does not change and ΔS = 0")
+    return ""
+
+
+def _fixed_volume(model: PropertyModel) -> float | None:
+    """The molar volume a model gives every state (the incompressible model's M/ρ) [m3/mol], or None."""
+    return getattr(model, "v0", None) if model.name == "incompressible" else None
+
+
+def _volume_of_the_model(ws: Worksheet, model: PropertyModel, path: str, fixed: dict[str, float],
+                         sources: dict[str, str], notes: list[str]) -> bool:
+    """On a model that fixes v in every state, v fixes nothing: a v from rigid (or a final V) is
+    counted once, with the model's; a P asked for that nothing can give is refused. Returns
+    whether the final pressure is left undetermined (no P or h given or implied)."""
+    v0 = _fixed_volume(model)
+    if "v" in fixed:
+        if not math.isclose(fixed["v"], v0, rel_tol=1e-9):
+            field = "final.V" if sources["v"] == "final V" else "final.v" if sources["v"] == "given" \
+                else "process.constraints"
+            raise InputError(field, f"{model.label} gives every state v = M/ρ = {v0:.6g} m3/mol; "
+                                    f"{sources['v']} makes it {fixed['v']:.6g} m3/mol")
+        why = sources.pop("v")
+        del fixed["v"]
+        if "P" in fixed or "h" in fixed:
+            notes.append(f"{why} adds nothing on the {model.name} model (v = M/ρ in every state): counted once")
+    if "P" in fixed or "h" in fixed:
+        return False
+    for key in ("P", "h"):
+        if ws.final.props.get(key, "").strip() == UNKNOWN:
+            raise InputError(
+                f"final.{key}",
+                f"the {model.name} model cannot give the final pressure{' (nor h = u + P v)' if key == 'h' else ''}: "
+                "its volume is fixed by the density, so nothing in the balance depends on P; give P, "
+                "or leave it out (the result then says it is undetermined), or use the reference model, "
+                "which gives the pressure a liquid reaches",
+            )
+    # v stands in for the pressure, which nothing fixes: (T, v) is the model's state with P open
+    fixed["v"], sources["v"] = v0, "rigid" if path == "rigid" else "the model (v = M/ρ)"
+    return True
+
+
+#: Work terms that may stand for the whole work across the boundary, the moving boundary's included.
+WHOLE_WORK_KINDS = ("other", "shaft")
+
+
+def _whole_work(ws: Worksheet, fixed: dict[str, float], notes: list[str]) -> None:
+    """No path and no boundary-work term: the work terms hold the whole work when both end states
+    are given (the first law then fixes it, whatever path the boundary took); else say what is missing."""
+    whole = [w for w in ws.work if w.kind in WHOLE_WORK_KINDS]
+    if whole and len(fixed) == 2:
+        names = ", ".join(f"'{w.name}' ({w.kind})" for w in whole)
+        notes.append(f"no path is given and both end states are: work {names} is the whole work across the "
+                     "boundary, the moving boundary's included, and follows from the first law")
+        return
+    raise InputError(
+        "process.constraints",
+        "the volume may change but no path says how: add rigid, isobaric, isothermal or polytropic, "
+        "or a work term of kind 'boundary', or give the final state fully (two properties) with a work "
+        "term of kind 'other' or 'shaft' for the whole work",
     )
 
 
@@ -217,7 +333,7 @@ def _same(gases: list[Compartment], key: str, why: str) -> None:
         raise InputError("process.constraints", f"{why} needs one initial {key}; the compartments differ")
 
 
-def _compartments(ws: Worksheet, model: PropertyModel, p_atm: float):
+def _compartments(ws: Worksheet, model: PropertyModel, p_atm: float, notes: list[str]):
     out = []
     n_total: float | None = 0.0
     M = model.species.M
@@ -236,12 +352,18 @@ def _compartments(ws: Worksheet, model: PropertyModel, p_atm: float):
         asked = si.unknowns()
         if asked and set(asked) - {"n", "m"}:
             raise InputError(where, f"{', '.join(asked)} of an initial state cannot be unknown; give two properties")
-        if len(specs) != 2:
-            raise InputError(where, f"needs exactly two of T, P, v (or rho), u, h, s, x; got {', '.join(specs) or 'none'}")
-        point = model.flash(specs, field=where)
         amounts = {k: t for k, t in si.amount.items() if t.strip() != UNKNOWN}
+        if len(specs) == 1 and "v" not in specs and "V" in amounts and len(amounts) == 2:
+            # an amount and a volume fix the specific volume: T, n and V are a whole state
+            key, specs["v"], note = _volume_over_amount(amounts, M, where)
+            amounts = {key: amounts[key]}
+            notes.append(note)
+        if len(specs) != 2:
+            raise InputError(where, f"needs two of T, P, v (or rho), u, h, s, x, or one of them with an amount "
+                                    f"(n or m) and the volume V; got {', '.join(specs) or 'none'}")
+        point = model.flash(specs, field=where)
         if len(amounts) > 1:
-            raise InputError(where, f"give one amount (n, m or V); got {', '.join(amounts)}")
+            raise InputError(where, f"give one amount (n, m or V) with two properties; got {', '.join(amounts)}")
         if not amounts:
             if len(ws.initial) > 1:
                 raise InputError(where, "give the amount: n, m or V")
@@ -255,16 +377,35 @@ def _compartments(ws: Worksheet, model: PropertyModel, p_atm: float):
             V = parse(text, "volume", f"{where}.V")
             _positive(V, f"{where}.V")
             n = V / point.v
-        elif key == "m":
-            n = parse(text, "mass", f"{where}.m") / M
         else:
-            kind, value = dimension_of(text, ("amount", "mass"), f"{where}.n")
-            n = value if kind == "amount" else value / M
-        _positive(n, f"{where}.{key}")
+            n = _read_amount(key, text, M, where)
         out.append(Compartment(si.name, State(si.name, model, point, n=n), n * point.v))
         if n_total is not None:
             n_total += n
     return tuple(out), n_total
+
+
+def _read_amount(key: str, text: str, M: float, where: str) -> float:
+    """An amount typed as n (moles, or a mass) or m, in mol."""
+    if key == "m":
+        n = parse(text, "mass", f"{where}.m") / M
+    else:
+        kind, value = dimension_of(text, ("amount", "mass"), f"{where}.n")
+        n = value if kind == "amount" else value / M
+    _positive(n, f"{where}.{key}")
+    return n
+
+
+def _volume_over_amount(amounts: dict[str, str], M: float, where: str) -> tuple[str, float, str]:
+    """The molar volume v = V/n of a compartment given an amount (n or m) and its volume V:
+    (the amount's key, v [m3/mol], a note saying where v came from)."""
+    key = "n" if "n" in amounts else "m"
+    V = parse(amounts["V"], "volume", f"{where}.V")
+    _positive(V, f"{where}.V")
+    n = _read_amount(key, amounts[key], M, where)
+    v = V / n
+    return key, v, (f"{where}: v = V/n = {V:.6g} m3 / {n:.6g} mol = {v:.6g} m3/mol, "
+                    f"from the volume and the amount given")
 
 
 def _positive(value: float, field: str) -> None:
@@ -311,4 +452,6 @@ def count_dof(p: Problem) -> Dof:
             f"{head}: over-specified; leave {plural(ne - nu, 'more value')} unknown ('?'), "
             f"or drop one of: {', '.join(drop) or 'the constraints'}"
         )
-    return Dof(unknowns, equations, fixed, msg)
+    if p.implied:  # an equation the others imply is not a second equation: say why it is not counted
+        msg += "".join(f". Not counted again: {why}" for why in p.implied)
+    return Dof(unknowns, equations, fixed, msg, p.implied)

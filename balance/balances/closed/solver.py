@@ -60,6 +60,37 @@ def solve(p: Problem) -> Result:
     return result_of(solver, final, lin, method)
 
 
+#: How far past the edge of the single-phase states a root may be taken to lie inside a
+#: two-phase gap at the end of the range, as a multiple of the residual's change over the single
+#: phase: a phase change takes up energy of the order of the sensible heat across the model's
+#: range (latent heats are some 10 R Tc per mole; common practice, no source), not millions of times more.
+GAP_REACH = 10.0
+
+
+def _root_in_gap(seen: dict[float, float], gap: list[float]) -> bool:
+    """Whether the balance's root can lie where the model has no single-phase state.
+
+    ``seen`` holds the residual where the model gave a state, ``gap`` the points where the
+    state would be two-phase. Yes when the residual changes sign across the gap; or when it
+    keeps one sign, the gap lies at the end of the range it points to (the side where |f|
+    falls), and it is within GAP_REACH times its change over the single phase of zero. A
+    balance beyond every state (a ΔKE of 1e300 J) is not put in the two-phase region.
+    """
+    if not gap:
+        return False
+    if not seen:
+        return True
+    points = sorted(seen.items())
+    values = [r for _, r in points]
+    if min(values) < 0 < max(values):
+        return True  # a sign change the single phase does not bridge
+    (t_lo, r_lo), (t_hi, r_hi) = points[0], points[-1]
+    span = max(values) - min(values)
+    if abs(r_lo) < abs(r_hi):  # |f| falls towards low theta: the root would lie below the states seen
+        return any(t < t_lo for t in gap) and abs(r_lo) <= GAP_REACH * span
+    return any(t > t_hi for t in gap) and abs(r_hi) <= GAP_REACH * span
+
+
 class _Solver:
     def __init__(self, p: Problem):
         self.p = p
@@ -120,7 +151,7 @@ class _Solver:
         W = sum(lin[w.unknown] if w.W_on is None else w.W_on for w in p.work)
         energy = n * final.u - U1 + p.dKE + p.dPE - Q - W - self.boundary_work(final, n, V1)
         out = [energy / self.E_scale]
-        if p.reversible:
+        if p.reversible_equation:
             q_over_t = sum(
                 (lin[h.unknown] if h.Q is None else h.Q) / h.T_boundary for h in p.heat
             )
@@ -128,7 +159,8 @@ class _Solver:
         if p.path == "polytropic":
             first = self._first
             k = p.n_poly
-            out.append(final.P * final.v**k / (first.P * first.v**k) - 1.0)
+            # P2 v2^k / (P1 v1^k) - 1, in logarithms: v^k under- or overflows for a large k
+            out.append(math.expm1(min(math.log(final.P / first.P) + k * math.log(final.v / first.v), 700.0)))
         return out
 
     def eliminate(self, final: Point):
@@ -160,7 +192,7 @@ class _Solver:
         fixed = p.final_fixed
         free = 2 - len(fixed)
         if free == 0:
-            final = self.state(dict(fixed))
+            final = p.final_point if p.final_point is not None else self.state(dict(fixed))
             lin, _ = self.eliminate(final)
             return final, lin, "final state fixed directly; linear unknowns from the balances"
         if free == 1:
@@ -182,30 +214,41 @@ class _Solver:
             var, start = "T", first.T
             lo, hi = model.T_bounds()
         last: dict = {}
+        seen: dict[float, float] = {}  # theta -> residual, where the model gave a state
+        gap: list[float] = []  # thetas where the state would be two-phase
         keys = tuple(sorted((key, var), key=SPEC_KEYS.index))
         pair = pair_of(model, keys, "final")
         given_first = keys[0] == key
 
         def f(theta):
-            final = pair(value, theta) if given_first else pair(theta, value)
+            try:
+                final = pair(value, theta) if given_first else pair(theta, value)
+            except TwoPhaseError:
+                gap.append(theta)
+                raise
             lin, rest = self.eliminate(final)
             last.update(theta=theta, final=final, lin=lin)
-            return float(rest[0])
+            seen[theta] = float(rest[0])
+            return seen[theta]
 
         skip = (InputError, ValueError, ArithmeticError)
         theta, jumps, skipped = root_near(f, start, lo, hi, skip=skip), 0, []
         if theta is None:  # not smooth near the start: scan the whole range
             theta, jumps, skipped = scan_root(f, _grid(lo, hi), start=start, skip=skip)
         if theta is None:
-            if jumps or any(isinstance(exc, TwoPhaseError) for exc in skipped):
+            if jumps or _root_in_gap(seen, gap):
                 raise TwoPhaseError(
                     "final",
                     f"the balance puts the final state inside the two-phase region of {model.label}; "
                     "use the reference model for a liquid-vapour mixture",
                 )
+            side = ""
+            if seen and all(r > 0 for r in seen.values()) or seen and all(r < 0 for r in seen.values()):
+                side = (" (the balance stays on one side of zero over the whole range: the heat, work and "
+                        "energy terms are more than the fluid can take up or give between those limits)")
             raise SolveError(
                 f"no final state with {key} fixed satisfies the balance between {var} = {lo:.4g} and {hi:.4g} "
-                "(SI); check the given values and the sign of heat and work"
+                f"(SI){side}; check the given values and the sign of heat and work"
             )
         if last.get("theta") == theta:  # the search's last evaluation was at the root
             final, lin = last["final"], last["lin"]
