@@ -21,7 +21,6 @@ from dataclasses import dataclass, field, fields, replace
 
 from balance import api
 from balance.errors import InputError
-from balance.kinds import KINDS
 from balance.worksheet import UNKNOWN, Worksheet
 
 from . import fields as field_checks
@@ -31,53 +30,141 @@ COMPLETE, INCOMPLETE, INVALID = "complete", "incomplete", "invalid"
 
 
 @dataclass(frozen=True)
+class FieldProblem:
+    """What is wrong with one field (or one part) of the worksheet, and where it is typed.
+
+    ``part`` is the worksheet's part (``initial``, ``final``, ``heat``, ``work``,
+    ``process``, ``fluid``, ``system``, ``worksheet``), ``index`` which compartment
+    or term of a list part (None for the others, or when the domain named none),
+    ``key`` the field in it (``T``, ``Q``, ``T_boundary``, ``constraints`` ...; ''
+    for the part as a whole).
+    """
+
+    step: str
+    part: str
+    index: int | None
+    key: str
+    message: str
+
+    @property
+    def place(self) -> tuple[str, int | None, str]:
+        return self.part, self.index, self.key
+
+
+@dataclass(frozen=True)
 class Check(api.Check):
-    """The façade's check of a worksheet, with each step's status."""
+    """The façade's check of a worksheet, with each step's status and every field at fault."""
 
     statuses: dict[str, str] = field(default_factory=dict)
+    problems: tuple[FieldProblem, ...] = ()
+    """every field at fault, in the order of the steps and the form (the first is where to go)"""
+
+    def faults(self, step: str) -> int:
+        """How many fields of ``step`` are at fault."""
+        return len({p.place for p in self.problems if p.step == step})
+
+    def problems_in(self, step: str) -> tuple[FieldProblem, ...]:
+        return tuple(p for p in self.problems if p.step == step)
+
+
+# -- where a domain error's field is typed -----------------------------------------------
+_LIST_PARTS = ("initial", "heat", "work")
+
+
+def locate(name: str, ws: Worksheet, message: str) -> FieldProblem | None:
+    """The field a domain error names (``initial 'V-101'.T``, ``heat 'jacket'.T_boundary``,
+    ``final.T``, ``initial[2].P``, ``process.constraints``), placed in ``ws``; None when it
+    names no part of the worksheet (a problem of the whole sheet)."""
+    name = name.strip()
+    if not name:
+        return None
+    index = None
+    if " '" in name and name.rfind("'") > name.index(" '") + 1:
+        head, rest = name.split(" '", 1)
+        label, key = rest[:rest.rfind("'")], rest[rest.rfind("'") + 1:].lstrip(".")
+        index = _index_of(ws, head, label)
+    else:
+        head, _, key = name.partition(".")
+        if "[" in head and head.endswith("]"):
+            head, _, number = head[:-1].partition("[")
+            index = int(number) - 1 if number.isdigit() else None
+    key = key.split(".")[0].split("[")[0]
+    step = SECTION_STEPS.get(head)
+    if step is None:
+        return None
+    if head in _LIST_PARTS and index is not None and not 0 <= index < len(getattr(ws, head)):
+        index = None
+    return FieldProblem(step.id, head, index, key, message)
+
+
+def _index_of(ws: Worksheet, part: str, label: str) -> int | None:
+    items = getattr(ws, part, ()) if part in _LIST_PARTS else ()
+    return next((i for i, item in enumerate(items) if item.name == label), None)
 
 
 # -- field problems, shared with the inline validators ------------------------------
-def heading_problems(ws: Worksheet) -> list[str]:
+def _at(step: str, part: str, index: int | None, key: str, message: str | None) -> list[FieldProblem]:
+    return [FieldProblem(step, part, index, key, message)] if message else []
+
+
+def heading_problems(ws: Worksheet) -> list[FieldProblem]:
     msg = field_checks.problem("pressure", ws.heading.atmosphere, "atmosphere")
-    return [msg] if msg else []
+    return _at("purpose", "worksheet", None, "atmosphere", msg)
 
 
-def state_problems(ws: Worksheet) -> list[str]:
+def state_problems(ws: Worksheet) -> list[FieldProblem]:
     p_atm = field_checks.atmosphere(ws.heading.atmosphere)
-    out = []
+    out: list[FieldProblem] = []
     for i, s in enumerate(ws.initial):
         where = f"initial '{s.name or i + 1}'"
         for key, text in s.props.items():
-            out.append(field_checks.problem(key, text, f"{key} ({where})", p_atm=p_atm))
+            out += _at("states", "initial", i, key,
+                       field_checks.problem(key, text, f"{key} ({where})", p_atm=p_atm))
         for key, text in s.amount.items():
-            out.append(field_checks.problem(key, text, f"{key} ({where})", allow_unknown=key in ("n", "m"),
-                                      p_atm=p_atm, positive=True))
+            out += _at("states", "initial", i, key,
+                       field_checks.problem(key, text, f"{key} ({where})", allow_unknown=key in ("n", "m"),
+                                            p_atm=p_atm, positive=True))
     for key, text in ws.final.props.items():
-        out.append(field_checks.problem(key, text, f"{key} (final)", allow_unknown=True, p_atm=p_atm))
+        out += _at("states", "final", None, key,
+                   field_checks.problem(key, text, f"{key} (final)", allow_unknown=True, p_atm=p_atm))
     for key, text in ws.final.amount.items():
-        out.append(field_checks.problem(key, text, f"{key} (final)", allow_unknown=True, positive=True))
-    return [m for m in out if m]
+        out += _at("states", "final", None, key,
+                   field_checks.problem(key, text, f"{key} (final)", allow_unknown=True, positive=True))
+    return out
 
 
-def term_problems(ws: Worksheet) -> list[str]:
-    out = []
-    for h in ws.heat:
-        out.append(field_checks.problem("energy", h.Q, f"Q ('{h.name}')", allow_unknown=True, required=True))
-        out.append(field_checks.problem("temperature", h.T_boundary, f"T boundary ('{h.name}')", positive=True))
-    for w in ws.work:
-        out.append(field_checks.problem("energy", w.W, f"W ('{w.name}')", allow_unknown=True, required=True))
-    return [m for m in out if m]
+def term_problems(ws: Worksheet) -> list[FieldProblem]:
+    out: list[FieldProblem] = []
+    for i, h in enumerate(ws.heat):
+        out += _at("terms", "heat", i, "Q", field_checks.problem("energy", h.Q, f"Q ('{h.name}')",
+                                                                 allow_unknown=True, required=True))
+        out += _at("terms", "heat", i, "T_boundary",
+                   field_checks.problem("temperature", h.T_boundary, f"T boundary ('{h.name}')", positive=True))
+    for i, w in enumerate(ws.work):
+        out += _at("terms", "work", i, "W", field_checks.problem("energy", w.W, f"W ('{w.name}')",
+                                                                 allow_unknown=True, required=True))
+    return out
 
 
-def process_problems(ws: Worksheet) -> list[str]:
+def process_problems(ws: Worksheet) -> list[FieldProblem]:
     pr = ws.process
-    out = [
-        field_checks.problem("dimensionless", pr.n, "polytropic n", required="polytropic" in pr.constraints),
-        field_checks.problem("energy", pr.dKE, "ΔKE"),
-        field_checks.problem("energy", pr.dPE, "ΔPE"),
-    ]
-    return [m for m in out if m]
+    return (_at("constraints", "process", None, "n",
+                field_checks.problem("dimensionless", pr.n, "polytropic n", required="polytropic" in pr.constraints))
+            + _at("constraints", "process", None, "dKE", field_checks.problem("energy", pr.dKE, "ΔKE"))
+            + _at("constraints", "process", None, "dPE", field_checks.problem("energy", pr.dPE, "ΔPE")))
+
+
+def field_problems(ws: Worksheet, counted: api.Check | None = None) -> tuple[FieldProblem, ...]:
+    """Every field at fault: each field's own check (what the inline validators say) and
+    what the domain's check found, placed at its field; in the order of the steps."""
+    found = (heading_problems(ws) + system_problems(ws) + fluid_problems(ws) + state_problems(ws) + term_problems(ws)
+             + process_problems(ws))
+    if counted is not None and counted.error:
+        at = locate(counted.error_field, ws, counted.error)
+        if at is not None and at.place not in {p.place for p in found}:
+            found.append(at)
+    order = {step_id: i for i, step_id in enumerate(BY_ID)}
+    return tuple(sorted(found, key=lambda p: order[p.step]))
 
 
 def _state_complete(s, final: bool) -> bool:
@@ -90,57 +177,67 @@ def _state_complete(s, final: bool) -> bool:
     return len(given) == 2 and len(amounts) >= 1
 
 
-def statuses(ws: Worksheet, visited: frozenset[str] = frozenset(), error_field: str = "") -> dict[str, str]:
-    """Each input step: complete, incomplete or invalid (solve and review are the app's)."""
-    out: dict[str, str] = {}
-    h = ws.heading
-    if heading_problems(ws):
-        out["purpose"] = INVALID
-    else:
-        out["purpose"] = COMPLETE if h.title.strip() and h.purpose.strip() and h.basis.strip() else INCOMPLETE
-    if ws.system.kind not in KINDS:
-        out["boundary"] = INVALID
-    else:
-        out["boundary"] = COMPLETE if ws.system.inside.strip() else INCOMPLETE
-    at = step_of_field(error_field)
-    out["fluid"] = INVALID if at == "fluid" else _fluid_status(ws)  # e.g. an override
-    if state_problems(ws):
-        out["states"] = INVALID
-    elif ws.initial and all(_state_complete(s, False) for s in ws.initial) and _state_complete(ws.final, True):
-        out["states"] = COMPLETE
-    else:
-        out["states"] = INCOMPLETE
-    if term_problems(ws) or at == "terms":
-        out["terms"] = INVALID
-    else:
-        out["terms"] = COMPLETE if (ws.heat or ws.work or "terms" in visited) else INCOMPLETE
-    boundary_work = any(w.kind == "boundary" for w in ws.work)
-    if process_problems(ws) or at == "constraints":
-        out["constraints"] = INVALID
-    else:
-        out["constraints"] = COMPLETE if (ws.process.constraints or boundary_work) else INCOMPLETE
-    return out
+def system_problems(ws: Worksheet) -> list[FieldProblem]:
+    """The kind of balance: one the app can balance (:func:`balance.api.kind`)."""
+    try:
+        api.kind(ws)
+    except InputError as exc:
+        return _at("boundary", "system", None, "kind", str(exc))
+    return []
 
 
-def _fluid_status(ws: Worksheet) -> str:
+def fluid_problems(ws: Worksheet) -> list[FieldProblem]:
+    """The species and the model: known names, and a model the species can use."""
     from balance.models import canonical
     from balance.species import lookup
 
     f = ws.fluid
-    if not f.species.strip() or not f.model.strip():
-        status = INCOMPLETE
-    else:
-        status = COMPLETE
-    try:
-        sp = lookup(f.species, "fluid.species") if f.species.strip() else None
-        model = canonical(f.model) if f.model.strip() else None
-    except InputError:
-        return INVALID
+    out: list[FieldProblem] = []
+    sp = model = None
+    if f.species.strip():
+        try:
+            sp = lookup(f.species, "fluid.species")
+        except InputError as exc:
+            out += _at("fluid", "fluid", None, "species", str(exc))
+    if f.model.strip():
+        try:
+            model = canonical(f.model)
+        except InputError as exc:
+            out += _at("fluid", "fluid", None, "model", str(exc))
     if model == "reference" and sp is not None and not sp.coolprop:
-        return INVALID
+        out += _at("fluid", "fluid", None, "model",
+                   f"fluid.model: the reference model has no equation of state for {sp.name}; choose another")
     if model == "incompressible" and sp is not None and sp.liquid is None and "rho" not in f.overrides:
-        return INVALID
-    return status
+        out += _at("fluid", "fluid", None, "overrides",
+                   f"fluid.overrides: the incompressible model needs a density, and the species data has none "
+                   f"for {sp.name}; give rho, e.g. rho = 998 kg/m3")
+    return out
+
+
+def statuses(ws: Worksheet, visited: frozenset[str] = frozenset(),
+             problems: tuple[FieldProblem, ...] | None = None) -> dict[str, str]:
+    """Each input step: complete, incomplete or invalid (solve and review are the app's).
+
+    A step is invalid when one of its fields is at fault (``problems``, by default each
+    field's own check: :func:`field_problems` without the domain's count).
+    """
+    if problems is None:
+        problems = field_problems(ws)
+    faulty = {p.step for p in problems}
+    h = ws.heading
+    f = ws.fluid
+    boundary_work = any(w.kind == "boundary" for w in ws.work)
+    complete = {
+        "purpose": bool(h.title.strip() and h.purpose.strip() and h.basis.strip()),
+        "boundary": bool(ws.system.inside.strip()),
+        "fluid": bool(f.species.strip() and f.model.strip()),
+        "states": bool(ws.initial and all(_state_complete(s, False) for s in ws.initial)
+                       and _state_complete(ws.final, True)),
+        "terms": bool(ws.heat or ws.work or "terms" in visited),
+        "constraints": bool(ws.process.constraints or boundary_work),
+    }
+    return {step: INVALID if step in faulty else COMPLETE if done else INCOMPLETE
+            for step, done in complete.items()}
 
 
 def step_of_field(name: str) -> str | None:
@@ -151,10 +248,12 @@ def step_of_field(name: str) -> str | None:
 
 
 def check(ws: Worksheet, visited: frozenset[str] = frozenset()) -> Check:
-    """The degrees of freedom (:func:`balance.api.check`) and the steps' statuses; never raises for bad input."""
+    """The degrees of freedom (:func:`balance.api.check`), every field at fault and the
+    steps' statuses; never raises for bad input."""
     counted = api.check(ws)
+    problems = field_problems(ws, counted)
     answer = Check(**{f.name: getattr(counted, f.name) for f in fields(api.Check) if f.name != "problem"},
-                   statuses=statuses(ws, visited, counted.error_field))  # no problem: it crosses processes
+                   statuses=statuses(ws, visited, problems), problems=problems)  # no problem: it crosses processes
     if not counted.error:
         return answer
     step = step_of_field(counted.error_field)

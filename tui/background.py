@@ -138,13 +138,14 @@ class BackgroundWork:
 
     @work(thread=True, exclusive=True, group="check", exit_on_error=False)
     def _check_worker(self, ws: Worksheet, version: int, visited: frozenset) -> None:
-        from .analysis import Check, check, statuses
+        from .analysis import Check, check, field_problems, statuses
 
         try:
             answer = offload.call(ws.fluid.model, check, ws, visited)
         except offload.OffloadError as exc:
             self.notify(str(exc), title="not checked", severity="error", timeout=10, markup=False)
-            answer = Check(ws, False, f"not checked: {exc}", statuses(ws, visited))
+            problems = field_problems(ws)  # each field's own check still holds
+            answer = Check(ws, False, f"not checked: {exc}", statuses(ws, visited, problems), problems=problems)
         self.post_message(Checked(version, answer))
 
     def on_checked(self, message: Checked) -> None:

@@ -11,6 +11,7 @@ from balance.worksheet import HeatTerm, System, Worksheet
 
 from ..widgets.choice_list import ChoiceList
 from ..widgets.field_row import FieldRow
+from ..widgets.problem_line import ProblemLine
 from .step import StepScreen
 
 #: The kinds a worksheet may name (balance.kinds), in words; the reserved ones are shown greyed.
@@ -74,6 +75,7 @@ temperature for heat from a hotter jacket (that hides the entropy generated).
         ws = self.worksheet
         yield Label("Kind of system", classes="form-label")
         yield ChoiceList(KINDS, ws.system.kind, disabled_values=tuple(RESERVED), id="kind")
+        yield ProblemLine(id="system-problem")
         yield FieldRow("Inside", ws.system.inside, id="inside", placeholder="what the boundary encloses",
                        tooltip="What the boundary encloses")
         default = self.app.session.extras.get("T_boundary", "")
@@ -93,6 +95,9 @@ temperature for heat from a hotter jacket (that hides the entropy generated).
         if not ws.heat:
             return "no heat terms yet: new heat terms (step 5) start with this temperature"
         return f"applies to the {len(ws.heat)} heat term(s) of step 5"
+
+    def problem_targets(self) -> dict:
+        return {("system", None, ""): self.query_one("#system-problem", ProblemLine)}
 
     def collect(self, ws: Worksheet) -> Worksheet:
         q = self.query_one

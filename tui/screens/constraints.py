@@ -10,6 +10,7 @@ from textual.widgets.selection_list import Selection
 from balance.worksheet import CONSTRAINTS, Process, Worksheet
 
 from ..widgets.field_row import FieldRow
+from ..widgets.problem_line import ProblemLine
 from .step import StepScreen
 
 DESCRIPTIONS = {
@@ -57,6 +58,7 @@ its exponent n.
         yield Label("Constraints (space ticks)", classes="form-label")
         yield SelectionList[str](*[Selection(DESCRIPTIONS[c], c, c in pr.constraints) for c in CONSTRAINTS],
                                  id="constraints")
+        yield ProblemLine(id="constraints-problem")
         yield FieldRow("Polytropic n", pr.n, kind="dimensionless", field_label="polytropic n", id="n",
                        label_width=13, tooltip="The exponent of P vⁿ = const, e.g. 1.3")
         yield FieldRow("ΔKE", pr.dKE, kind="energy", field_label="ΔKE", id="dKE", label_width=13,
@@ -69,6 +71,12 @@ its exponent n.
     def on_mount(self) -> None:
         super().on_mount()
         self.watch(self.app, "check", self._show_unknowns)
+
+    def problem_targets(self) -> dict:
+        q = self.query_one
+        return {("process", None, ""): q("#constraints-problem", ProblemLine),
+                ("process", None, "n"): q("#n", FieldRow), ("process", None, "dKE"): q("#dKE", FieldRow),
+                ("process", None, "dPE"): q("#dPE", FieldRow)}
 
     def collect(self, ws: Worksheet) -> Worksheet:
         ticked = set(self.query_one("#constraints", SelectionList).selected)

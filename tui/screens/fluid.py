@@ -11,6 +11,7 @@ from balance.worksheet import Fluid, Worksheet
 from ..analysis import sig
 from ..widgets.choice_list import ChoiceList
 from ..widgets.field_row import FieldRow
+from ..widgets.problem_line import ProblemLine
 from ..widgets.species_picker import SpeciesPicker
 from .step import StepScreen
 
@@ -58,6 +59,7 @@ liquid (use the incompressible or the reference model).
         yield SpeciesPicker(f.species, id="picker")
         yield Label("Property model", classes="form-label")
         yield ChoiceList(MODELS, _canonical(f.model), disabled_values=self._disabled(f.species), id="model")
+        yield ProblemLine(id="model-problem")
         yield FieldRow("Overrides", overrides_text(f.overrides), id="overrides",
                        placeholder="none; e.g. Tc = 126.2 K; omega = 0.04",
                        tooltip="Constants that replace the data's, NAME = VALUE; separated by ;")
@@ -79,6 +81,11 @@ liquid (use the incompressible or the reference model).
         except InputError:
             return ()
         return () if sp.coolprop else ("reference",)
+
+    def problem_targets(self) -> dict:
+        q = self.query_one
+        return {("fluid", None, "species"): q("#species", FieldRow), ("fluid", None, ""): q("#model-problem", ProblemLine),
+                ("fluid", None, "overrides"): q("#overrides", FieldRow)}
 
     def collect(self, ws: Worksheet) -> Worksheet:
         species = self.query_one(SpeciesPicker).value

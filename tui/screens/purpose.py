@@ -10,6 +10,7 @@ from balance.worksheet import CONVENTIONS, Worksheet
 from .. import fields
 from ..widgets.choice_list import ChoiceList
 from ..widgets.field_row import FieldRow
+from ..widgets.problem_line import ProblemLine
 from .step import StepScreen
 
 CONVENTION_LABELS = {
@@ -63,6 +64,11 @@ direction when you switch it.
         yield ChoiceList([(k, CONVENTION_LABELS[k]) for k in CONVENTIONS], h.convention, id="convention")
         yield FieldRow("Atmosphere", h.atmosphere, kind="pressure", field_label="atmosphere", id="atmosphere",
                        tooltip="Atmospheric pressure for gauge readings (barg, psig)")
+        yield ProblemLine(id="heading-problem")
+
+    def problem_targets(self) -> dict:
+        return {("worksheet", None, "atmosphere"): self.query_one("#atmosphere", FieldRow),
+                ("worksheet", None, ""): self.query_one("#heading-problem", ProblemLine)}
 
     def collect(self, ws: Worksheet) -> Worksheet:
         q = self.query_one

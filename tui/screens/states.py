@@ -62,6 +62,12 @@ follows from the initial one).
     def _p_atm(self) -> float:
         return fields.atmosphere(self.worksheet.heading.atmosphere)
 
+    def problem_targets(self) -> dict:
+        targets: dict = {}
+        for form in self.query(StateForm):
+            targets.update(form.problem_targets())
+        return targets
+
     def collect(self, ws: Worksheet) -> Worksheet:
         forms = list(self.query_one("#initial-forms").query_children(StateForm))
         initial = tuple(f.collect() for f in forms)
@@ -75,6 +81,7 @@ follows from the initial one).
         await box.mount_all(list(self._initial_forms(ws)))
         self.app.edit(ws)
         self._ready = True
+        self._place_problems(self.app.check)
         forms = list(box.query_children(StateForm))
         if forms:
             target = forms[min(focus_index, len(forms) - 1)]

@@ -77,6 +77,32 @@ class StepScreen(Screen):
 
     def on_mount(self) -> None:
         self.call_after_refresh(self._arm)
+        self.watch(self.app, "check", self._place_problems)
+
+    # -- what the check found, at its fields ------------------------------------------
+    def problem_targets(self) -> dict:
+        """Where this step shows what the check found: ``(part, index, key)`` (as in
+        :class:`tui.analysis.FieldProblem`) to a widget with ``set_problem(text)`` — a
+        field's row, or a :class:`ProblemLine` under a part (``key`` '')."""
+        return {}
+
+    def _place_problems(self, check) -> None:
+        if check is None or check.worksheet != self.worksheet:
+            return  # an older worksheet's: the count of this one is on its way
+        self.place_problems(check.problems_in(self.STEP))
+
+    def place_problems(self, problems) -> None:
+        """Each problem at its field; one whose field has no place here goes to its part,
+        or to the part's list as a whole."""
+        targets = self.problem_targets()
+        shown: dict[tuple, list[str]] = {}
+        for p in problems:
+            for place in (p.place, (p.part, p.index, ""), (p.part, None, "")):
+                if place in targets:
+                    shown.setdefault(place, []).append(p.message)
+                    break
+        for place, widget in targets.items():
+            widget.set_problem("; ".join(dict.fromkeys(shown.get(place, ()))))
 
     def _arm(self) -> None:
         self._ready = True

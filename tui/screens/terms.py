@@ -11,6 +11,7 @@ from balance.convention import Convention
 from balance.worksheet import HeatTerm, Worksheet, WorkTerm
 
 from ..widgets.heat_term_form import HeatTermForm
+from ..widgets.problem_line import ProblemLine
 from ..widgets.work_term_form import WorkTermForm
 from .step import StepScreen
 
@@ -52,9 +53,11 @@ used as the boundary temperature of a hotter jacket.
         ws = self.worksheet
         yield Static(self._convention_note(ws), classes="hint", id="convention-note")
         yield Label("Heat terms", classes="form-label")
+        yield ProblemLine(id="heat-problem")
         with Vertical(id="heat-forms"):
             yield from self._heat_forms(ws)
         yield Label("Work terms", classes="form-label")
+        yield ProblemLine(id="work-problem")
         with Vertical(id="work-forms"):
             yield from self._work_forms(ws)
         with Horizontal(classes="button-row"):
@@ -79,6 +82,13 @@ used as the boundary temperature of a hotter jacket.
         for i, w in enumerate(ws.work):
             yield WorkTermForm(w, i, ws.heading.convention, id=f"work-{i}")
 
+    def problem_targets(self) -> dict:
+        targets: dict = {("heat", None, ""): self.query_one("#heat-problem", ProblemLine),
+                         ("work", None, ""): self.query_one("#work-problem", ProblemLine)}
+        for form in self.query(".term"):
+            targets.update(form.problem_targets())
+        return targets
+
     def collect(self, ws: Worksheet) -> Worksheet:
         heat = tuple(f.collect() for f in self.query_one("#heat-forms").query_children(HeatTermForm))
         work = tuple(f.collect() for f in self.query_one("#work-forms").query_children(WorkTermForm))
@@ -92,6 +102,7 @@ used as the boundary temperature of a hotter jacket.
             await container.mount_all(list(forms))
         self.app.edit(ws)
         self._ready = True
+        self._place_problems(self.app.check)
         if focus:
             matches = self.query(f"#{focus}")
             if matches:

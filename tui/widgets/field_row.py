@@ -2,8 +2,11 @@
 
 With a ``kind`` (see :mod:`tui.fields`) the input is unit-aware: a
 :class:`~tui.validators.UnitValidator` checks it as the user types, and a
-failure shows beneath it, naming the field and the dimension expected. The
-text is never changed or cleared by validation: what was typed stays.
+failure shows beneath it, naming the field and the dimension expected. What
+the domain's check finds at the field (a temperature below absolute zero, a
+final T that a constraint contradicts) is shown there too
+(:meth:`FieldRow.set_problem`, from the step's screen). The text is never
+changed or cleared by validation: what was typed stays.
 """
 
 from __future__ import annotations
@@ -59,6 +62,8 @@ class FieldRow(Widget):
         self.kind = kind
         self.field_label = field_label or label
         self._initial = value
+        self._seen = value
+        """the text the verdicts shown are about"""
         self._label_width = label_width
         validators = []
         if kind is not None:
@@ -70,6 +75,10 @@ class FieldRow(Widget):
         self._validators = validators
         self._placeholder = placeholder or ""
         self._tooltip = tooltip
+        self._failure = ""
+        """the validator's verdict on the text as it stands"""
+        self._problem = ""
+        """what the domain's check found at this field (cleared when the text changes)"""
         self.enter_moves_on = enter_moves_on
         """Enter goes on to the next field (the step's rule); False: Enter submits the input"""
 
@@ -108,14 +117,19 @@ class FieldRow(Widget):
     @property
     def message(self) -> str:
         """The inline message shown, or '' when the text is acceptable."""
-        if not self.has_class("-invalid"):
-            return ""
-        return str(self.query_one(".field-row--message", Static).content)
+        return self._failure or self._problem
+
+    def set_problem(self, text: str) -> None:
+        """Show what the domain's check found at this field ('' for nothing); the field's
+        own check, when it fails, is shown first."""
+        if text != self._problem:
+            self._problem = text
+            self._draw_message()
 
     def set_value(self, text: str) -> None:
         inp = self.input
         if inp.value != text:
-            inp.value = text
+            inp.value = text  # its Changed message shows the new verdict
 
     def revalidate(self) -> None:
         """Check the text again (after the unit registry warms up, or the atmosphere changes)."""
@@ -129,16 +143,27 @@ class FieldRow(Widget):
 
     def _show(self, result) -> None:
         invalid = result is not None and not result.is_valid
-        text = result.failure_descriptions[0] if invalid and result.failure_descriptions else ""
+        self._failure = (result.failure_descriptions[0] if result.failure_descriptions else "?") if invalid else ""
+        self._draw_message()
+
+    def _draw_message(self) -> None:
+        text = self.message
         found = self.query(".field-row--message")
         if found:
             found.first(Static).update(text)
-        elif invalid:
+        elif text:
             self.mount(Static(text, classes="field-row--message", markup=False))
-        self.set_class(invalid, "-invalid")
+        self.set_class(bool(text), "-invalid")
 
     def on_input_changed(self, event: Input.Changed) -> None:
-        # validation has already run (validate_on "changed"); show its verdict, let the event bubble
+        # validation has already run (validate_on "changed"); show its verdict, let the event bubble.
+        if event.value == self._seen:
+            # the input announcing the text it was built with (before its validators were
+            # attached: no verdict), not an edit; the verdicts already shown stand
+            return
+        self._seen = event.value
+        # the domain's finding was about the text before: the next check says it again if it holds
+        self._problem = ""
         self._show(event.validation_result)
 
     def on_input_blurred(self, event: Input.Blurred) -> None:

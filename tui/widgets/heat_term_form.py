@@ -10,6 +10,7 @@ from balance.worksheet import HeatTerm
 
 from .. import fields
 from .field_row import FieldRow
+from .problem_line import ProblemLine
 from .term_form import TermForm
 
 DIRECTIONS = [("into the system", "in"), ("out of the system", "out")]
@@ -19,6 +20,7 @@ class HeatTermForm(TermForm):
     """Heat *to* the system is positive in the worksheet; the direction picks the sign."""
 
     NOUN = "Heat term"
+    PART, VALUE = "heat", "Q"
     DEFAULT_CSS = """
     HeatTermForm .term--label { width: 10; color: $text-muted; }
     """
@@ -42,6 +44,7 @@ class HeatTermForm(TermForm):
             yield FieldRow("T bound.", self.term.T_boundary, kind="temperature", id="T_boundary",
                            positive=True, field_label=f"boundary temperature of heat term {self.index + 1}",
                            label_width=9, tooltip="Temperature of the wall or reservoir the heat crosses")
+        yield ProblemLine()
 
     def collect(self) -> HeatTerm:
         direction = self.query_one("#direction", Select).value

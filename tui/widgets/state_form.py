@@ -12,6 +12,7 @@ from textual.widgets import Button, Checkbox, Static
 from balance.worksheet import STATE_KEYS, StateInput
 
 from .field_row import FieldRow
+from .problem_line import ProblemLine
 
 LABELS = {"T": "T", "P": "P", "v": "v", "rho": "ρ", "u": "u", "h": "h", "s": "s", "x": "x",
           "n": "n", "m": "m", "V": "V"}
@@ -99,6 +100,23 @@ class StateForm(Widget):
                 if initial and key != "V":
                     row.add_class("state-form--props")
                 yield row
+        yield ProblemLine(classes="state-form--problem")
+
+    @property
+    def part(self) -> tuple[str, int | None]:
+        """Where the worksheet holds this state: ('initial', index) or ('final', None)."""
+        return (self.role, self.index) if self.role == "initial" else (self.role, None)
+
+    def problem_targets(self) -> dict:
+        """Where each field of this state shows what the check found (see StepScreen)."""
+        part, index = self.part
+        out = {(part, index, key): row for key in STATE_KEYS
+               for row in self.query(f"#prop-{key}").results(FieldRow)}
+        out.update({(part, index, key): row for key in ("n", "m", "V")
+                    for row in self.query(f"#amount-{key}").results(FieldRow)})
+        out[(part, index, "name")] = self.query_one("#name", FieldRow)
+        out[(part, index, "")] = self.query_one(ProblemLine)
+        return out
 
     def collect(self) -> StateInput:
         """The state as typed now (blank fields left out)."""

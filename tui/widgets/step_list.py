@@ -18,7 +18,7 @@ MARKS = {
 
 
 class StepList(LineList):
-    """The eight steps with a status mark each; Enter (or a digit) opens one."""
+    """The eight steps with a status mark each (``✗2``: two fields at fault); Enter (or a digit) opens one."""
 
     DEFAULT_CSS = """
     StepList {
@@ -54,9 +54,13 @@ class StepList(LineList):
 
     def line(self, index: int) -> Content:
         step = STEPS[index]
-        mark, style = MARKS[self.status_of(step.id)]
+        status = self.status_of(step.id)
+        mark, style = MARKS[status]
+        faults = self.faults_of(step.id) if status == "invalid" else 0
+        # the count of fields at fault beside the cross (two columns, as every mark has)
+        mark += ((str(faults) if faults < 10 else "+") if faults else " ") + " "
         here = step.id == self.current
-        return Content.assemble((f"{mark} ", style), (f"{step.number} {step.short}", "bold underline" if here else ""))
+        return Content.assemble((mark, style), (f"{step.number} {step.short}", "bold underline" if here else ""))
 
     def on_mount(self) -> None:
         self.watch(self.app, "statuses", self.show_statuses, init=False)  # built with them
@@ -64,6 +68,11 @@ class StepList(LineList):
     def show_statuses(self, statuses: dict[str, str]) -> None:
         self._statuses = dict(statuses)
         self.refresh()
+
+    def faults_of(self, step: str) -> int:
+        """How many fields of the step are at fault (by the latest check)."""
+        check = self.app.check
+        return check.faults(step) if check is not None and hasattr(check, "faults") else 0
 
     def status_of(self, step: str) -> str:
         return self._statuses.get(step, "incomplete")

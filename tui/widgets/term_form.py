@@ -4,12 +4,18 @@ from __future__ import annotations
 
 from textual.widget import Widget
 
+from .field_row import FieldRow
+from .problem_line import ProblemLine
+
 
 class TermForm(Widget):
     """A bordered, numbered form for one energy term; subclasses compose the fields."""
 
     #: the word in the border title: "Heat term 2"
     NOUN = "Term"
+    #: the worksheet's part ('heat' or 'work') and the field of the term's value
+    PART = ""
+    VALUE = ""
 
     DEFAULT_CSS = """
     TermForm {
@@ -32,3 +38,13 @@ class TermForm(Widget):
 
     def on_mount(self) -> None:
         self.border_title = f"{self.NOUN} {self.index + 1}"
+
+    def problem_targets(self) -> dict:
+        """Where each field of this term shows what the check found (see StepScreen)."""
+        i = self.index
+        out = {(self.PART, i, "name"): self.query_one("#name", FieldRow),
+               (self.PART, i, self.VALUE): self.query_one("#value", FieldRow),
+               (self.PART, i, ""): self.query_one(ProblemLine)}
+        for row in self.query("#T_boundary").results(FieldRow):
+            out[(self.PART, i, "T_boundary")] = row
+        return out

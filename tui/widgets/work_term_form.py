@@ -11,6 +11,7 @@ from balance.worksheet import WORK_KINDS, WorkTerm
 
 from .. import fields
 from .field_row import FieldRow
+from .problem_line import ProblemLine
 from .term_form import TermForm
 
 DIRECTIONS = [("done on the system", "on"), ("done by the system", "by")]
@@ -20,6 +21,7 @@ class WorkTermForm(TermForm):
     """The worksheet writes work in its sign convention; the direction picks the sign."""
 
     NOUN = "Work term"
+    PART, VALUE = "work", "W"
 
     def __init__(self, term: WorkTerm, index: int, convention: str, id: str | None = None) -> None:
         super().__init__(index, id=id)
@@ -45,6 +47,7 @@ class WorkTermForm(TermForm):
             yield Select(DIRECTIONS, value=other if negative else self.positive_direction, allow_blank=False,
                          compact=True, id="direction",
                          tooltip="Whether the work is done on the system or by it")
+        yield ProblemLine()
 
     def collect(self) -> WorkTerm:
         direction = self.query_one("#direction", Select).value

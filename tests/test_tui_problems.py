@@ -1,0 +1,93 @@
+"""Nothing invalid is taken as valid: every check the domain makes on a field is shown at
+that field and counted in the step list (✗ and the number of fields at fault) as it is
+typed, and it is still there on coming back to the step. Key presses only, at 80×24.
+
+The expected words are what an engineer reading the message needs (common practice, no
+source): the field, and what is wrong with it (below absolute zero; what contradicts it).
+"""
+
+from __future__ import annotations
+
+from tests.test_tui_pilot import (SIZE, author, fill, in_row, next_step, ready, sample_app,  # noqa: F401
+                                  settle)
+from tui.widgets.field_row import FieldRow
+from tui.widgets.step_list import StepList
+
+DEMO = "n2-buffer-into-receiver.toml"
+
+
+def row(app, form: str, row_id: str) -> FieldRow:
+    return app.screen.query_one(f"#{form}").query_one(f"#{row_id}", FieldRow)
+
+
+def step_line(app, number: int) -> str:
+    return app.screen.query_one(StepList).line(number - 1).plain
+
+
+# a state field and what its message must say: below absolute zero is not a temperature
+BAD_T = [
+    ("-5 K", "absolute zero"),
+    ("-300 degC", "absolute zero"),
+    ("0 K", "absolute zero"),
+    ("abc", "a temperature"),
+]
+
+
+async def test_a_bad_temperature_is_shown_at_its_field_and_counted_in_the_step_list(tmp_path, author):
+    app = sample_app(tmp_path, DEMO)
+    app.session.step = "states"
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        assert step_line(app, 4) == "✓  4 States"
+        for text, words in BAD_T:
+            await fill(pilot, in_row("prop-T", "initial-0"), text)
+            await settle(pilot)
+            shown = row(app, "initial-0", "prop-T").message
+            assert "T" in shown and words in shown, (text, shown)
+            assert app.statuses["states"] == "invalid"
+            assert step_line(app, 4) == "✗1 4 States", text
+            assert not app.check.ready
+        # a second field at fault: the count says two
+        await fill(pilot, in_row("prop-P", "initial-0"), "150 bargg")
+        await settle(pilot)
+        assert step_line(app, 4) == "✗2 4 States"
+        await fill(pilot, in_row("prop-P", "initial-0"), "150 barg")
+        await fill(pilot, in_row("prop-T", "initial-0"), "20 degC")
+        await settle(pilot)
+        assert row(app, "initial-0", "prop-T").message == ""
+        assert step_line(app, 4) == "✓  4 States" and app.check.ready
+
+
+async def test_messages_are_still_there_on_coming_back_to_the_step(tmp_path, author):
+    app = sample_app(tmp_path, DEMO)
+    app.session.step = "states"
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        await fill(pilot, in_row("prop-T", "initial-0"), "abc")
+        await fill(pilot, in_row("prop-P", "initial-0"), "-300 degC")
+        await settle(pilot)
+        before = (row(app, "initial-0", "prop-T").message, row(app, "initial-0", "prop-P").message)
+        assert all(before)
+        await next_step(pilot)
+        await pilot.press("ctrl+o")
+        await pilot.pause(0.2)
+        await settle(pilot)
+        assert app.session.step == "states"
+        after = (row(app, "initial-0", "prop-T").message, row(app, "initial-0", "prop-P").message)
+        assert after == before
+        assert row(app, "initial-0", "prop-T").value == "abc"  # the text as typed
+        assert step_line(app, 4) == "✗2 4 States"
+
+
+async def test_a_final_temperature_that_contradicts_isothermal_is_shown_at_it(tmp_path, author):
+    app = sample_app(tmp_path, "methane-piston-isothermal.toml")
+    app.session.step = "states"
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        assert app.check.ready
+        await fill(pilot, in_row("prop-T", "final"), "350 K")
+        await settle(pilot)
+        shown = row(app, "final", "prop-T").message
+        assert "isothermal" in shown and "remove one" in shown, shown
+        assert app.statuses["states"] == "invalid" and step_line(app, 4) == "✗1 4 States"
+        assert not app.check.ready
