@@ -1,8 +1,8 @@
 """The façade: the one way the app, the command line and the record reach the domain.
 
-Read a worksheet, check it, solve it, explain it, draw it; build the
-species-and-model pair; and turn a solve that has already been done into
-the data of a record's solve entry. A face never solves again what this
+Read a worksheet, check it (and list every field at fault: :func:`problems`),
+solve it, explain it, draw it; build the species-and-model pair; and turn a
+solve that has already been done into the data of a record's solve entry. A face never solves again what this
 module has solved: the app shows a :class:`Attempt`'s result and the record
 files the same attempt (:func:`entry_data`); only a replay solves again, on
 purpose.
@@ -41,7 +41,8 @@ from typing import TYPE_CHECKING, Mapping, Union
 
 from .errors import BalanceError
 from .kinds import kind_of
-from .worksheet import Worksheet
+from .units import P_ATM
+from .worksheet import FieldProblem, Worksheet
 
 if TYPE_CHECKING:  # the rest loads on first use: the app imports this module before its first screen
     from .adequacy import Advice
@@ -65,6 +66,28 @@ def fluid(species: str, model: str, overrides: Mapping[str, str] | None = None, 
     from .state import make_fluid
 
     return make_fluid(species, model, overrides, fields=fields)
+
+
+def read_field(kind: str, text: str, field: str, *, p_atm: float = P_ATM, M: float = 1.0) -> float:
+    """One typed value in SI, by every rule the solve applies to a field of ``kind``: what the
+    app checks each field with as it is typed, so that a field the solve would refuse is shown
+    at fault where it is typed. Raises InputError naming ``field``.
+
+    ``kind``: a state property (T, P, v, rho, u, h, s, x; molar SI, rho read as v), an amount
+    (n and m in mol, V), ``atmosphere``, ``T_boundary``, ``energy`` (Q, W, ΔKE, ΔPE) or
+    ``polytropic_n``; ``p_atm`` [Pa] is the atmosphere of gauge readings, ``M`` [kg/mol] scales
+    mass-based values (any positive M checks a text).
+
+    >>> read_field("T", "25 C", "final.T")
+    298.15
+    >>> read_field("P", "-2 barg", "final.P")
+    Traceback (most recent call last):
+    ...
+    balance.errors.InputError: final.P: is at or below vacuum: '-2 barg' is -0.98675 bar absolute against an atmosphere of 1.01325 bar; a gauge reading cannot be below -1.01325 bar(g)
+    """
+    from .balances.control_volume import read_field as read_one
+
+    return read_one(kind, text, field, p_atm=p_atm, M=M)
 
 
 def read(source: Source, name: str = "worksheet") -> Worksheet:
@@ -130,6 +153,27 @@ def check(ws: Worksheet) -> Check:
         return Check(ws, False, str(exc), error=str(exc), error_field=getattr(exc, "field", ""))
     return Check(ws, dof.ok, dof.message, tuple(u.words() for u in dof.unknowns), dof.equations, dof.fixed,
                  problem.path, problem.constraints, problem=problem)
+
+
+def problems(source: Source) -> tuple[FieldProblem, ...]:
+    """Every field of a worksheet at fault, not only the first: each a
+    :class:`~balance.worksheet.FieldProblem` (the field as messages name it, the message, and
+    where it is: the section, which compartment or term, the key), in the worksheet's order.
+
+    Each field is read by the rule the solve reads it with (a temperature above absolute zero,
+    a pressure above vacuum, an amount above zero, a known species ...), then what stops the
+    problem being prepared (a final T that a ticked constraint contradicts, a missing path) is
+    added when no field already accounts for it. Empty exactly when :func:`check` gets as far
+    as counting the degrees of freedom; a text that is not a worksheet is one problem. Never
+    raises for bad input.
+    """
+    from .worksheet import place
+
+    try:
+        ws = read(source, "the worksheet")  # not 'worksheet': that is the heading's section
+        return tuple(kind(ws).problems(ws))
+    except BalanceError as exc:  # it is not a worksheet, or of no kind that can be balanced
+        return (place(Worksheet(), getattr(exc, "field", ""), getattr(exc, "message", str(exc))),)
 
 
 # -- solving -----------------------------------------------------------------------------
@@ -232,5 +276,5 @@ def advise(ws: Worksheet) -> Advice:
     return advise_model(ws)
 
 
-__all__ = ["Attempt", "Check", "Source", "advise", "as_json", "attempt", "check", "entry_data",
-           "explain", "fluid", "kind", "pins", "prepare", "read", "solve", "trace"]
+__all__ = ["Attempt", "Check", "FieldProblem", "Source", "advise", "as_json", "attempt", "check", "entry_data",
+           "explain", "fluid", "kind", "pins", "prepare", "problems", "read", "read_field", "solve", "trace"]

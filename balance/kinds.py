@@ -6,11 +6,15 @@ balances it. The façade (:mod:`balance.api`) prepares, solves and files a
 result (the record's solve entry) through the kind it looks up here, so no
 other module branches on the kind.
 
-A kind's module provides three functions:
+A kind's module provides four functions:
 
 ``prepare(worksheet) -> Problem``
     read the worksheet's text into SI numbers and count its degrees of freedom
     (``Problem.dof``); raise InputError naming the field;
+``problems(worksheet) -> list[FieldProblem]``
+    every field at fault, each with its message (read as ``prepare`` reads it),
+    then what stops ``prepare`` if no field accounts for it; empty exactly when
+    ``prepare`` succeeds;
 ``solve(problem) -> Result``
     solve it; raise SpecificationError or SolveError;
 ``as_json(result) -> dict``
@@ -44,7 +48,7 @@ class Kind:
     sections: tuple[str, ...]
     """the worksheet sections it reads, in the order a record takes them"""
     module: str
-    """the module that balances it (``prepare``, ``solve``, ``as_json``)"""
+    """the module that balances it (``prepare``, ``problems``, ``solve``, ``as_json``)"""
 
     def _balance(self):
         return import_module(self.module)
@@ -52,6 +56,10 @@ class Kind:
     def prepare(self, worksheet):
         """The problem in SI numbers (``Problem.dof`` counts it); raises InputError naming the field."""
         return self._balance().prepare(worksheet)
+
+    def problems(self, worksheet) -> list:
+        """Every field of the worksheet at fault (:class:`~balance.worksheet.FieldProblem`), in its order."""
+        return self._balance().problems(worksheet)
 
     def solve(self, problem):
         """The solved balance; raises SpecificationError or SolveError."""

@@ -55,6 +55,10 @@ def read_spec(key: str, text: str, M: float, field: str, p_atm: float = P_ATM) -
     key : str  one of T, P, v, rho, u, h, s, x
     text : str  what was typed
     M : float  molar mass [kg/mol], for mass-based inputs
+
+    Every rule a state puts on one value is applied here, so a check finds what a solve would
+    refuse: T above absolute zero, P above vacuum (in :func:`balance.units.parse`), v and rho
+    positive, x between 0 and 1.
     """
     if key not in SPEC_DIMENSIONS:
         raise InputError(field, f"unknown property {key!r}; expected one of {', '.join(SPEC_DIMENSIONS)}")
@@ -62,9 +66,13 @@ def read_spec(key: str, text: str, M: float, field: str, p_atm: float = P_ATM) -
         return "P", parse(text, "pressure", field, p_atm=p_atm)
     kind, value = dimension_of(text, SPEC_DIMENSIONS[key], field)
     if key == "rho":
-        if value <= 0:
+        if not value > 0:
             raise InputError(field, f"must be a positive density; got {text!r}")
         return "v", (M / value if kind == "density" else 1.0 / value)
+    if key == "v" and not value > 0:
+        raise InputError(field, f"must be a positive volume; got {text!r}")
+    if key == "x" and not 0.0 <= value <= 1.0:
+        raise InputError(field, f"must be a vapour quality between 0 and 1; got {text!r}")
     if kind in ("specific_volume", "specific_energy", "specific_entropy"):
         value *= M
     return key, value

@@ -22,6 +22,7 @@ A value of ``"?"`` marks an unknown to be solved for.
 
 from __future__ import annotations
 
+import re
 from dataclasses import asdict, dataclass, field, fields, replace
 
 from .convention import CONVENTIONS
@@ -56,6 +57,30 @@ CONSTRAINTS = (
     "membrane-rupture",
 )
 WORK_KINDS = ("shaft", "stirring", "electrical", "boundary", "other")
+
+
+@dataclass(frozen=True)
+class FieldProblem:
+    """What is wrong with one field of a worksheet (or with one part as a whole), and where it is.
+
+    ``field`` is the name messages use: ``worksheet.atmosphere``, ``fluid.species``,
+    ``fluid.overrides.Tc``, ``initial 'tank'.T``, ``final.P``, ``heat 'jacket'.T_boundary``,
+    ``work 'shaft'.W``, ``process.n``; a part alone (``initial 'tank'``, ``final``,
+    ``process.constraints``) when no single field is at fault. ``part``, ``index`` and ``key``
+    say the same as data: the section, which compartment or term of ``initial``, ``heat`` or
+    ``work`` (0-based; None for the other sections, or for the list as a whole) and the key in
+    it ('' for the part as a whole).
+    """
+
+    field: str
+    message: str
+    """what is wrong and what was expected"""
+    part: str
+    index: int | None = None
+    key: str = ""
+
+    def __str__(self) -> str:
+        return f"{self.field}: {self.message}" if self.field else self.message
 
 
 @dataclass(frozen=True)
@@ -265,6 +290,22 @@ class Worksheet:
     def with_(self, **changes) -> "Worksheet":
         """A copy with some sections replaced (the worksheet is immutable)."""
         return replace(self, **changes)
+
+
+def place(ws: "Worksheet", field: str, message: str) -> FieldProblem:
+    """The problem a message names ``field`` for, placed in ``ws`` (``initial 'tank'.T`` is the
+    compartment named 'tank', key T; ``heat[2]`` the second heat term; ``final.P``)."""
+    for part in ("initial", "heat", "work"):
+        items = getattr(ws, part)
+        for i, item in enumerate(items):
+            for prefix in (f"{part} '{item.name}'", f"{part}[{i + 1}]"):
+                if field == prefix or field.startswith(prefix + "."):
+                    return FieldProblem(field, message, part, i, field[len(prefix) + 1:])
+    m = re.match(r"(initial|heat|work)\[(\d+)\](?:\.(.*))?$", field)
+    if m:  # a compartment or term the worksheet could not be read far enough to hold
+        return FieldProblem(field, message, m.group(1), int(m.group(2)) - 1, m.group(3) or "")
+    head, _, key = field.partition(".")
+    return FieldProblem(field, message, head if head in SECTIONS else "", None, key)
 
 
 def _state_dict(s: StateInput) -> dict:

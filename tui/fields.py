@@ -1,10 +1,14 @@
 """What each input field of the worksheet expects, and whether a text meets it.
 
-No widgets here: the Textual validator (:mod:`tui.widgets.quantity_field`)
-and the step-status check (:mod:`tui.analysis`) both ask :func:`problem`,
-so an inline message and a step marked invalid always agree. The messages
-are the domain's own (:func:`balance.units.parse` names the expected
-dimension), prefixed with the field's label.
+No widgets here: the Textual validator (:mod:`tui.validators`) and the
+step-status check (:mod:`tui.analysis`) both ask :func:`problem`, so an
+inline message and a step marked invalid always agree. Each field is read by
+the rule the solve applies to it (:func:`balance.api.read_field`: a
+temperature above absolute zero, a pressure above vacuum, an amount above
+zero, an atmosphere that is absolute ...), so a field the solve would refuse
+is at fault where it is typed; :func:`balance.api.problems` lists every field
+of a whole worksheet at fault. The messages are the domain's own, prefixed
+with the field's label.
 """
 
 from __future__ import annotations
@@ -41,33 +45,25 @@ KINDS = {
         FieldKind("n", "an amount of substance (or a mass)", "2 mol"),
         FieldKind("m", "a mass", "2.5 kg"),
         FieldKind("V", "a volume", "2 m3"),
-        FieldKind("temperature", "a temperature", "180 degC"),
-        FieldKind("pressure", "a pressure", "1.01325 bar"),
+        FieldKind("T_boundary", "an absolute temperature", "180 degC"),
+        FieldKind("atmosphere", "an absolute pressure", "1.01325 bar"),
         FieldKind("energy", "an energy", "400 kJ"),
-        FieldKind("dimensionless", "a pure number", "1.3"),
+        FieldKind("polytropic_n", "a polytropic exponent from 0 to 1e6", "1.3"),
     )
 }
+#: Earlier names of three kinds: the boundary temperature, the atmosphere and the polytropic
+#: exponent are each the only field of its dimension, and get its rules.
+ALIASES = {"temperature": "T_boundary", "pressure": "atmosphere", "dimensionless": "polytropic_n"}
+KINDS.update({old: KINDS[new] for old, new in ALIASES.items()})
 
 
 def read(kind: str, text: str, label: str, p_atm: float = P_ATM) -> float:
-    """The SI value of ``text`` for a field of ``kind``; raises InputError naming ``label``."""
-    from balance.state import read_spec
-    from balance.units import dimension_of, parse
+    """The SI value of ``text`` for a field of ``kind``, by every rule the solve applies to that
+    field (:func:`balance.api.read_field`); raises InputError naming ``label``."""
+    from balance import api
 
-    text = text.strip()
-    if kind in ("T", "P", "v", "rho", "u", "h", "s", "x"):
-        # the molar mass only scales mass-based inputs; any positive value checks the text
-        value = read_spec(kind, text, 1.0, label, p_atm)[1]
-        if kind == "x" and not 0.0 <= value <= 1.0:
-            raise InputError(label, f"must be a vapour quality between 0 and 1; got {text!r}")
-        return value
-    if kind == "n":
-        return dimension_of(text, ("amount", "mass"), label)[1]
-    if kind == "m":
-        return parse(text, "mass", label)
-    if kind == "V":
-        return parse(text, "volume", label)
-    return parse(text, kind, label, p_atm=p_atm)
+    # the molar mass only scales mass-based inputs; any positive value checks the text
+    return api.read_field(ALIASES.get(kind, kind), text.strip(), label, p_atm=p_atm)
 
 
 def problem(kind: str, text: str, label: str, *, allow_unknown: bool = False, required: bool = False,
@@ -100,10 +96,8 @@ def _names_dimension(message: str, what: FieldKind) -> bool:
 
 def atmosphere(text: str) -> float:
     """The worksheet's atmosphere [Pa] for gauge readings; the standard one if the text is bad."""
-    from balance.units import parse
-
     try:
-        return parse(text or "1.01325 bar", "pressure", "atmosphere")
+        return read("atmosphere", text, "atmosphere")
     except InputError:
         return P_ATM
 

@@ -13,7 +13,8 @@ from dataclasses import dataclass
 
 from ..convention import Convention
 from ..errors import InputError
-from ..units import parse
+from ..state import SPEC_DIMENSIONS, read_spec
+from ..units import P_ATM, dimension_of, parse
 from ..worksheet import UNKNOWN, HeatTerm, WorkTerm
 
 #: A balance closes when its scaled residual is below this.
@@ -115,22 +116,88 @@ def check_term_names(heat: tuple[HeatTerm, ...], work: tuple[WorkTerm, ...]) -> 
             raise InputError(kind, f"two {kind} terms are named {twice[0]!r}: give each its own name")
 
 
+# -- the fields, one rule each: what a balance reads, the checks (api.problems) and the app apply
 def read_atmosphere(text: str, field: str = "worksheet.atmosphere") -> float:
     """The atmospheric pressure gauge readings are taken against [Pa] (blank: the standard
     atmosphere): an absolute pressure above vacuum; raises InputError naming ``field``."""
     return parse(text or "1.01325 bar", "pressure", field, gauge=False)
 
 
+def read_amount(key: str, text: str, M: float, field: str) -> float:
+    """An amount as typed, ``n`` (moles, or a mass) or ``m`` (a mass), in mol [mol]; positive.
+
+    ``M`` : float  molar mass [kg/mol]
+    """
+    if key == "m":
+        n = parse(text, "mass", field) / M
+    else:
+        kind, value = dimension_of(text, ("amount", "mass"), field)
+        n = value if kind == "amount" else value / M
+    _positive(n, text, field)
+    return n
+
+
+def read_volume(text: str, field: str) -> float:
+    """A volume as typed [m3]; positive."""
+    V = parse(text, "volume", field)
+    _positive(V, text, field)
+    return V
+
+
+#: The largest polytropic exponent taken: beyond it the path is a rigid vessel to within parts
+#: per million of the volume (v2/v1 = (P1/P2)^(1/n)), and 'rigid' says so plainly.
+N_POLY_MAX = 1e6
+
+
+def read_polytropic_n(text: str, field: str = "process.n") -> float:
+    """The polytropic exponent n of P v^n = const [-], 0 <= n <= N_POLY_MAX; raises InputError."""
+    if not text.strip():
+        raise InputError(field, "give the polytropic exponent n, e.g. 1.3")
+    n = parse(text, "dimensionless", field)
+    if not 0.0 <= n <= N_POLY_MAX:
+        raise InputError(field, f"expected a polytropic exponent from 0 (isobaric) to {N_POLY_MAX:g} "
+                                f"(beyond that, tick 'rigid'); got {text!r}")
+    return n
+
+
+def read_field(kind: str, text: str, field: str, *, p_atm: float = P_ATM, M: float = 1.0) -> float:
+    """One typed value, in SI, by every rule a balance applies to a field of ``kind``; raises
+    InputError naming ``field``. A balance reads its worksheet with the same functions.
+
+    ``kind`` is a state property (T, P, v, rho, u, h, s, x: molar SI, rho as v), an amount
+    (n, m as mol; V), or ``atmosphere``, ``T_boundary``, ``energy`` (Q, W, ΔKE, ΔPE),
+    ``polytropic_n``. ``M`` [kg/mol] scales mass-based values (any positive M checks a text).
+    """
+    if kind in SPEC_DIMENSIONS:
+        return read_spec(kind, text, M, field, p_atm)[1]
+    if kind in ("n", "m"):
+        return read_amount(kind, text, M, field)
+    if kind == "V":
+        return read_volume(text, field)
+    if kind == "atmosphere":
+        return read_atmosphere(text, field)
+    if kind == "T_boundary":
+        return parse(text, "temperature", field)
+    if kind == "energy":
+        return parse(text, "energy", field)
+    if kind == "polytropic_n":
+        return read_polytropic_n(text, field)
+    raise ValueError(f"unknown kind of field {kind!r}")  # a caller's defect, not the input's
+
+
+def _positive(value: float, text: str, field: str) -> None:
+    if not value > 0:
+        raise InputError(field, f"must be positive; got {text!r}")
+
+
 def read_heat(h: HeatTerm, T_default: float | None = None, T_note: str = "") -> Heat:
     """A heat term's numbers; ``T_default`` [K] (with ``T_note`` saying why) stands in for a
     boundary temperature the worksheet leaves out."""
     where = f"heat '{h.name}'"
-    Q = None if h.Q.strip() == UNKNOWN else parse(h.Q, "energy", f"{where}.Q")
+    Q = None if h.Q.strip() == UNKNOWN else read_field("energy", h.Q, f"{where}.Q")
     Tb, note = None, ""
     if h.T_boundary:
-        Tb = parse(h.T_boundary, "temperature", f"{where}.T_boundary")
-        if not Tb > 0:
-            raise InputError(f"{where}.T_boundary", f"must be positive; got {Tb:g} in SI units")
+        Tb = read_field("T_boundary", h.T_boundary, f"{where}.T_boundary")
     elif T_default is not None:
         Tb, note = T_default, T_note
     return Heat(h.name, Q, Tb, note)
@@ -140,7 +207,7 @@ def read_work(w: WorkTerm, convention: Convention) -> Work:
     """A work term's numbers, in the canonical sign (done on the system)."""
     if w.W.strip() == UNKNOWN:
         return Work(w.name, w.kind, None)
-    return Work(w.name, w.kind, convention.work_on(parse(w.W, "energy", f"work '{w.name}'.W")))
+    return Work(w.name, w.kind, convention.work_on(read_field("energy", w.W, f"work '{w.name}'.W")))
 
 
 # -- the entropy balance of the heat terms ---------------------------------------------------

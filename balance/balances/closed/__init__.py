@@ -11,7 +11,8 @@ Second law:
     S_gen = ΔS_system + ΔS_surroundings = (n s2 - Σ n_i s1,i) - Σ Q_k / T_k  >= 0
 
 - :mod:`.problem` — the worksheet's text to SI numbers, the final state's
-  fixed properties, the path, and the degrees-of-freedom count;
+  fixed properties, the path, and the degrees-of-freedom count; every field
+  at fault (``problems``);
 - :mod:`.solver` — the search (unknown heat, work and amount eliminated
   exactly; 0, 1 or 2 free properties of the final state);
 - :mod:`.result` — the :class:`Result`, rebuilt from the states and checked;
@@ -25,7 +26,7 @@ crossing the boundary, the count's words) is in
 
 from __future__ import annotations
 
-from .problem import Compartment, Problem, count_dof, prepare
+from .problem import Compartment, Problem, count_dof, prepare, problems
 from .result import Result
 from .solver import solve
 
@@ -35,4 +36,4 @@ def as_json(result: Result) -> dict:
     return result.as_json()
 
 
-__all__ = ["Compartment", "Problem", "Result", "as_json", "count_dof", "prepare", "solve"]
+__all__ = ["Compartment", "Problem", "Result", "as_json", "count_dof", "prepare", "problems", "solve"]

@@ -17,11 +17,12 @@ from ...convention import Convention
 from ...errors import InputError, SpecificationError
 from ...models.base import Point, PropertyModel
 from ...species import Species
-from ...state import State, make_fluid, read_specs
-from ...units import dimension_of, parse
-from ...worksheet import UNKNOWN, Worksheet
-from ..control_volume import (Dof, Heat, Unknown, Work, check_term_names, read_atmosphere, read_heat,
-                              read_work)
+from ...species import lookup, with_overrides
+from ...state import State, make_fluid, read_spec, read_specs
+from ...units import P_ATM
+from ...worksheet import UNKNOWN, FieldProblem, Worksheet, place
+from ..control_volume import (Dof, Heat, Unknown, Work, check_term_names, read_amount, read_atmosphere,
+                              read_field, read_heat, read_polytropic_n, read_volume, read_work)
 
 
 @dataclass(frozen=True)
@@ -186,9 +187,11 @@ def prepare(ws: Worksheet) -> Problem:
         undetermined = _volume_of_the_model(ws, model, path, fixed, sources, notes)
     if len(fixed) > 2:
         listed = ", ".join(f"{k} ({sources[k]})" for k in fixed)
-        raise SpecificationError(
+        over = SpecificationError(
             f"the final state is over-specified: {listed} are all fixed but a state takes two; remove one"
         )
+        over.field = "final"  # the part at fault, for check and problems (no one field is)
+        raise over
     final_point = model.flash(dict(fixed), field="final") if len(fixed) == 2 else None
     n_poly = None
     if path == "polytropic":
@@ -213,8 +216,8 @@ def prepare(ws: Worksheet) -> Problem:
         notes.append("no heat term is given, so Q = 0: declare 'adiabatic' to say so explicitly")
     convention = Convention(ws.heading.convention)
     work = tuple(read_work(w, convention) for w in ws.work)
-    dKE = parse(ws.process.dKE, "energy", "process.dKE") if ws.process.dKE else 0.0
-    dPE = parse(ws.process.dPE, "energy", "process.dPE") if ws.process.dPE else 0.0
+    dKE = read_field("energy", ws.process.dKE, "process.dKE") if ws.process.dKE else 0.0
+    dPE = read_field("energy", ws.process.dPE, "process.dPE") if ws.process.dPE else 0.0
     implied = ()
     if reversible:
         why = _reversible_implied(path, compartments, heat, work, dKE, dPE, T_system)
@@ -227,22 +230,6 @@ def prepare(ws: Worksheet) -> Problem:
         constraints=tuple(sorted(constraints)), notes=notes, implied=implied,
         pressure_undetermined=undetermined, final_point=final_point,
     )
-
-
-#: The largest polytropic exponent taken: beyond it the path is a rigid vessel to within parts
-#: per million of the volume (v2/v1 = (P1/P2)^(1/n)), and 'rigid' says so plainly.
-N_POLY_MAX = 1e6
-
-
-def read_polytropic_n(text: str, field: str = "process.n") -> float:
-    """The polytropic exponent n of P v^n = const [-], 0 <= n <= N_POLY_MAX; raises InputError."""
-    if not text.strip():
-        raise InputError(field, "give the polytropic exponent n, e.g. 1.3")
-    n = parse(text, "dimensionless", field)
-    if not 0.0 <= n <= N_POLY_MAX:
-        raise InputError(field, f"expected a polytropic exponent from 0 (isobaric) to {N_POLY_MAX:g} "
-                                f"(beyond that, tick 'rigid'); got {text!r}")
-    return n
 
 
 def _reversible_implied(path: str, compartments, heat: tuple[Heat, ...], work: tuple[Work, ...],
@@ -327,6 +314,91 @@ def _whole_work(ws: Worksheet, fixed: dict[str, float], notes: list[str]) -> Non
     )
 
 
+def problems(ws: Worksheet) -> list[FieldProblem]:
+    """Every field of the worksheet at fault, each with its own message, in the worksheet's order;
+    then what stops :func:`prepare` when no field accounts for it (a final T that a ticked
+    constraint contradicts, a missing path, an over-specified final state). Empty exactly when
+    :func:`prepare` succeeds. Each field is read by the function :func:`prepare` reads it with."""
+    out: list[FieldProblem] = []
+
+    def at(field: str, read):
+        try:
+            return read()
+        except InputError as exc:
+            out.append(place(ws, exc.field or field, exc.message))
+            return None
+
+    def refuse(field: str, message: str) -> None:
+        out.append(place(ws, field, message))
+
+    p_atm = at("worksheet.atmosphere", lambda: read_atmosphere(ws.heading.atmosphere))
+    p_atm = P_ATM if p_atm is None else p_atm
+    M = 1.0  # scales mass-based values only: any positive M checks their text
+    fl = ws.fluid
+    if not fl.species:
+        refuse("fluid.species", "give the species, e.g. 'N2' (`joulebook species` lists them)")
+    if not fl.model:
+        refuse("fluid.model", "give the property model, e.g. 'peng-robinson'")
+    species = at("fluid.species", lambda: lookup(fl.species, "fluid.species")) if fl.species else None
+    if species is not None:
+        M = species.M
+        before = len(out)
+        for key, text in fl.overrides.items():
+            at(f"fluid.overrides.{key}", lambda: with_overrides(species, {key: text}))
+        if fl.model and len(out) == before:
+            at("fluid.model", lambda: make_fluid(fl.species, fl.model, fl.overrides))
+
+    for si in ws.initial:
+        where = f"initial '{si.name}'"
+        for key, text in si.props.items():
+            if text.strip() == UNKNOWN:
+                refuse(f"{where}.{key}", "cannot be unknown ('?') in an initial state; give its value")
+            else:
+                at(f"{where}.{key}", lambda: read_spec(key, text, M, f"{where}.{key}", p_atm))
+        for key, text in si.amount.items():
+            if text.strip() == UNKNOWN:
+                if key == "V":
+                    refuse(f"{where}.V", "cannot be unknown ('?') in an initial state; give its value, or mark "
+                                         "n '?' to solve for the amount")
+            elif key == "V":
+                at(f"{where}.V", lambda: read_volume(text, f"{where}.V"))
+            else:
+                at(f"{where}.{key}", lambda: read_amount(key, text, M, f"{where}.{key}"))
+    for key, text in ws.final.props.items():
+        if text.strip() != UNKNOWN:
+            at(f"final.{key}", lambda: read_spec(key, text, M, f"final.{key}", p_atm))
+    for key, text in ws.final.amount.items():
+        if key != "V":
+            refuse(f"final.{key}", "the final amount follows from the initial one; remove it")
+        elif text.strip() not in ("", UNKNOWN):
+            at("final.V", lambda: read_volume(text, "final.V"))
+    for h in ws.heat:
+        where = f"heat '{h.name}'"
+        if h.Q.strip() != UNKNOWN:
+            at(f"{where}.Q", lambda: read_field("energy", h.Q, f"{where}.Q"))
+        if h.T_boundary:
+            at(f"{where}.T_boundary", lambda: read_field("T_boundary", h.T_boundary, f"{where}.T_boundary"))
+    for w in ws.work:
+        if w.W.strip() != UNKNOWN:
+            at(f"work '{w.name}'.W", lambda: read_field("energy", w.W, f"work '{w.name}'.W"))
+    pr = ws.process
+    if "polytropic" in pr.constraints:
+        at("process.n", lambda: read_polytropic_n(pr.n))
+    for key in ("dKE", "dPE"):
+        text = getattr(pr, key)
+        if text:
+            at(f"process.{key}", lambda: read_field("energy", text, f"process.{key}"))
+
+    try:
+        prepare(ws)
+    except InputError as exc:
+        if exc.field not in {p.field for p in out}:
+            refuse(exc.field, exc.message)
+    except SpecificationError as exc:
+        refuse(getattr(exc, "field", "final"), str(exc))
+    return out
+
+
 def _same(gases: list[Compartment], key: str, why: str) -> None:
     values = [getattr(c.state.point, key) for c in gases]
     if max(values) - min(values) > 1e-9 * max(abs(v) for v in values):
@@ -344,8 +416,7 @@ def _compartments(ws: Worksheet, model: PropertyModel, p_atm: float, notes: list
                 raise InputError(f"{where}.V", "an empty compartment needs its volume V")
             if si.props or set(si.amount) - {"V"}:
                 raise InputError(where, "an empty compartment has only a volume V")
-            V = parse(si.amount["V"], "volume", f"{where}.V")
-            _positive(V, f"{where}.V")
+            V = read_volume(si.amount["V"], f"{where}.V")
             out.append(Compartment(si.name, None, V))
             continue
         specs = read_specs(si.props, M, where, p_atm)
@@ -374,43 +445,25 @@ def _compartments(ws: Worksheet, model: PropertyModel, p_atm: float, notes: list
             continue
         key, text = next(iter(amounts.items()))
         if key == "V":
-            V = parse(text, "volume", f"{where}.V")
-            _positive(V, f"{where}.V")
+            V = read_volume(text, f"{where}.V")
             n = V / point.v
         else:
-            n = _read_amount(key, text, M, where)
+            n = read_amount(key, text, M, f"{where}.{key}")
         out.append(Compartment(si.name, State(si.name, model, point, n=n), n * point.v))
         if n_total is not None:
             n_total += n
     return tuple(out), n_total
 
 
-def _read_amount(key: str, text: str, M: float, where: str) -> float:
-    """An amount typed as n (moles, or a mass) or m, in mol."""
-    if key == "m":
-        n = parse(text, "mass", f"{where}.m") / M
-    else:
-        kind, value = dimension_of(text, ("amount", "mass"), f"{where}.n")
-        n = value if kind == "amount" else value / M
-    _positive(n, f"{where}.{key}")
-    return n
-
-
 def _volume_over_amount(amounts: dict[str, str], M: float, where: str) -> tuple[str, float, str]:
     """The molar volume v = V/n of a compartment given an amount (n or m) and its volume V:
     (the amount's key, v [m3/mol], a note saying where v came from)."""
     key = "n" if "n" in amounts else "m"
-    V = parse(amounts["V"], "volume", f"{where}.V")
-    _positive(V, f"{where}.V")
-    n = _read_amount(key, amounts[key], M, where)
+    V = read_volume(amounts["V"], f"{where}.V")
+    n = read_amount(key, amounts[key], M, f"{where}.{key}")
     v = V / n
     return key, v, (f"{where}: v = V/n = {V:.6g} m3 / {n:.6g} mol = {v:.6g} m3/mol, "
                     f"from the volume and the amount given")
-
-
-def _positive(value: float, field: str) -> None:
-    if not value > 0:
-        raise InputError(field, f"must be positive; got {value:g} in SI units")
 
 
 def _final_volume(ws: Worksheet, p_atm: float) -> float | None:
@@ -421,8 +474,7 @@ def _final_volume(ws: Worksheet, p_atm: float) -> float | None:
     text = amount.get("V", "").strip()
     if not text or text == UNKNOWN:
         return None
-    V = parse(text, "volume", "final.V")
-    _positive(V, "final.V")
+    V = read_volume(text, "final.V")
     return V
 
 
