@@ -60,13 +60,25 @@ def result_renderable(r: Result, units: str = "metric") -> Group:
     e.add_column("name")
     e.add_column(unit_label("E", units), justify="right")
     e.add_column("", style="dim")
+    ro = r.round_off
+
+    def computed(x: float | None, kind: str, note: str) -> tuple[str, str]:
+        """A computed value in the display units, or 0 where it is round-off (said in its note;
+        the rule and its scales are a line of the equations)."""
+        if ro.zero(x, "J/K" if kind == "S" else "J") and x != 0:
+            return "0", (note + "; " if note else "") + "round-off"
+        return show(x, kind, units), note
+
     for term in r.terms:
         value = p.convention.shown(term.kind, term.value)
         label = "Q" if term.kind == "heat" else ("W" if term.kind == "work" else "W boundary")
-        e.add_row(label, term.name, show(value, "E", units), "solved" if term.solved else "given")
-    e.add_row("ΔU", "", show(r.dU, "E", units), "n u2 - Σ n u1")
-    e.add_row("  ideal-gas part", "", show(r.dU_ig, "E", units), "")
-    e.add_row("  departure part", "", show(r.dU_dep, "E", units), "")
+        if term.solved:
+            e.add_row(label, term.name, *computed(value, "E", "solved"))
+        else:
+            e.add_row(label, term.name, show(value, "E", units), "given")
+    e.add_row("ΔU", "", *computed(r.dU, "E", "n u2 - Σ n u1"))
+    e.add_row("  ideal-gas part", "", *computed(r.dU_ig, "E", ""))
+    e.add_row("  departure part", "", *computed(r.dU_dep, "E", ""))
     if p.dKE:
         e.add_row("ΔKE", "", show(p.dKE, "E", units), "given")
     if p.dPE:
@@ -77,9 +89,10 @@ def result_renderable(r: Result, units: str = "metric") -> Group:
     s = Table(title="Entropy balance", box=box.SIMPLE_HEAD, title_justify="left")
     s.add_column("term")
     s.add_column(unit_label("S", units), justify="right")
-    s.add_row("ΔS system", show(r.dS_system, "S", units))
-    s.add_row("ΔS surroundings", show(r.dS_surroundings, "S", units))
-    s.add_row("S_gen", show(r.S_gen, "S", units))
+    s.add_column("", style="dim")
+    s.add_row("ΔS system", *computed(r.dS_system, "S", ""))
+    s.add_row("ΔS surroundings", *computed(r.dS_surroundings, "S", ""))
+    s.add_row("S_gen", *computed(r.S_gen, "S", ""))
     parts.append(s)
 
     parts.append(Panel("\n".join(r.equations), title="Equations with numbers", title_align="left", box=box.SQUARE))

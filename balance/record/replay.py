@@ -12,7 +12,9 @@ larger of its own magnitude and the largest recorded magnitude of the same
 unit in that result (so a ΔU that is round-off near zero is judged against
 the energies around it); numbers inside text (equations, warnings) are
 compared the same way at the precision they are printed with (6 significant
-digits). Text, phases and names must be equal.
+digits). Text, phases and names must be equal, except the explanation and the
+cautions of a solve worded in another edition (its ``wording``; see
+:data:`REWORDED`): those are listed in a note, and its quantities judged.
 
 A record whose chain is broken (:func:`balance.record.chain.chain_break`)
 does not reproduce, whatever its numbers: the entries from the break on are
@@ -42,6 +44,10 @@ RESIDUAL_LIMIT = 1e-7
 DEFAULT_TOLERANCE = 1e-9
 #: Numbers printed with 6 significant digits can differ by this much after rounding.
 PRINTED = 1e-5
+#: A solve's ``wording`` (absent: 1) is the edition of the words of its texts. A record worded
+#: in another edition has these keys listed as notes, not judged: the explanation and the
+#: cautions are words around numbers the quantities hold, and are judged as quantities.
+REWORDED = ("wording", "equations", "cautions", "round_off")
 
 _NUMBER = re.compile(r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?")
 
@@ -138,10 +144,18 @@ def compare(recorded: dict, now: dict, tolerance: float = DEFAULT_TOLERANCE) -> 
     scales = _scales(recorded)
     failing: list[Difference] = []
     info: list[Difference] = []
+    editions = tuple(d.get("wording", 1) if isinstance(d, dict) else 1 for d in (recorded, now))
+    if editions[0] != editions[1] and "wording" not in recorded:
+        recorded = {**recorded, "wording": editions[0]}  # so that the walk meets it
 
     def walk(path: str, a, b, depth: int = 1):
         key = path.rsplit(".", 1)[-1]
         if path in PIN_KEYS:
+            return
+        if path in REWORDED and editions[0] != editions[1]:
+            if path == "wording":
+                info.append(Difference(path, editions[0], editions[1], note="the explanation and the cautions "
+                                       "are worded otherwise: not compared word for word"))
             return
         if path in INFORMATIONAL:
             if a != b:

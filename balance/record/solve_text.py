@@ -25,8 +25,27 @@ def _list(data: dict, key: str) -> list:
     return v if isinstance(v, list) else [v]
 
 
-def _kJ(x) -> str:
-    return "—" if x is None else g(x / 1e3)
+def _kJ(x, zero: bool = False) -> str:
+    return "—" if x is None else "0" if zero else g(x / 1e3)
+
+
+def round_off(data: dict) -> tuple[float, float, float] | None:
+    """(relative, energy scale [J], entropy scale [J/K]) below which a computed energy or entropy
+    is round-off, shown as 0; None for a solve recorded without them (shown as it was written)."""
+    ro = data.get("round_off")
+    rel = ro.get("relative") if isinstance(ro, dict) else None
+    E, S = _q(ro, "energy"), _q(ro, "entropy")
+    if not isinstance(rel, (int, float)) or isinstance(rel, bool) or E is None or S is None:
+        return None
+    return float(rel), E, S
+
+
+def _zero(x, ro, unit: str = "J") -> bool:
+    """Whether a computed value [J or J/K] is round-off of zero under the recorded scales."""
+    if ro is None or x is None or x == 0:
+        return False
+    rel, E, S = ro
+    return abs(x) < rel * (S if unit == "J/K" else E)
 
 
 def solve_text(data: dict, inputs_seq: int | None = None) -> str:
@@ -60,7 +79,7 @@ def solve_text(data: dict, inputs_seq: int | None = None) -> str:
             + ("done by" if conv == "work-by-system" else "done on") + " the system positive)"]
     out += table(*energy_rows(data), "llrl")
     out += ["", "Entropy balance"]
-    out += table(*entropy_rows(data), "lr")
+    out += table(*entropy_rows(data), "lrl")
     out += ["", "Equations with numbers"]
     out += ["  " + str(e) for e in _list(data, "equations")]
     out += ["", "Warnings"]
@@ -129,6 +148,7 @@ def _states(states: dict) -> list[str]:
 
 def energy_rows(data: dict) -> tuple[list[str], list[list[str]]]:
     """Headers and rows of the energy balance, term by term, in kJ."""
+    ro = round_off(data)
     rows = []
     for t in data.get("terms", []):
         if not isinstance(t, dict):
@@ -139,10 +159,14 @@ def energy_rows(data: dict) -> tuple[list[str], list[list[str]]]:
             note += f", crosses at {g(_q(t, 'T_boundary'))} K"
         elif t.get("detail"):
             note += f", {t['detail']}"
-        rows.append([label, str(t.get("name", "")), _kJ(_q(t, "value")), note])
-    rows.append(["ΔU", "", _kJ(_q(data, "dU")), "n u2 - Σ n u1"])
-    rows.append(["  ideal-gas part", "", _kJ(_q(data, "dU_ideal_gas")), "Σ n (u_ig(T2) - u_ig(T1))"])
-    rows.append(["  departure part", "", _kJ(_q(data, "dU_departure")), "Σ n (u_dep2 - u_dep1)"])
+        value = _q(t, "value")
+        zero = bool(t.get("solved")) and _zero(value, ro)
+        rows.append([label, str(t.get("name", "")), _kJ(value, zero), note + (", round-off" if zero else "")])
+    for label, key, note in (("ΔU", "dU", "n u2 - Σ n u1"),
+                             ("  ideal-gas part", "dU_ideal_gas", "Σ n (u_ig(T2) - u_ig(T1))"),
+                             ("  departure part", "dU_departure", "Σ n (u_dep2 - u_dep1)")):
+        zero = _zero(_q(data, key), ro)
+        rows.append([label, "", _kJ(_q(data, key), zero), note + ("; round-off" if zero else "")])
     residual = data.get("residual")
     rows.append(["residual", "", "—" if not isinstance(residual, (int, float)) else f"{residual:.1e}",
                  "relative, recomputed from the states"])
@@ -150,8 +174,14 @@ def energy_rows(data: dict) -> tuple[list[str], list[list[str]]]:
 
 
 def entropy_rows(data: dict) -> tuple[list[str], list[list[str]]]:
-    """Headers and rows of the entropy balance, in kJ/K."""
-    rows = [["ΔS system", _kJ(_q(data, "dS_system"))],
-            ["ΔS surroundings", _kJ(_q(data, "dS_surroundings")) if "dS_surroundings" in data else "not evaluated"],
-            ["S_gen", _kJ(_q(data, "S_gen")) if "S_gen" in data else "not evaluated"]]
-    return ["term", "kJ/K"], rows
+    """Headers and rows of the entropy balance, in kJ/K (with a note column where the solve
+    records its round-off scales)."""
+    ro = round_off(data)
+    rows = []
+    for label, key in (("ΔS system", "dS_system"), ("ΔS surroundings", "dS_surroundings"), ("S_gen", "S_gen")):
+        x = _q(data, key)
+        zero = _zero(x, ro, "J/K")
+        shown = _kJ(x, zero) if key in data or key == "dS_system" else "not evaluated"
+        rows.append([label, shown] + ([] if ro is None else ["round-off" if zero else ""]))
+    return ["term", "kJ/K"] + ([] if ro is None else [""]), rows
+

@@ -6,11 +6,67 @@ reviewer can follow every figure with a calculator.
 
 from __future__ import annotations
 
+import math
+from dataclasses import dataclass
+
 from ...units import R
+from ..control_volume import TOLERANCE
+
+#: The edition of the words of a solve's texts (the explanation and the cautions, which a
+#: record's solve entry holds): raise it when they change, so that replay lists an older
+#: record's texts instead of judging them word for word (its quantities are still judged).
+WORDING = 2
 
 
-def _kJ(x: float) -> str:
+@dataclass(frozen=True)
+class RoundOff:
+    """The scales a result's computed energies and entropies are judged against.
+
+    The balances are solved to ``relative`` (the solver's tolerance) of these
+    scales, so a computed value smaller than that is round-off of zero: it is
+    shown as 0 and said to be round-off; the result and the record's data keep
+    the computed value.
+    """
+
+    energy: float
+    """[J] the largest of n R T at each state and of each energy term"""
+    entropy: float
+    """[J/K] the largest of n R and the entropy changes"""
+    relative: float = TOLERANCE
+
+    def zero(self, value: float | None, unit: str = "J") -> bool:
+        """Whether a computed value [J, or J/K with ``unit="J/K"``] is round-off of zero."""
+        scale = self.entropy if unit == "J/K" else self.energy
+        return value is not None and math.isfinite(value) and abs(value) < self.relative * scale
+
+    def words(self) -> str:
+        """The rule in words, with its scales (energies in kJ, entropies in J/K, as the explanation)."""
+        return round_off_words(self.relative, f"{self.energy / 1e3:.6g} kJ", f"{self.entropy:.6g} J/K")
+
+
+def round_off_words(relative: float, energy: str, entropy: str) -> str:
+    """The round-off rule in words, its scales already written with their units."""
+    rel = f"{relative:.0e}".replace("e-0", "e-")
+    return (f"Round-off: a computed energy smaller than {rel} × {energy} (the largest of n R T and the "
+            f"energy terms) or entropy smaller than {rel} × {entropy} (the largest of n R and the entropy "
+            "changes) is shown as 0: the balances are solved to that precision; the data keep the "
+            "computed values")
+
+
+def _kJ(x: float, ro: RoundOff | None = None) -> str:
+    if x == 0:
+        return "0 kJ"
+    if ro is not None and ro.zero(x):
+        return "0 kJ (round-off)"
     return f"{x / 1e3:.6g} kJ"
+
+
+def _JK(x: float, ro: RoundOff | None = None) -> str:
+    if x == 0:
+        return "0 J/K"
+    if ro is not None and ro.zero(x, "J/K"):
+        return "0 J/K (round-off)"
+    return f"{x:.6g} J/K"
 
 
 def explain(r) -> list[str]:
@@ -19,6 +75,7 @@ def explain(r) -> list[str]:
     f = r.final
     fp = f.point
     c = p.convention
+    ro = r.round_off
     lines = [f"Sign convention: {c.words}"]
     lines.append(f"Model: {p.model.label} for {p.species.name}; reference state: {p.model.reference_state}")
     lines += [f"  {e}" for e in p.model.equations()]
@@ -37,45 +94,52 @@ def explain(r) -> list[str]:
         f"u = {fp.u:.6g} J/mol, s = {fp.s:.6g} J/(mol K)" + (f"  [{fixed}]" if fixed else "")
     )
     U1 = sum(st.U for st in r.initial)
-    lines.append(f"ΔU = n u2 - Σ n u1 = {r.n:.6g} × {fp.u:.6g} - ({U1:.6g}) = {_kJ(r.dU)}")
+    lines.append(f"ΔU = n u2 - Σ n u1 = {r.n:.6g} × {fp.u:.6g} - ({U1:.6g}) = {_kJ(r.dU, ro)}")
     lines.append(
-        f"  ideal-gas part Σ n (u_ig(T2) - u_ig(T1)) = {_kJ(r.dU_ig)}; "
-        f"departure part Σ n (u_dep2 - u_dep1) = {_kJ(r.dU_dep)}"
+        f"  ideal-gas part Σ n (u_ig(T2) - u_ig(T1)) = {_kJ(r.dU_ig, ro)}; "
+        f"departure part Σ n (u_dep2 - u_dep1) = {_kJ(r.dU_dep, ro)}"
     )
     for t in r.terms:
         if t.kind == "boundary work":
-            lines.append(_boundary_line(r, t))
+            lines.append(_boundary_line(r, t, ro))
     Q = r.Q
     W = r.W_on
+    # a sum of given terms is as typed; one with a solved term in it can be round-off
+    ro_Q = ro if any(t.solved for t in r.terms if t.kind == "heat") else None
+    ro_W = ro if any(t.solved for t in r.terms if t.kind != "heat") else None
     ke = f" + ΔKE ({_kJ(p.dKE)})" if p.dKE else ""
     pe = f" + ΔPE ({_kJ(p.dPE)})" if p.dPE else ""
     if c.on_system:
-        lines.append(f"First law: ΔU{ke}{pe} = Q + W:  {_kJ(r.dU + p.dKE + p.dPE)} = {_kJ(Q)} + {_kJ(W)}")
+        lines.append(f"First law: ΔU{ke}{pe} = Q + W:  {_kJ(r.dU + p.dKE + p.dPE, ro)} = {_kJ(Q, ro_Q)} + {_kJ(W, ro_W)}")
     else:
         W_by = c.shown("work", W)
-        lines.append(f"First law: ΔU{ke}{pe} = Q - W:  {_kJ(r.dU + p.dKE + p.dPE)} = {_kJ(Q)} - ({_kJ(W_by)})")
+        lines.append(f"First law: ΔU{ke}{pe} = Q - W:  {_kJ(r.dU + p.dKE + p.dPE, ro)} = {_kJ(Q, ro_Q)} - ({_kJ(W_by, ro_W)})")
     for t in r.terms:
         if t.solved and t.kind != "boundary work":
             label = "Q" if t.kind == "heat" else f"W ({c.positive_work} the system)"
-            lines.append(f"  solved: {label} '{t.name}' = {_kJ(c.shown(t.kind, t.value))}")
+            lines.append(f"  solved: {label} '{t.name}' = {_kJ(c.shown(t.kind, t.value), ro)}")
     lines.append(f"Energy balance residual, recomputed from the states: {r.residual:.2e} (relative)")
     S1 = sum(st.S for st in r.initial)
-    lines.append(f"ΔS_system = n s2 - Σ n s1 = {r.n:.6g} × {fp.s:.6g} - ({S1:.6g}) = {r.dS_system:.6g} J/K")
+    lines.append(f"ΔS_system = n s2 - Σ n s1 = {r.n:.6g} × {fp.s:.6g} - ({S1:.6g}) = {_JK(r.dS_system, ro)}")
     heats = [t for t in r.terms if t.kind == "heat"]
     if r.S_gen is not None:
         parts = " + ".join(f"{t.value:.6g}/{t.T_boundary:.6g}" for t in heats) or "0"
-        lines.append(f"ΔS_surroundings = -Σ Q/T_boundary = -({parts}) = {r.dS_surroundings:.6g} J/K")
-        lines.append(
-            f"S_gen = ΔS_system + ΔS_surroundings = {r.S_gen:.6g} J/K"
-            f" ({r.S_gen / (r.n * R):.4g} n R)" + ("  (reversible: 0 by constraint)" if p.reversible else "")
-        )
+        lines.append(f"ΔS_surroundings = -Σ Q/T_boundary = -({parts}) = {_JK(r.dS_surroundings, ro)}")
+        if ro.zero(r.S_gen, "J/K") or r.S_gen == 0:
+            why = "by constraint" if p.reversible else "to the precision of the calculation"
+            tag = "; round-off" if r.S_gen != 0 else ""
+            lines.append(f"S_gen = ΔS_system + ΔS_surroundings = 0 J/K (reversible {why}{tag})")
+        else:
+            lines.append(f"S_gen = ΔS_system + ΔS_surroundings = {r.S_gen:.6g} J/K ({r.S_gen / (r.n * R):.4g} n R)")
     else:
         lines.append("S_gen: not evaluated (a heat term has no boundary temperature)")
     lines.append(f"Solver: {r.method}; {r.iterations} balance evaluations")
+    if any("round-off)" in line for line in lines):
+        lines.append(ro.words())
     return lines
 
 
-def _boundary_line(r, t) -> str:
+def _boundary_line(r, t, ro: RoundOff) -> str:
     p = r.problem
     first = r.initial[0].point
     fp = r.final.point
@@ -84,14 +148,14 @@ def _boundary_line(r, t) -> str:
     if p.path == "rigid":
         return f"Boundary work (rigid): W_b = 0; V1 = V2 = {V2:.6g} m3"
     if p.path == "isobaric":
-        return f"Boundary work (isobaric): W_b = -P (V2 - V1) = -{first.P:.6g} × ({V2:.6g} - {V1:.6g}) = {_kJ(t.value)}"
+        return f"Boundary work (isobaric): W_b = -P (V2 - V1) = -{first.P:.6g} × ({V2:.6g} - {V1:.6g}) = {_kJ(t.value, ro)}"
     if p.path == "isothermal":
         return (
             f"Boundary work (isothermal, reversible): W_b = -∫P dV = n (a2 - a1), a = u - T s: "
-            f"{r.n:.6g} × ({fp.a:.6g} - {first.a:.6g}) = {_kJ(t.value)}"
+            f"{r.n:.6g} × ({fp.a:.6g} - {first.a:.6g}) = {_kJ(t.value, ro)}"
         )
     k = p.n_poly
     return (
         f"Boundary work (polytropic, n = {k:g}): W_b = (P2 V2 - P1 V1)/(n - 1) = "
-        f"({fp.P:.6g} × {V2:.6g} - {first.P:.6g} × {V1:.6g})/({k:g} - 1) = {_kJ(t.value)}"
+        f"({fp.P:.6g} × {V2:.6g} - {first.P:.6g} × {V1:.6g})/({k:g} - 1) = {_kJ(t.value, ro)}"
     )

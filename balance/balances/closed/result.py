@@ -9,6 +9,7 @@ attached.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field, replace
 
 from ...errors import SolveError
@@ -18,7 +19,7 @@ from ...units import R
 from ..cautions import cautions_for
 from ..control_volume import (RESIDUAL_LIMIT, SGEN_TOLERANCE, Term, Unknown, heat_direction_warnings,
                               surroundings_entropy)
-from .explain import explain
+from .explain import WORDING, RoundOff, explain
 from .problem import Problem
 
 
@@ -45,6 +46,8 @@ class Result:
     equations: tuple[str, ...]
     warnings: tuple[str, ...]
     cautions: tuple[str, ...]
+    round_off: RoundOff
+    """the scales below which a computed energy or entropy is round-off, shown as 0"""
     unknowns: dict[Unknown, float] = field(default_factory=dict)
     """the value found for each unknown [J for heat and work, mol for the amount]"""
 
@@ -82,12 +85,15 @@ class Result:
             "dS_system": quantity(self.dS_system, "J/K"),
             "dS_surroundings": quantity(self.dS_surroundings, "J/K"),
             "S_gen": quantity(self.S_gen, "J/K"),
+            "round_off": {"relative": self.round_off.relative, "energy": quantity(self.round_off.energy, "J"),
+                          "entropy": quantity(self.round_off.entropy, "J/K")},
             "residual": self.residual,
             "iterations": self.iterations,
             "method": self.method,
             "equations": list(self.equations),
             "warnings": list(self.warnings),
             "cautions": list(self.cautions),
+            "wording": WORDING,
         }
 
 
@@ -140,13 +146,22 @@ def result_of(s, final_point: Point, lin: dict, method: str) -> Result:
     for st in (*initial, final):
         warnings += [f"{st.name}: {w}" for w in p.model.warnings(st.point)]
     unknowns = {k: float(v) for k, v in lin.items()}
+    round_off = _round_off(n, (*initial, final), terms, (dU_ig, dU_dep, p.dKE, p.dPE), (dS, dS_surr))
     result = Result(
         problem=p, initial=initial, final=final, terms=tuple(terms), n=n, dU=dU, dU_ig=dU_ig,
         dU_dep=dU_dep, dS_system=dS, dS_surroundings=dS_surr, S_gen=S_gen, residual=residual,
         iterations=evaluations, method=method, equations=(), warnings=tuple(warnings),
-        cautions=tuple(cautions_for(p.p_atm, initial, final)), unknowns=unknowns,
+        cautions=tuple(cautions_for(p.p_atm, initial, final)), round_off=round_off, unknowns=unknowns,
     )
     return replace(result, equations=tuple(explain(result)))
+
+
+def _round_off(n: float, states, terms, energies, entropies) -> RoundOff:
+    """The scales the balances are solved against: energy, the largest of n R T at each state
+    and of each energy term [J]; entropy, the largest of n R and the entropy changes [J/K]."""
+    E = [n * R * st.point.T for st in states] + [t.value for t in terms] + list(energies)
+    S = [n * R] + [x for x in entropies if x is not None]
+    return RoundOff(max(abs(x) for x in E if math.isfinite(x)), max(abs(x) for x in S if math.isfinite(x)))
 
 
 def _sgen_cause(p: Problem, terms) -> str:
