@@ -379,7 +379,8 @@ async def test_leaving_a_step_commits_it_and_quitting_clean_does_not_ask(tmp_pat
 
 
 async def test_the_draft_restores_uncommitted_text_exactly(tmp_path, author):
-    """What was typed and not committed comes back from the draft, bad text and all."""
+    """What was typed and not committed comes back from the draft, bad text and all; a step
+    with a field at fault is not committed when it is left, a step put right is."""
     app = new_app(tmp_path, "drafted.jbk")
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
@@ -393,6 +394,16 @@ async def test_the_draft_restores_uncommitted_text_exactly(tmp_path, author):
     assert reopened.worksheet.heading.atmosphere == "0.98 barr"
     assert reopened.worksheet.system.inside == "the gas"
     assert reopened.step == "boundary"
-    assert reopened.dirty() == ("system",)  # leaving step 1 committed it, to the record
-    assert [e.kind for e in reopened.entries()] == ["opening", "purpose and basis"]
-    assert reopened.committed.heading.atmosphere == "0.98 barr"  # kept as typed there too
+    assert reopened.dirty() == ("worksheet", "system")  # step 1 was left at fault: not committed
+    assert reopened.entries() == []  # nothing committed, so no record yet
+
+    app = JoulebookApp(reopened)
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        await pilot.press("ctrl+o")
+        await pilot.pause(0.2)
+        await settle(pilot)
+        await fill(pilot, in_row("atmosphere"), "0.98 bar")
+        await next_step(pilot)
+        assert kinds(app.session) == ["opening", "system boundary", "purpose and basis"]  # in the order left
+        assert app.session.record.worksheet().heading.atmosphere == "0.98 bar"

@@ -91,3 +91,64 @@ async def test_a_final_temperature_that_contradicts_isothermal_is_shown_at_it(tm
         assert "isothermal" in shown and "remove one" in shown, shown
         assert app.statuses["states"] == "invalid" and step_line(app, 4) == "✗1 4 States"
         assert not app.check.ready
+
+
+# -- what the record receives ------------------------------------------------------------
+def notices(seen: list) -> list[str]:
+    return [m.notification.message for m in seen if type(m).__name__ == "Notify"]
+
+
+async def test_a_step_at_fault_stays_in_the_draft_and_the_record_receives_it_once_put_right(tmp_path, author):
+    import json
+
+    app = sample_app(tmp_path, DEMO)
+    app.session.step = "states"
+    session = app.session
+    seen: list = []
+    async with app.run_test(size=SIZE, message_hook=seen.append) as pilot:
+        await ready(pilot)
+        entries = len(session.entries())
+        await fill(pilot, in_row("prop-T", "initial-0"), "-5 K")
+        await next_step(pilot)  # leaving the step: nothing of it is committed
+        assert session.step == "terms"
+        assert len(session.entries()) == entries
+        assert session.dirty() == ("initial",) and session.record.worksheet().initial[0].props["T"] == "20 degC"
+        assert json.loads(session.draft_path.read_text())["worksheet"]["initial"][0]["props"]["T"] == "-5 K"
+        assert any("4 States not committed: 1 field at fault (kept in the draft)" in n for n in notices(seen))
+        await pilot.press("ctrl+s")  # says what it saved: nothing, and why
+        await settle(pilot)
+        assert notices(seen)[-1] == "step 4 States not committed: 1 field at fault (kept in the draft)"
+        assert len(session.entries()) == entries
+
+        await pilot.press("ctrl+o")
+        await pilot.pause(0.2)
+        await settle(pilot)
+        await fill(pilot, in_row("prop-T", "initial-0"), "25 degC")
+        await settle(pilot)
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+        assert notices(seen)[-1] == f"committed States to {session.path.name} (entry {entries + 1})"
+        entry = session.entries()[-1]
+        assert entry.kind == "initial state" and entry.data["initial"][0]["T"] == "25 degC"
+        assert session.dirty() == ()
+
+
+async def test_ctrl_r_on_a_sheet_not_ready_says_why_and_goes_to_the_first_field_at_fault(tmp_path, author):
+    app = sample_app(tmp_path, DEMO)
+    app.session.step = "states"
+    seen: list = []
+    async with app.run_test(size=SIZE, message_hook=seen.append) as pilot:
+        await ready(pilot)
+        await fill(pilot, in_row("prop-P", "initial-0"), "150 bargg")
+        await next_step(pilot)
+        await next_step(pilot)
+        assert app.session.step == "constraints"
+        await pilot.press("ctrl+r")
+        await pilot.pause(0.3)
+        await settle(pilot)
+        assert app.session.step == "states"
+        assert in_row("prop-P", "initial-0")(app.focused)
+        said = notices(seen)[-1]
+        assert said.startswith("not solved: 1 field at fault; the first, in step 4: P (initial 'V-101')")
+        assert "150 bargg" in said
+        assert app.outcome is None  # nothing was solved

@@ -26,7 +26,7 @@ from balance.worksheet import Worksheet
 from . import offload
 from .background import BackgroundWork, Outcome
 from .session import Session
-from .steps import BY_ID, ORDER, STEPS, neighbour, screen_class
+from .steps import BY_ID, ORDER, SECTION_STEPS, STEP_SECTIONS, STEPS, neighbour, screen_class
 
 UNIT_SETS = ("si", "metric", "us")
 UNIT_NAMES = {"si": "SI", "metric": "metric engineering", "us": "US customary"}
@@ -78,6 +78,10 @@ class JoulebookApp(BackgroundWork, App):
         self._warm_first = warm
         self._version = 0
         self._busy_tasks: dict[str, str] = {}
+        self.focus_on_open = None
+        """a FieldProblem whose field the next step screen focuses as it opens (ctrl+r)"""
+        self._after_check: list = []
+        """what waits for the check of the worksheet as it stands (committing, solving)"""
         self._visited: set[str] = set(session.extras.get("visited", ()))
         self.set_reactive(JoulebookApp.worksheet, session.worksheet)
         self.set_reactive(JoulebookApp.units, session.units)
@@ -164,8 +168,8 @@ class JoulebookApp(BackgroundWork, App):
             self.session.set_extra("visited", sorted(self._visited))
 
     def goto(self, step: str) -> None:
-        """Leave the current step (committing it) and open ``step``."""
-        self.commit_all(quiet=True)
+        """Leave the current step (committing it, unless a field of it is at fault) and open ``step``."""
+        self.commit_all(quiet=True, leaving=self.session.step)
         self._visit(step)
         self.session.set_step(step)
         self.advice = None
@@ -184,8 +188,6 @@ class JoulebookApp(BackgroundWork, App):
             self.goto(prev)
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
-        if action == "solve":
-            return True if self.check is not None and self.check.ready else None
         if action == "next_step":
             return True if neighbour(self.session.step, 1) else None
         if action == "previous_step":
@@ -195,21 +197,91 @@ class JoulebookApp(BackgroundWork, App):
         return True
 
     # -- committing and quitting ---------------------------------------------------------
-    def commit_all(self, quiet: bool = False) -> list:
+    def checked_now(self) -> bool:
+        """Whether the latest check is of the worksheet as it stands."""
+        check = self.check
+        return check is not None and check.worksheet == self.session.worksheet
+
+    def when_checked(self, then) -> None:
+        """Call ``then`` once the check of the worksheet as it stands is in: now when it is,
+        else as it lands (an edit has started it). Committing waits for it: a step is
+        committed only when none of its fields is at fault."""
+        if self.checked_now():
+            then()
+        else:
+            self._after_check.append(then)
+
+    def _run_after_check(self, force: bool = False) -> None:
+        """The work waiting for the check (``force``: the check failed; do it on each
+        field's own check)."""
+        if not self._after_check or not (force or self.checked_now()):
+            return
+        waiting, self._after_check = self._after_check, []
+        for then in waiting:
+            then()
+
+    def faults(self) -> dict[str, int]:
+        """Each step with fields at fault and how many, by the check of the worksheet as it
+        stands (each field's own check while the domain's is on its way)."""
+        if self.checked_now():
+            problems = self.check.problems
+        else:
+            from .analysis import field_problems
+
+            problems = field_problems(self.session.worksheet) if self.units_ready else ()
+        places: dict[str, set] = {}
+        for p in problems:
+            places.setdefault(p.step, set()).add(p.place)
+        return {step: len(found) for step, found in places.items()}
+
+    def hold_faulty(self) -> dict[str, int]:
+        """Set the session's hold: the sections of the steps with fields at fault, which no
+        commit writes to the record. Returns those steps' counts."""
+        faults = self.faults()
+        self.session.hold = tuple(section for step in faults for section in STEP_SECTIONS.get(step, ()))
+        return faults
+
+    def commit_all(self, quiet: bool = False, leaving: str | None = None, then=None) -> None:
+        """Commit every changed step that has no field at fault, once the check of the
+        worksheet as it stands is in; a step at fault stays in the draft, and is named
+        (always when ``quiet`` is False; when quiet, only ``leaving``, the step left). Then
+        ``then(ok)``, ok False when the record refused to be written."""
+        self.when_checked(lambda: self._commit_now(quiet, leaving, then))
+
+    def _commit_now(self, quiet: bool, leaving: str | None, then) -> None:
+        faults = self.hold_faulty()
+        wanted = [s for s in self.session.dirty() if s not in self.session.hold]
+        ok = True
         try:
             written = self.session.commit()
         except BalanceError as exc:
             self.notify(f"not committed: {exc}", severity="error", timeout=10)
-            return []
+            written, ok = [], False
         except OSError as exc:
             self.notify(f"not committed: {self.session.path}: {exc.strerror}", severity="error", timeout=10)
-            return []
+            written, ok = [], False
         self.dirty = self.session.dirty()
-        if written and not quiet:
-            self.notify(f"committed {len(written)} entr{'y' if len(written) == 1 else 'ies'} to "
-                        f"{self.session.path.name}")
+        held = [step for step in self.session.dirty_steps() if step in faults]
+        if not quiet or (leaving in held):
+            self.notify(self._commit_words(written, wanted, held if not quiet else [leaving], faults),
+                        severity="warning" if held else "information", timeout=8 if held else 5)
         self._update_statuses()
-        return written
+        if then is not None:
+            then(ok)
+
+    def _commit_words(self, written: list, sections: list[str], held: list[str], faults: dict[str, int]) -> str:
+        """What a commit saved, and what it left in the draft, in words."""
+        parts = []
+        if written:
+            steps = dict.fromkeys(SECTION_STEPS[s].title for s in sections if s in SECTION_STEPS)
+            seqs = [e.seq for e in written]
+            which = f"entry {seqs[0]}" if len(seqs) == 1 else f"entries {seqs[0]}–{seqs[-1]}"
+            parts.append(f"committed {', '.join(steps)} to {self.session.path.name} ({which})")
+        for step in held:
+            n = faults.get(step, 0)
+            parts.append(f"step {BY_ID[step].number} {BY_ID[step].title} not committed: {n} field"
+                         f"{'' if n == 1 else 's'} at fault (kept in the draft)")
+        return "; ".join(parts) or "nothing to commit: the record holds every step as typed"
 
     def after_record_change(self) -> None:
         """The record was written to outside a commit (comment, resolution, sign-off)."""
@@ -218,9 +290,6 @@ class JoulebookApp(BackgroundWork, App):
         self._bindings_changed()
 
     def action_commit(self) -> None:
-        if not self.session.dirty():
-            self.notify("nothing to commit")
-            return
         self.commit_all()
 
     async def action_quit(self) -> None:
@@ -229,21 +298,54 @@ class JoulebookApp(BackgroundWork, App):
             return
         from .screens.confirm_quit import ConfirmQuitScreen
 
+        def committed(ok: bool) -> None:
+            if ok:
+                self.exit()  # a step at fault is in the draft, as the dialog said
+
         def answered(choice: str | None) -> None:
             if choice == "commit":
-                if self.commit_all(quiet=True) or not self.session.dirty():
-                    self.exit()
+                self.commit_all(quiet=True, then=committed)
             elif choice == "keep":
                 self.session.save_draft()
                 self.exit()
 
-        self.push_screen(ConfirmQuitScreen(self.session.dirty_steps(), self.session.draft_path.name), answered)
+        faults = self.faults()
+        held = tuple(step for step in self.session.dirty_steps() if step in faults)
+        self.push_screen(ConfirmQuitScreen(self.session.dirty_steps(), self.session.draft_path.name, held),
+                         answered)
+
+    def go_to_problem(self, problem) -> None:
+        """Open the step where ``problem`` is typed and put the focus on its field."""
+        if self.session.step != problem.step:
+            self.focus_on_open = problem  # the step's screen focuses it once it is shown
+            self.goto(problem.step)
+        else:
+            self.screen.focus_problem(problem)
+
+    def action_possible(self, action: str) -> bool:
+        """Whether an action that always answers (it says why not) would do its work now:
+        the key bar greys it otherwise."""
+        if action == "solve":
+            return self.check is not None and self.check.ready
+        return True
 
     # -- solving ------------------------------------------------------------------------
     def action_solve(self) -> None:
-        if self.check is None or not self.check.ready:
-            self.notify(self.check.message if self.check else "still counting the degrees of freedom",
-                        severity="warning")
+        self.when_checked(self._solve_when_checked)
+
+    def _solve_when_checked(self) -> None:
+        check = self.check
+        if check is None or not check.ready:
+            message = check.message if check is not None else "still counting the degrees of freedom"
+            first = check.problems[0] if check is not None and check.problems else None
+            if first is not None:
+                self.go_to_problem(first)
+                n = len({p.place for p in check.problems})
+                message = (f"not solved: {n} field{'' if n == 1 else 's'} at fault; the first, in step "
+                           f"{BY_ID[first.step].number}: {first.message}")
+            else:
+                message = f"not solved: {message}"
+            self.notify(message, severity="warning", timeout=10, markup=False)
             return
         self.commit_all(quiet=True)
         if self.session.step != "results":

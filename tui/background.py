@@ -154,9 +154,11 @@ class BackgroundWork:
         self._set_busy("check", None)
         was_ready = self.check is not None and self.check.ready
         self.check = message.check
+        self.hold_faulty()  # no commit writes a step at fault
         self._update_statuses()
         if message.check.ready != was_ready:
             self._bindings_changed()  # grey or ungrey Solve
+        self._run_after_check()
 
     def start_advice(self) -> None:
         if not self.units_ready:
@@ -185,7 +187,7 @@ class BackgroundWork:
 
     def start_solve(self) -> None:
         self.commit_all(quiet=True)  # the record solves what it holds: commit first
-        ws = self.session.worksheet
+        ws = self.session.worksheet  # ready, so no field is at fault: the commit writes it all
         self._set_busy("solve", self._slow_text("solving") if self._slow(ws) else "solving")
         self._solve_worker(ws)
 
@@ -266,6 +268,8 @@ class BackgroundWork:
             return
         group = event.worker.group
         self._set_busy({"check": "check", "advice": "advice", "solve": "solve"}.get(group, group), None)
+        if group == "check":
+            self._run_after_check(force=True)  # committing waits no longer: each field's own check holds
         error = event.worker.error
         self.notify(f"{group}: {type(error).__name__}: {error}", title="internal error", severity="error",
                     timeout=15)

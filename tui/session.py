@@ -92,6 +92,9 @@ class Session:
     notes: list[str] = field(default_factory=list)
     """what the app should tell the user on opening (e.g. a draft restored)"""
     author: str | None = None
+    hold: tuple[str, ...] = ()
+    """sections never committed while they are so: fields of theirs are at fault (the app
+    sets it from its check); they stay in the draft, uncommitted, until they are put right"""
     _lock: threading.RLock = field(default_factory=threading.RLock, repr=False, compare=False)
     _draft: DraftFile | None = field(default=None, repr=False, compare=False)
 
@@ -180,13 +183,18 @@ class Session:
         dirty = set(self.dirty())
         return tuple(step for step, secs in STEP_SECTIONS.items() if dirty & set(secs))
 
+    def held(self) -> tuple[str, ...]:
+        """The uncommitted sections that a commit leaves in the draft (:attr:`hold`)."""
+        return tuple(s for s in self.dirty() if s in self.hold)
+
     # -- committing ---------------------------------------------------------
     def commit(self, sections=None) -> list:
         """Append each changed section (of ``sections``, default all) to the record,
-        creating it at the first commit. Returns the entries written; raises
+        creating it at the first commit, except those held (:attr:`hold`: fields of theirs
+        are at fault; they stay in the draft). Returns the entries written; raises
         BalanceError if the record refuses a section."""
         with self._lock:
-            wanted = [s for s in self.dirty() if sections is None or s in sections]
+            wanted = [s for s in self.dirty() if (sections is None or s in sections) and s not in self.hold]
             if not wanted:
                 return []
             if self.record is None:

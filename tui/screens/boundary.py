@@ -75,7 +75,7 @@ temperature for heat from a hotter jacket (that hides the entropy generated).
         ws = self.worksheet
         yield Label("Kind of system", classes="form-label")
         yield ChoiceList(KINDS, ws.system.kind, disabled_values=tuple(RESERVED), id="kind")
-        yield ProblemLine(id="system-problem")
+        yield ProblemLine(about="#kind", id="system-problem")
         yield FieldRow("Inside", ws.system.inside, id="inside", placeholder="what the boundary encloses",
                        tooltip="What the boundary encloses")
         default = self.app.session.extras.get("T_boundary", "")

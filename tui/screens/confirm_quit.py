@@ -21,6 +21,7 @@ class ConfirmQuitScreen(ModalScreen[str | None]):
         border: round $warning; background: $surface; padding: 0 1;
     }
     ConfirmQuitScreen Static { margin-bottom: 1; }
+    ConfirmQuitScreen .confirm-quit--held { color: $text-warning; }
     ConfirmQuitScreen Horizontal { height: auto; align: center middle; }
     ConfirmQuitScreen Button { margin: 0 1; }
     """
@@ -33,17 +34,24 @@ class ConfirmQuitScreen(ModalScreen[str | None]):
                 tooltip="Quit without committing; the edits stay in the draft"),
     ]
 
-    def __init__(self, steps: tuple[str, ...], draft_name: str) -> None:
+    def __init__(self, steps: tuple[str, ...], draft_name: str, held: tuple[str, ...] = ()) -> None:
         super().__init__()
         self.steps = steps
         self.draft_name = draft_name
+        self.held = held
+        """the steps with fields at fault: committing leaves them in the draft"""
 
     def compose(self) -> ComposeResult:
         names = ", ".join(f"{BY_ID[s].number} {BY_ID[s].title}" for s in self.steps) or "the worksheet"
         with Vertical() as box:
             box.border_title = "Uncommitted edits"
             yield Static(f"Edits to {names} are not committed to the record. They are kept in "
-                         f"{self.draft_name} either way and come back when you reopen it.")
+                         f"{self.draft_name} either way and come back when you reopen it.", markup=False)
+            if self.held:
+                faulty = ", ".join(f"{BY_ID[s].number} {BY_ID[s].title}" for s in self.held)
+                yield Static(f"Fields of {faulty} are at fault: committing leaves "
+                             f"{'it' if len(self.held) == 1 else 'them'} in the draft only.",
+                             classes="confirm-quit--held", markup=False)
             with Horizontal():
                 yield Button("Commit and quit (c)", id="commit", variant="primary")
                 yield Button("Quit, keep draft (k)", id="keep")

@@ -58,7 +58,7 @@ its exponent n.
         yield Label("Constraints (space ticks)", classes="form-label")
         yield SelectionList[str](*[Selection(DESCRIPTIONS[c], c, c in pr.constraints) for c in CONSTRAINTS],
                                  id="constraints")
-        yield ProblemLine(id="constraints-problem")
+        yield ProblemLine(about="#constraints", id="constraints-problem")
         yield FieldRow("Polytropic n", pr.n, kind="dimensionless", field_label="polytropic n", id="n",
                        label_width=13, tooltip="The exponent of P vⁿ = const, e.g. 1.3")
         yield FieldRow("ΔKE", pr.dKE, kind="energy", field_label="ΔKE", id="dKE", label_width=13,

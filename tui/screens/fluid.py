@@ -59,7 +59,7 @@ liquid (use the incompressible or the reference model).
         yield SpeciesPicker(f.species, id="picker")
         yield Label("Property model", classes="form-label")
         yield ChoiceList(MODELS, _canonical(f.model), disabled_values=self._disabled(f.species), id="model")
-        yield ProblemLine(id="model-problem")
+        yield ProblemLine(about="#model", id="model-problem")
         yield FieldRow("Overrides", overrides_text(f.overrides), id="overrides",
                        placeholder="none; e.g. Tc = 126.2 K; omega = 0.04",
                        tooltip="Constants that replace the data's, NAME = VALUE; separated by ;")

@@ -64,7 +64,7 @@ direction when you switch it.
         yield ChoiceList([(k, CONVENTION_LABELS[k]) for k in CONVENTIONS], h.convention, id="convention")
         yield FieldRow("Atmosphere", h.atmosphere, kind="pressure", field_label="atmosphere", id="atmosphere",
                        tooltip="Atmospheric pressure for gauge readings (barg, psig)")
-        yield ProblemLine(id="heading-problem")
+        yield ProblemLine(about="#title Input", id="heading-problem")
 
     def problem_targets(self) -> dict:
         return {("worksheet", None, "atmosphere"): self.query_one("#atmosphere", FieldRow),

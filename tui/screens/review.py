@@ -10,6 +10,7 @@ from textual.widgets import Button, DataTable, Static
 
 from balance.errors import BalanceError
 
+from ..steps import BY_ID, ORDER
 from .sign import SignRequest, SignScreen
 from .step import StepScreen
 from .text_prompt import TextPromptScreen
@@ -171,7 +172,18 @@ that starts a new revision, which needs signing again.
     def _sign(self, request: SignRequest | None) -> None:
         if request is None:
             return
-        self.app.commit_all(quiet=True)
+        self.app.commit_all(quiet=True, then=lambda ok: self._sign_committed(request, ok))
+
+    def _sign_committed(self, request: SignRequest, ok: bool) -> None:
+        if not ok:
+            return  # the commit said why
+        faults = self.app.faults()
+        if faults:
+            step = next(s for s in ORDER if s in faults)
+            self.notify(f"not signed off: fields of step {BY_ID[step].number} {BY_ID[step].title} are at fault "
+                        f"({faults[step]}); a sign-off covers a worksheet the record holds whole",
+                        severity="error", timeout=10)
+            return
         if not self.app.solve_before_signing(lambda: self._sign_now(request)):
             self._sign_now(request)
 

@@ -91,6 +91,22 @@ class StepScreen(Screen):
             return  # an older worksheet's: the count of this one is on its way
         self.place_problems(check.problems_in(self.STEP))
 
+    def focus_problem(self, problem) -> bool:
+        """Put the focus where ``problem`` is typed (its field, or what its part's line is
+        about), scrolled into view; False when this step shows no such place."""
+        targets = self.problem_targets()
+        for place in (problem.place, (problem.part, problem.index, ""), (problem.part, None, "")):
+            target = targets.get(place)
+            if target is None:
+                continue
+            widget = target.input if isinstance(target, FieldRow) else target.focus_target()
+            if widget is None or not widget.focusable:
+                continue
+            widget.focus()
+            widget.scroll_visible()
+            return True
+        return False
+
     def place_problems(self, problems) -> None:
         """Each problem at its field; one whose field has no place here goes to its part,
         or to the part's list as a whole."""
@@ -106,6 +122,10 @@ class StepScreen(Screen):
 
     def _arm(self) -> None:
         self._ready = True
+        problem = self.app.focus_on_open
+        if problem is not None and problem.step == self.STEP:
+            self.app.focus_on_open = None
+            self.focus_problem(problem)
 
     # -- edits -----------------------------------------------------------------
     def collect(self, ws: Worksheet) -> Worksheet:

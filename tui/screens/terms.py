@@ -53,11 +53,11 @@ used as the boundary temperature of a hotter jacket.
         ws = self.worksheet
         yield Static(self._convention_note(ws), classes="hint", id="convention-note")
         yield Label("Heat terms", classes="form-label")
-        yield ProblemLine(id="heat-problem")
+        yield ProblemLine(about="#heat-forms Input", id="heat-problem")
         with Vertical(id="heat-forms"):
             yield from self._heat_forms(ws)
         yield Label("Work terms", classes="form-label")
-        yield ProblemLine(id="work-problem")
+        yield ProblemLine(about="#work-forms Input", id="work-problem")
         with Vertical(id="work-forms"):
             yield from self._work_forms(ws)
         with Horizontal(classes="button-row"):

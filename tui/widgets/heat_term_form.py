@@ -44,7 +44,7 @@ class HeatTermForm(TermForm):
             yield FieldRow("T bound.", self.term.T_boundary, kind="temperature", id="T_boundary",
                            positive=True, field_label=f"boundary temperature of heat term {self.index + 1}",
                            label_width=9, tooltip="Temperature of the wall or reservoir the heat crosses")
-        yield ProblemLine()
+        yield ProblemLine(about="#value Input")
 
     def collect(self) -> HeatTerm:
         direction = self.query_one("#direction", Select).value

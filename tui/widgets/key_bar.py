@@ -43,7 +43,9 @@ class KeyBar(Static):
                 continue
             seen.add(binding.action)
             shown = binding.key_display or self.app.get_key_display(binding)
-            if active.enabled:
+            possible = getattr(self.app, "action_possible", None)
+            # greyed: the action cannot run, or it only says why not (ctrl+r on a sheet not ready)
+            if active.enabled and (possible is None or possible(binding.action)):
                 parts += [(f" {shown}", "bold $footer-key-foreground"), (f" {binding.description} ", "")]
             else:
                 parts += [(f" {shown} {binding.description} ", "$text-disabled")]

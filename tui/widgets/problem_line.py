@@ -21,8 +21,11 @@ class ProblemLine(Static):
     ProblemLine.-shown { display: block; }
     """
 
-    def __init__(self, id: str | None = None, classes: str | None = None) -> None:
+    def __init__(self, about: str = "", id: str | None = None, classes: str | None = None) -> None:
+        """``about``: a selector, within the line's parent, of the widget to focus to put it
+        right (the list of constraints, the model list, the state's first property)."""
         super().__init__("", id=id, classes=classes, markup=False)
+        self.about = about
         self._problem = ""
 
     @property
@@ -35,3 +38,10 @@ class ProblemLine(Static):
         self._problem = text
         self.update(f"✗ {text}" if text else "")
         self.set_class(bool(text), "-shown")
+
+    def focus_target(self):
+        """The widget to focus to put the problem right (None: nothing to focus)."""
+        if not self.about or self.parent is None:
+            return None
+        found = self.parent.query(self.about)
+        return found.first() if found else None

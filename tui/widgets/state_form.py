@@ -100,7 +100,7 @@ class StateForm(Widget):
                 if initial and key != "V":
                     row.add_class("state-form--props")
                 yield row
-        yield ProblemLine(classes="state-form--problem")
+        yield ProblemLine(about=self._first_field(s.empty), classes="state-form--problem")
 
     @property
     def part(self) -> tuple[str, int | None]:
@@ -139,5 +139,11 @@ class StateForm(Widget):
                 amount[key] = text
         return StateInput(name=self.query_one("#name", FieldRow).value, props=props, amount=amount, empty=empty)
 
+    @staticmethod
+    def _first_field(empty: bool) -> str:
+        """The field to go to for a problem of the state as a whole."""
+        return "#amount-V Input" if empty else "#prop-T Input"
+
     def on_checkbox_changed(self, event: Checkbox.Changed) -> None:
         self.set_class(event.value, "-empty")
+        self.query_one(ProblemLine).about = self._first_field(event.value)

@@ -47,7 +47,7 @@ class WorkTermForm(TermForm):
             yield Select(DIRECTIONS, value=other if negative else self.positive_direction, allow_blank=False,
                          compact=True, id="direction",
                          tooltip="Whether the work is done on the system or by it")
-        yield ProblemLine()
+        yield ProblemLine(about="#value Input")
 
     def collect(self) -> WorkTerm:
         direction = self.query_one("#direction", Select).value
