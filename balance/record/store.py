@@ -120,7 +120,7 @@ def _take(fd: int, path: Path, wait: float) -> None:
             raise InputError(str(path), f"another writer has held its folder for more than {wait:g} s; "
                                         "nothing was written: try again")
         time.sleep(min(left, pause * random.uniform(0.5, 1.5)))
-        pause = min(pause * 2, 0.02)
+        pause = min(pause * 2, 0.005)
 
 
 #: The temporary file of a write in progress (see the module docstring); nothing else is named so.
