@@ -93,7 +93,8 @@ def kind_of(name: str, field: str = "system.kind") -> Kind:
         return KINDS[name]
     if name in RESERVED:
         raise InputError(field, RESERVED[name])
-    raise InputError(field, f"expected {' or '.join(repr(k) for k in KINDS)}; got {name!r}")
+    got = repr(name) if len(name) <= 60 else f"{name[:60]!r}... ({len(name)} characters)"
+    raise InputError(field, f"expected {' or '.join(repr(k) for k in KINDS)}; got {got}")
 
 
 def known(name: str) -> bool:

@@ -277,11 +277,21 @@ def _norm(name: str) -> str:
     return "".join(ch for ch in name.lower() if ch.isalnum())
 
 
+#: The longest species name looked up [characters]: the longest name in the data is some thirty.
+MAX_NAME = 100
+
+
 def lookup(name: str, field: str = "species") -> Species:
     """A species by id, formula, name, CAS number or alias (case-insensitive)."""
-    key = _index().get(_norm(name or ""))
+    if not isinstance(name, str):
+        raise InputError(field, f"must be a species name; got {type(name).__name__}")
+    if len(name) > MAX_NAME:  # before it is normalised and matched
+        raise InputError(field, f"is {len(name)} characters long; a species is named by its id, formula, "
+                                f"name or CAS number, at most {MAX_NAME} characters (`joulebook species` lists them)")
+    norm = _norm(name)
+    key = _index().get(norm)
     if key is None:
-        close = [s for s in _index() if _norm(name or "")[:3] and s.startswith(_norm(name)[:3])]
+        close = [s for s in _index() if norm[:3] and s.startswith(norm[:3])]
         hint = ""
         if close:
             names = sorted({catalogue()[_index()[c]].id for c in close})[:6]

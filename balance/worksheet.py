@@ -209,12 +209,22 @@ class Worksheet:
 
     @classmethod
     def from_toml(cls, text: str, source: str = "worksheet") -> "Worksheet":
+        """A worksheet from its TOML text; its size and nesting are bounded before it is parsed."""
         import tomllib  # here: a new worksheet in the app reads no TOML
 
+        if not isinstance(text, str):
+            raise InputError(source, f"must be TOML text; got {type(text).__name__}")
+        if len(text) > MAX_WORKSHEET:
+            raise InputError(source, f"is {len(text)} characters long; a worksheet is at most {MAX_WORKSHEET}")
+        deep = _nesting_problem(text)
+        if deep:
+            raise InputError(source, deep)
         try:
             data = tomllib.loads(text)
         except tomllib.TOMLDecodeError as exc:
             raise InputError(source, f"is not valid TOML: {exc}") from None
+        except ValueError:  # an integer of more digits than Python converts (4300)
+            raise InputError(source, "holds a number too long to read (thousands of digits); no field takes one") from None
         return cls.from_dict(data)
 
     @classmethod
@@ -242,7 +252,7 @@ class Worksheet:
         if heading.convention not in CONVENTIONS:
             raise InputError(
                 "worksheet.convention",
-                f"expected one of {', '.join(CONVENTIONS)}; got {heading.convention!r}",
+                f"expected one of {', '.join(CONVENTIONS)}; got {shown(heading.convention)}",
             )
         fl = _table(data, "fluid")
         _only(fl, ("species", "model", "overrides"), "fluid")
@@ -273,14 +283,14 @@ class Worksheet:
             _only(t, ("name", "kind", "W"), where)
             w = WorkTerm(**{k: _text(t, k, where) for k in t})
             if w.kind not in WORK_KINDS:
-                raise InputError(f"{where}.kind", f"expected one of {', '.join(WORK_KINDS)}; got {w.kind!r}")
+                raise InputError(f"{where}.kind", f"expected one of {', '.join(WORK_KINDS)}; got {shown(w.kind)}")
             work.append(w)
         pr = _table(data, "process")
         _only(pr, ("constraints", "n", "dKE", "dPE"), "process")
         constraints = tuple(_text_list(pr, "constraints", "process"))
         for c in constraints:
             if c not in CONSTRAINTS:
-                raise InputError("process.constraints", f"unknown constraint {c!r}; expected any of {', '.join(CONSTRAINTS)}")
+                raise InputError("process.constraints", f"unknown constraint {shown(c)}; expected any of {', '.join(CONSTRAINTS)}")
         process = Process(
             constraints=constraints,
             **{k: _text(pr, k, "process") for k in ("n", "dKE", "dPE") if k in pr},
@@ -306,6 +316,49 @@ def place(ws: "Worksheet", field: str, message: str) -> FieldProblem:
         return FieldProblem(field, message, m.group(1), int(m.group(2)) - 1, m.group(3) or "")
     head, _, key = field.partition(".")
     return FieldProblem(field, message, head if head in SECTIONS else "", None, key)
+
+
+# -- how much a worksheet may hold: bounded before anything reads or walks it ----------------------
+#: The longest worksheet text [characters]; one is a few thousand.
+MAX_WORKSHEET = 1_000_000
+#: The deepest nesting of arrays and inline tables (Python's TOML reader recurses once a level);
+#: a worksheet needs one (a list of constraints).
+MAX_DEPTH = 32
+#: The longest text of one value [characters]: a title, an assumption, a sketch.
+MAX_VALUE = 100_000
+#: The longest name of a compartment, a term or a key [characters].
+MAX_NAME = 200
+#: The most texts in a list (assumptions, constraints).
+MAX_ITEMS = 1000
+
+#: What the TOML reader does not look into for nesting (strings and comments), and the brackets.
+_TOML_TOKENS = re.compile(
+    r'"""(?:[^"\\]|\\.|"(?!""))*"{3,5}|"(?:[^"\\\n]|\\.)*"'
+    r"|'''.*?'{3,5}|'[^'\n]*'|#[^\n]*"
+    r"|(?P<open>[\[{])|(?P<close>[\]}])", re.S)
+
+
+def _nesting_problem(text: str) -> str:
+    """Where arrays and inline tables nest deeper than MAX_DEPTH, found without parsing ('' when
+    they do not). A string the scan misses (unterminated) is where the parser stops anyway."""
+    if text.count("[") + text.count("{") <= MAX_DEPTH:  # cannot nest deeper: the usual case
+        return ""
+    depth = 0
+    for m in _TOML_TOKENS.finditer(text):
+        if m.lastgroup == "open":
+            depth += 1
+            if depth > MAX_DEPTH:
+                line = text.count("\n", 0, m.start()) + 1
+                return (f"nests arrays and tables more than {MAX_DEPTH} levels deep (line {line}); "
+                        "a worksheet needs one level (a list of constraints)")
+        elif m.lastgroup == "close":
+            depth = max(0, depth - 1)
+    return ""
+
+
+def shown(text: str, limit: int = 60) -> str:
+    """``text`` as a message quotes it: its repr, shortened past ``limit`` characters."""
+    return repr(text) if len(text) <= limit else f"{text[:limit]!r}... ({len(text)} characters)"
 
 
 def _state_dict(s: StateInput) -> dict:
@@ -335,6 +388,7 @@ def _state(t: dict, where: str, default_name: str) -> StateInput:
 def _only(table: dict, allowed, where: str) -> None:
     for key in table:
         if key not in allowed:
+            key = key if len(key) <= MAX_NAME else shown(key, MAX_NAME)
             name = f"{where}.{key}" if where else key
             raise InputError(name, f"is not a known key here; expected one of {', '.join(allowed)}")
 
@@ -356,14 +410,20 @@ def _array(data: dict, key: str) -> list[dict]:
 
 
 def _text(table: dict, key: str, where: str) -> str:
-    """A value as the text a person typed; numbers are kept as their text."""
+    """A value as the text a person typed; numbers are kept as their text. A name is at most
+    MAX_NAME characters, any other text MAX_VALUE."""
     value = table.get(key, "")
     if isinstance(value, bool):
         raise InputError(f"{where}.{key}", f"must be text or a number; got {value!r}")
     if isinstance(value, (int, float)):
+        if isinstance(value, int) and abs(value) >= 10 ** 30:  # no field takes it, and its text is long
+            raise InputError(f"{where}.{key}", f"is an integer of {len(str(abs(value)))} digits; no field takes one")
         return repr(value)
     if not isinstance(value, str):
         raise InputError(f"{where}.{key}", f"must be text; got {type(value).__name__}")
+    limit = MAX_NAME if key == "name" else MAX_VALUE
+    if len(value) > limit:
+        raise InputError(f"{where}.{key}", f"is {len(value)} characters long; at most {limit} are taken here")
     return value
 
 
@@ -373,4 +433,6 @@ def _text_list(table: dict, key: str, where: str) -> list[str]:
         value = [value]
     if not isinstance(value, list) or not all(isinstance(v, str) for v in value):
         raise InputError(f"{where}.{key}", "must be a list of text")
+    if len(value) > MAX_ITEMS or any(len(v) > MAX_VALUE for v in value):
+        raise InputError(f"{where}.{key}", f"takes at most {MAX_ITEMS} texts of at most {MAX_VALUE} characters each")
     return value
