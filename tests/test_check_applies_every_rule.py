@@ -156,3 +156,19 @@ def test_check_is_ready_only_for_what_solve_accepts(T1, P1, T2, P2, atm, Tb, con
         attempt = api.attempt(sheet_)
         assert attempt.error_kind not in ("InputError",) and not attempt.error_kind.startswith("numerical"), \
             attempt.message
+
+
+def test_joulebook_check_names_every_field_at_fault(tmp_path, capsys):
+    from tui.cli import main
+
+    path = tmp_path / "bad.toml"
+    path.write_text(BASE.format(atm="-149 bar", T1="0 K", P1="1,5 bar", final='T = "-300 degC"', Tb="400 K",
+                                constraints='"rigid"'), encoding="utf-8")
+    assert main(["check", str(path)]) == 2
+    assert capsys.readouterr().err.splitlines() == [
+        "joulebook: worksheet.atmosphere: must be an absolute pressure above zero (a vacuum); got '-149 bar'",
+        "joulebook: initial 'tank'.T: must be above absolute zero (0 K, -273.15 degC); got '0 K'",
+        "joulebook: initial 'tank'.P: has a comma in its number; write a decimal point and no thousands "
+        "separators, like '35 bar'; got '1,5 bar'",
+        "joulebook: final.T: must be above absolute zero (0 K, -273.15 degC); got '-300 degC', which is -26.85 K",
+    ]

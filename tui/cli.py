@@ -3,7 +3,8 @@
 Headless subcommands (``solve``, ``check``, ``state``, ``species``) never
 import Textual, and CoolProp only when the reference model is asked for.
 Exit codes: 0 solved/valid, 1 solved-failed (no convergence, impossible
-process), 2 bad input (message on stderr).
+process), 2 bad input (message on stderr; ``check`` names every field at
+fault, one a line).
 """
 
 from __future__ import annotations
@@ -62,6 +63,11 @@ def cmd_solve(args) -> int:
 def cmd_check(args) -> int:
     from balance import api
 
+    found = api.problems(Path(args.file))
+    if found:  # every field at fault, one a line, not only the first
+        for p in found:
+            print(f"joulebook: {p}", file=sys.stderr)
+        return EXIT_INPUT
     problem = api.prepare(Path(args.file))
     dof = problem.dof
     from .render import dof_renderable
