@@ -41,7 +41,34 @@ def states_table(states: list[State], units: str, title: str = "States") -> Tabl
     return t
 
 
-def result_renderable(r: Result, units: str = "metric") -> Group:
+def headline(r: Result, units: str) -> str:
+    """The result in one line: the final T and P, every solved term (heat, work, the moving
+    boundary's work, the amount) and S_gen, in the display units; round-off shown as 0."""
+    p = r.problem
+    ro = r.round_off
+    f = r.final
+
+    def value(x: float, kind: str, digits: int = 5) -> str:
+        zero = ro.zero(x, "J/K" if kind == "S" else "J") if kind in ("E", "S") else False
+        return f"{'0' if zero else show(x, kind, units, digits)} {unit_label(kind, units)}"
+
+    parts = [f"{f.name}: T = {value(f.point.T, 'T')}, P = {value(f.point.P, 'P')}"]
+    for t in r.terms:
+        if not t.solved or (t.kind == "boundary work" and t.name == "rigid"):  # rigid: 0 by its path
+            continue
+        label = {"heat": f"Q '{t.name}'", "work": f"W '{t.name}'"}.get(t.kind, f"W boundary ({t.name})")
+        parts.append(f"{label} = {value(p.convention.shown(t.kind, t.value), 'E')}")
+    if p.n is None:
+        parts.append(f"n = {value(r.n, 'n')}")
+    if r.S_gen is not None:
+        parts.append("S_gen = 0 (reversible)" if ro.zero(r.S_gen, "J/K") or r.S_gen == 0
+                     else f"S_gen = {value(r.S_gen, 'S', 4)}")
+    return "; ".join(parts)
+
+
+def result_renderable(r: Result, units: str = "metric", with_headline: bool = True) -> Group:
+    """The result's tables, equations, warnings and cautions; ``with_headline`` starts them with
+    the result in one line (the app shows that line above its tabs instead)."""
     p = r.problem
     head = p.worksheet.heading
     title = Text(head.title or "Closed-system balance", style="bold")
@@ -50,7 +77,8 @@ def result_renderable(r: Result, units: str = "metric") -> Group:
         f"gauge pressures read with atmosphere = {p.p_atm / 1e5:.6g} bar",
         style="dim",
     )
-    parts: list = [title, meta]
+    parts: list = [title, Text("Result: " + headline(r, units))] if with_headline else [title]
+    parts.append(meta)
     if p.species.overrides:
         parts.append(Text("overrides: " + ", ".join(f"{k} = {v}" for k, v in p.species.overrides), style="yellow"))
     parts.append(states_table([*r.initial, r.final], units))

@@ -85,7 +85,7 @@ on pressure equipment without the cautions.
         if outcome is not None and outcome.result is not None:
             from ..render import result_renderable
 
-            balance.update(result_renderable(outcome.result, app.units))
+            balance.update(result_renderable(outcome.result, app.units, with_headline=False))
             for diagram in self.query(ProcessDiagram):
                 diagram.show_trace(outcome.trace, app.units)
         elif outcome is not None and outcome.error:
@@ -94,17 +94,8 @@ on pressure equipment without the cautions.
             balance.update("")
 
     def _summary(self, r, stale: bool) -> Content:
-        from ..display import show, unit_label
+        from ..render import headline
 
-        u = self.app.units
-        f = r.final
-        text = (f"{f.name}: T = {show(f.point.T, 'T', u, 5)} {unit_label('T', u)}, "
-                f"P = {show(f.point.P, 'P', u, 5)} {unit_label('P', u)}")
-        for t in r.terms:
-            if t.solved and t.kind != "boundary work":
-                value = r.problem.convention.shown(t.kind, t.value)
-                text += f"; {'Q' if t.kind == 'heat' else 'W'} '{t.name}' = {show(value, 'E', u, 5)} {unit_label('E', u)}"
-        if r.S_gen is not None:
-            text += f"; S_gen = {show(r.S_gen, 'S', u, 4)} {unit_label('S', u)}"
+        text = headline(r, self.app.units)
         head = ("changed since this solve (ctrl+r): ", "bold $text-warning") if stale else ("solved: ", "bold $text-success")
         return Content.assemble(head, text)

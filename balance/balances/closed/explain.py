@@ -69,6 +69,22 @@ def _JK(x: float, ro: RoundOff | None = None) -> str:
     return f"{x:.6g} J/K"
 
 
+def _n(x: float) -> str:
+    """A number to six digits ("0" for a negative zero)."""
+    t = f"{x:.6g}"
+    return "0" if t == "-0" else t
+
+
+def _factor(x: float) -> str:
+    """A number as a factor after ×: a negative one in parentheses, as engineers write it."""
+    return f"({_n(x)})" if x < 0 else _n(x)
+
+
+def _minus(x: float) -> str:
+    """`` - x`` written as an engineer would: `` + 5`` for x = -5."""
+    return f" + {_n(-x)}" if x < 0 else f" - {_n(x)}"
+
+
 def explain(r) -> list[str]:
     """Lines of equations with numbers substituted for a closed-system Result."""
     p = r.problem
@@ -81,20 +97,24 @@ def explain(r) -> list[str]:
     lines += [f"  {e}" for e in p.model.equations()]
     if p.species.overrides:
         lines.append("Overrides: " + ", ".join(f"{k} = {v}" for k, v in p.species.overrides))
-    lines.append("Mass: n2 = " + " + ".join(f"{st.n:.6g}" for st in r.initial) + f" = {r.n:.6g} mol")
+    if p.n is None:
+        lines.append(f"Amount: n = {_n(r.n)} mol, solved from the balances")
+    elif len(r.initial) > 1:  # one compartment: its state line says n
+        names = " + ".join(f"n({st.name})" for st in r.initial)
+        lines.append(f"Amount: n = {names} = " + " + ".join(_n(st.n) for st in r.initial) + f" = {_n(r.n)} mol")
     for st in r.initial:
         pt = st.point
         lines.append(
-            f"State {st.name}: T = {pt.T:.6g} K, P = {pt.P:.6g} Pa, v = {pt.v:.6g} m3/mol, "
-            f"u = {pt.u:.6g} J/mol, s = {pt.s:.6g} J/(mol K), n = {st.n:.6g} mol"
+            f"State {st.name}: T = {_n(pt.T)} K, P = {_n(pt.P)} Pa, v = {_n(pt.v)} m3/mol, "
+            f"u = {_n(pt.u)} J/mol, s = {_n(pt.s)} J/(mol K), n = {_n(st.n)} mol"
         )
     fixed = ", ".join(f"{k} by {w}" if w != "given" else f"{k} given" for k, w in p.final_sources.items())
     lines.append(
-        f"State {f.name}: T = {fp.T:.6g} K, P = {fp.P:.6g} Pa, v = {fp.v:.6g} m3/mol, "
-        f"u = {fp.u:.6g} J/mol, s = {fp.s:.6g} J/(mol K)" + (f"  [{fixed}]" if fixed else "")
+        f"State {f.name}: T = {_n(fp.T)} K, P = {_n(fp.P)} Pa, v = {_n(fp.v)} m3/mol, "
+        f"u = {_n(fp.u)} J/mol, s = {_n(fp.s)} J/(mol K)" + (f"  [{fixed}]" if fixed else "")
     )
     U1 = sum(st.U for st in r.initial)
-    lines.append(f"ΔU = n u2 - Σ n u1 = {r.n:.6g} × {fp.u:.6g} - ({U1:.6g}) = {_kJ(r.dU, ro)}")
+    lines.append(f"ΔU = n u2 - Σ n u1 = {_n(r.n)} × {_factor(fp.u)}{_minus(U1)} = {_kJ(r.dU, ro)}")
     lines.append(
         f"  ideal-gas part Σ n (u_ig(T2) - u_ig(T1)) = {_kJ(r.dU_ig, ro)}; "
         f"departure part Σ n (u_dep2 - u_dep1) = {_kJ(r.dU_dep, ro)}"
@@ -110,52 +130,72 @@ def explain(r) -> list[str]:
     ke = f" + ΔKE ({_kJ(p.dKE)})" if p.dKE else ""
     pe = f" + ΔPE ({_kJ(p.dPE)})" if p.dPE else ""
     if c.on_system:
-        lines.append(f"First law: ΔU{ke}{pe} = Q + W:  {_kJ(r.dU + p.dKE + p.dPE, ro)} = {_kJ(Q, ro_Q)} + {_kJ(W, ro_W)}")
+        lines.append(f"First law: ΔU{ke}{pe} = Q + W:  {_kJ(r.dU + p.dKE + p.dPE, ro)} = {_kJ(Q, ro_Q)} + "
+                     f"{_paren(_kJ(W, ro_W), W)}")
     else:
         W_by = c.shown("work", W)
-        lines.append(f"First law: ΔU{ke}{pe} = Q - W:  {_kJ(r.dU + p.dKE + p.dPE, ro)} = {_kJ(Q, ro_Q)} - ({_kJ(W_by, ro_W)})")
+        lines.append(f"First law: ΔU{ke}{pe} = Q - W:  {_kJ(r.dU + p.dKE + p.dPE, ro)} = {_kJ(Q, ro_Q)} - "
+                     f"{_paren(_kJ(W_by, ro_W), W_by)}")
     for t in r.terms:
         if t.solved and t.kind != "boundary work":
             label = "Q" if t.kind == "heat" else f"W ({c.positive_work} the system)"
             lines.append(f"  solved: {label} '{t.name}' = {_kJ(c.shown(t.kind, t.value), ro)}")
     lines.append(f"Energy balance residual, recomputed from the states: {r.residual:.2e} (relative)")
     S1 = sum(st.S for st in r.initial)
-    lines.append(f"ΔS_system = n s2 - Σ n s1 = {r.n:.6g} × {fp.s:.6g} - ({S1:.6g}) = {_JK(r.dS_system, ro)}")
+    lines.append(f"ΔS_system = n s2 - Σ n s1 = {_n(r.n)} × {_factor(fp.s)}{_minus(S1)} = {_JK(r.dS_system, ro)}")
     heats = [t for t in r.terms if t.kind == "heat"]
     if r.S_gen is not None:
-        parts = " + ".join(f"{t.value:.6g}/{t.T_boundary:.6g}" for t in heats) or "0"
-        lines.append(f"ΔS_surroundings = -Σ Q/T_boundary = -({parts}) = {_JK(r.dS_surroundings, ro)}")
+        if heats:
+            parts = "".join((" - " if t.value > 0 else " + ") + f"{_n(abs(t.value))}/{_n(t.T_boundary)}"
+                            for t in heats)
+            parts = parts[3:] if parts.startswith(" + ") else "-" + parts[3:]
+            lines.append(f"ΔS_surroundings = -Σ Q/T_boundary = {parts} = {_JK(r.dS_surroundings, ro)}")
+        else:
+            lines.append("ΔS_surroundings = 0 J/K (no heat crosses the boundary)")
         if ro.zero(r.S_gen, "J/K") or r.S_gen == 0:
             why = "by constraint" if p.reversible else "to the precision of the calculation"
             tag = "; round-off" if r.S_gen != 0 else ""
             lines.append(f"S_gen = ΔS_system + ΔS_surroundings = 0 J/K (reversible {why}{tag})")
         else:
-            lines.append(f"S_gen = ΔS_system + ΔS_surroundings = {r.S_gen:.6g} J/K ({r.S_gen / (r.n * R):.4g} n R)")
+            lines.append(f"S_gen = ΔS_system + ΔS_surroundings = {_n(r.S_gen)} J/K ({r.S_gen / (r.n * R):.4g} n R)")
     else:
         lines.append("S_gen: not evaluated (a heat term has no boundary temperature)")
-    lines.append(f"Solver: {r.method}; {r.iterations} balance evaluations")
+    plural = "" if r.iterations == 1 else "s"
+    lines.append(f"Solver: {r.method}; {r.iterations} balance evaluation{plural}")
     if any("round-off)" in line for line in lines):
         lines.append(ro.words())
     return lines
 
 
+def _paren(text: str, x: float) -> str:
+    """A term's text after an operator: in parentheses when its number is negative."""
+    return f"({text})" if x < 0 and not text.startswith("0") else text
+
+
 def _boundary_line(r, t, ro: RoundOff) -> str:
     p = r.problem
+    c = p.convention
     first = r.initial[0].point
     fp = r.final.point
     V1 = sum(st.V for st in r.initial) + sum(c.V for c in p.initial if c.state is None)
     V2 = r.final.V
     if p.path == "rigid":
-        return f"Boundary work (rigid): W_b = 0; V1 = V2 = {V2:.6g} m3"
+        return f"Boundary work (rigid): W_b = 0; V1 = V2 = {_n(V2)} m3"
+    # W_b is work done on the system; said so, and as the convention shows it when that differs
+    by = "" if c.on_system else f"; done by the system: {_kJ(c.shown('work', t.value), ro)}"
     if p.path == "isobaric":
-        return f"Boundary work (isobaric): W_b = -P (V2 - V1) = -{first.P:.6g} × ({V2:.6g} - {V1:.6g}) = {_kJ(t.value, ro)}"
+        return (f"Boundary work (isobaric), on the system: W_b = -P (V2 - V1) = -{_n(first.P)} × "
+                f"({_n(V2)}{_minus(V1)}) = {_kJ(t.value, ro)}{by}")
     if p.path == "isothermal":
         return (
-            f"Boundary work (isothermal, reversible): W_b = -∫P dV = n (a2 - a1), a = u - T s: "
-            f"{r.n:.6g} × ({fp.a:.6g} - {first.a:.6g}) = {_kJ(t.value, ro)}"
+            f"Boundary work (isothermal, reversible), on the system: W_b = -∫P dV = n (a2 - a1), a = u - T s: "
+            f"{_n(r.n)} × ({_n(fp.a)}{_minus(first.a)}) = {_kJ(t.value, ro)}{by}"
         )
     k = p.n_poly
+    if abs(k - 1.0) < 1e-12:  # P V = const: the solver's own form
+        return (f"Boundary work (polytropic, n = 1), on the system: W_b = -P1 V1 ln(V2/V1) = "
+                f"-{_n(first.P)} × {_n(V1)} × ln({_n(V2)}/{_n(V1)}) = {_kJ(t.value, ro)}{by}")
     return (
-        f"Boundary work (polytropic, n = {k:g}): W_b = (P2 V2 - P1 V1)/(n - 1) = "
-        f"({fp.P:.6g} × {V2:.6g} - {first.P:.6g} × {V1:.6g})/({k:g} - 1) = {_kJ(t.value, ro)}"
+        f"Boundary work (polytropic, n = {k:g}), on the system: W_b = (P2 V2 - P1 V1)/(n - 1) = "
+        f"({_n(fp.P)} × {_n(V2)} - {_n(first.P)} × {_n(V1)})/({k:g} - 1) = {_kJ(t.value, ro)}{by}"
     )
