@@ -145,7 +145,12 @@ class Check:
 
 
 def check(ws: Worksheet) -> Check:
-    """Prepare the problem and count its degrees of freedom; never raises for bad input."""
+    """Prepare the problem and count its degrees of freedom; never raises for bad input.
+
+    Every rule the solve applies to a field is applied here (through the same readers), so a
+    check is never ready for what the solve then refuses for a value typed; ``error_field`` is
+    the first field at fault, and :func:`problems` lists them all.
+    """
     try:
         problem = prepare(ws)
         dof = problem.dof

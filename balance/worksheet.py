@@ -388,7 +388,7 @@ def _state(t: dict, where: str, default_name: str) -> StateInput:
 def _only(table: dict, allowed, where: str) -> None:
     for key in table:
         if key not in allowed:
-            key = key if len(key) <= MAX_NAME else shown(key, MAX_NAME)
+            key = str(key) if len(str(key)) <= MAX_NAME else shown(str(key), MAX_NAME)
             name = f"{where}.{key}" if where else key
             raise InputError(name, f"is not a known key here; expected one of {', '.join(allowed)}")
 

@@ -307,3 +307,12 @@ constraints = ["rigid"]
     m = 0.020 * rho1
     T2 = CP.PropsSI("T", "Dmass", rho1, "Umass", u1 + 150e3 / m, "Water")
     assert result.final.point.T == pytest.approx(T2, rel=1e-6)
+
+
+@pytest.mark.parametrize("typed", ["25 C", "25 degc", "25 deg C"])
+def test_celsius_written_as_people_write_it_solves_as_degC(typed):
+    def sheet_with(T):
+        return N2_IG + f'[[initial]]\nT = "{T}"\nP = "10 bar"\nn = "1 mol"\n' + HEATED
+    as_typed, spelled = solved(sheet_with(typed)), solved(sheet_with("25 degC"))
+    assert as_typed.initial[0].point.T == spelled.initial[0].point.T == pytest.approx(298.15, abs=1e-12)  # 0 degC = 273.15 K
+    assert as_typed.terms[0].value == spelled.terms[0].value
