@@ -40,9 +40,11 @@ def app_at(tmp_path, sample: str, step: str) -> JoulebookApp:
 
 
 def freeze(app) -> None:
-    """No blinking cursors in a screenshot."""
+    """No blinking cursors in a screenshot, and no notices (they leave after a time, so
+    whether one is still shown would depend on how long the test took)."""
     for widget in app.screen.query("Input, TextArea"):
         widget.cursor_blink = False
+    app.notices = ()
 
 
 async def steady(pilot) -> None:

@@ -69,6 +69,9 @@ class JoulebookApp(BackgroundWork, App):
     units = reactive("metric", init=False)
     dirty: reactive[tuple] = reactive(tuple, init=False)
     busy = reactive("", init=False)
+    notices: reactive[tuple] = reactive(tuple, init=False)
+    """the notifications being shown (textual.notifications.Notification), oldest first:
+    a step shows them in its notice bar, where they cover nothing"""
 
     def __init__(self, session: Session, *, warm: bool = True, gc_paused: bool = False) -> None:
         super().__init__()
@@ -110,6 +113,18 @@ class JoulebookApp(BackgroundWork, App):
             gc.enable()  # paused for the start-up by tui.cli.app_for
         # a moment later: the imports would compete for the GIL with the first frame's writing
         self.set_timer(0.05, self._start_background)
+
+    def on_notify(self, event) -> None:
+        """Every notification is kept for the notice bar as well (Textual's own handler
+        shows it as a toast, which a step hides)."""
+        note = event.notification
+        self.notices = (*self.notices, note)[-10:]
+        self.set_timer(note.timeout, lambda: self._expire_notice(note.identity))
+
+    def _expire_notice(self, identity: str) -> None:
+        kept = tuple(n for n in self.notices if n.identity != identity)
+        if len(kept) != len(self.notices):
+            self.notices = kept
 
     def on_unmount(self) -> None:
         self.session.flush()  # the latest draft is on disk before the app goes

@@ -24,6 +24,7 @@ from ..widgets.choice_list import ChoiceList
 from ..widgets.dof_line import DofLine
 from ..widgets.field_row import FieldRow
 from ..widgets.key_bar import KeyBar
+from ..widgets.notice_bar import NoticeBar
 from ..widgets.step_list import StepList
 from ..widgets.title_bar import TitleBar
 
@@ -62,8 +63,12 @@ class StepScreen(Screen):
         yield Static(f"{step.number}  {step.title}", id="step-heading")
         with (VerticalScroll if self.SCROLL else Vertical)(id="form"):
             yield from self.compose_form()
-        yield DofLine(id="dof")
-        yield KeyBar(id="keys")
+        # the foot: docked, so its lines (as many as the notices and the DOF line need) are
+        # worked out at the full width, which a grid row spanning two columns is not
+        with Vertical(id="foot"):
+            yield NoticeBar(id="notices")
+            yield DofLine(id="dof")
+            yield KeyBar(id="keys")
 
     def compose_form(self) -> ComposeResult:
         yield from ()

@@ -1,4 +1,8 @@
-"""The live degrees-of-freedom line, with a busy indicator for slow work."""
+"""The live degrees-of-freedom line, with a busy indicator for slow work.
+
+Never cut: a long message (an error naming its field and what was expected)
+wraps onto as many lines as it needs; the form above gives them up.
+"""
 
 from __future__ import annotations
 
@@ -13,7 +17,7 @@ class DofLine(Static):
 
     DEFAULT_CSS = """
     DofLine {
-        height: 1;
+        height: auto;
         width: 1fr;
         padding: 0 1;
         background: $panel;
