@@ -16,7 +16,7 @@ from tests.test_tui_pilot import SIZE, author, ready, sample_app, solve_on_resul
 
 def text_of(app, selector: str) -> str:
     """What a Static shows, as plain text (a rich renderable printed 200 columns wide)."""
-    shown = app.screen.query_one(selector).render()
+    shown = app.screen.query_one(selector).content
     out = io.StringIO()
     Console(file=out, width=200, color_system=None).print(shown)
     return out.getvalue()

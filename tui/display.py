@@ -7,6 +7,8 @@ the JSON output stays molar SI.
 
 from __future__ import annotations
 
+import math
+
 from balance.units import to_unit
 
 UNIT_SETS = {
@@ -55,6 +57,37 @@ def show(value: float | None, kind: str, units: str, digits: int = 6) -> str:
     except Exception:  # inf/nan from a two-phase cp: show it as it is
         converted = value
     return f"{converted:.{digits}g}"
+
+
+#: Pressure labels that say "absolute" where a caution or a headline names a pressure.
+_ABSOLUTE = {"kPa": "kPa(a)", "bar": "bar(a)", "psi": "psia"}
+
+
+def caution_value(kind: str, value: float, units: str) -> str:
+    """A caution's value in the chosen set, with its unit: a temperature to 0.1 degree, a
+    threshold ("T limit") to the degree, an absolute pressure to four digits.
+
+    ``kind`` and ``value`` are as :data:`balance.balances.cautions.Show` takes them.
+    """
+    if kind == "P":
+        P = to_unit(value, "Pa", UNIT_SETS[units]["P"])
+        return f"{_plain(P, 4)} {_ABSOLUTE.get(UNIT_SETS[units]['P'], unit_label('P', units))}"
+    T = to_unit(value, "K", UNIT_SETS[units]["T"])
+    return f"{T:.{0 if kind == 'T limit' else 1}f} {unit_label('T', units)}"
+
+
+def _plain(x: float, digits: int) -> str:
+    """``digits`` significant digits without an exponent (20000, not 2e+04) where x is not tiny."""
+    if x == 0 or not math.isfinite(x) or abs(x) < 1e-3:
+        return f"{x:.{digits}g}"
+    decimals = max(0, digits - 1 - math.floor(math.log10(abs(x))))
+    text = f"{x:.{decimals}f}"
+    return text.rstrip("0").rstrip(".") if "." in text else text
+
+
+def caution_writer(units: str):
+    """The function that writes cautions' values in the chosen set (for ``Caution.text``)."""
+    return lambda kind, value: caution_value(kind, value, units)
 
 
 def converter(kind: str, units: str):

@@ -13,7 +13,7 @@ from balance.balances.control_volume import Dof
 from balance.species import Species
 from balance.state import State
 
-from .display import show, unit_label
+from .display import caution_writer, show, unit_label
 
 ROWS = (("T", "T"), ("P", "P"), ("v", "v"), ("u", "u"), ("h", "h"), ("s", "s"), ("cv", "cv"), ("cp", "cp"))
 
@@ -74,7 +74,7 @@ def result_renderable(r: Result, units: str = "metric", with_headline: bool = Tr
     title = Text(head.title or "Closed-system balance", style="bold")
     meta = Text(
         f"{p.species.name} ({p.species.id}), {p.model.label}; convention: {p.convention.words}\n"
-        f"gauge pressures read with atmosphere = {p.p_atm / 1e5:.6g} bar",
+        f"gauge pressures read with atmosphere = {show(p.p_atm, 'P', units)} {unit_label('P', units)}",
         style="dim",
     )
     parts: list = [title, Text("Result: " + headline(r, units))] if with_headline else [title]
@@ -123,11 +123,13 @@ def result_renderable(r: Result, units: str = "metric", with_headline: bool = Tr
     s.add_row("S_gen", *computed(r.S_gen, "S", ""))
     parts.append(s)
 
-    parts.append(Panel("\n".join(r.equations), title="Equations with numbers", title_align="left", box=box.SQUARE))
+    parts.append(Panel("\n".join(r.equations), title="Equations with numbers (molar SI, energies in kJ)",
+                       title_align="left", box=box.SQUARE))
     if r.warnings:
         parts.append(Panel("\n".join(f"• {w}" for w in r.warnings), title="Warnings", title_align="left",
                            border_style="yellow", box=box.SQUARE))
-    parts.append(Panel("\n".join(f"• {c}" for c in r.cautions), title="Cautions", title_align="left",
+    write = caution_writer(units)
+    parts.append(Panel("\n".join(f"• {c.text(write)}" for c in r.cautions), title="Cautions", title_align="left",
                        border_style="red", box=box.SQUARE))
     return Group(*parts)
 

@@ -13,6 +13,12 @@ from ..worksheet import CONVENTIONS
 from .plain import g, table, wrap
 
 
+#: The units of a solve's text in the record, whatever units the app or the command line showed.
+UNITS = ("Units (fixed, whatever the display): T in K and °C, P in bar(a), properties per kg, energies in "
+         "kJ, entropies in kJ/K, cautions in °C and bar(a); the equations in molar SI; the data part in "
+         "molar SI, each unit named.")
+
+
 def _q(d, key):
     """The number of a quantity {"value", "unit"} in d, or None."""
     v = d.get(key) if isinstance(d, dict) else None
@@ -71,6 +77,8 @@ def solve_text(data: dict, inputs_seq: int | None = None) -> str:
         out += wrap(f"Reference state: {data['reference_state']}", "", "  ")
     conv = str(data.get("convention", ""))
     out += wrap(f"Sign convention: {CONVENTIONS.get(conv, conv)}", "", "  ")
+    if data.get("wording", 1) != 1:  # a record filed before said its units in its tables only
+        out += wrap(UNITS, "", "  ")
     if isinstance(data.get("overrides"), dict) and data["overrides"]:
         out.append("Overrides: " + ", ".join(f"{k} = {v}" for k, v in data["overrides"].items()))
     out += ["", "States"]

@@ -16,7 +16,7 @@ from ...errors import SolveError
 from ...models.base import Point
 from ...state import State, quantity
 from ...units import R
-from ..cautions import cautions_for
+from ..cautions import Caution, cautions_for
 from ..control_volume import (RESIDUAL_LIMIT, SGEN_TOLERANCE, Term, Unknown, heat_direction_warnings,
                               surroundings_entropy)
 from .explain import WORDING, RoundOff, explain
@@ -45,7 +45,8 @@ class Result:
     method: str
     equations: tuple[str, ...]
     warnings: tuple[str, ...]
-    cautions: tuple[str, ...]
+    cautions: tuple[Caution, ...]
+    """each with its values apart from its words: ``c.text()`` in the record's units, or ``c.text(show)``"""
     round_off: RoundOff
     """the scales below which a computed energy or entropy is round-off, shown as 0"""
     unknowns: dict[Unknown, float] = field(default_factory=dict)
@@ -92,7 +93,7 @@ class Result:
             "method": self.method,
             "equations": list(self.equations),
             "warnings": list(self.warnings),
-            "cautions": list(self.cautions),
+            "cautions": [c.text() for c in self.cautions],
             "wording": WORDING,
         }
 

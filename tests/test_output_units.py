@@ -1,0 +1,129 @@
+"""Cautions in the units the user chose: the command line's --units and the app's f2 write the
+cautions' numbers in SI, metric or US units; the record keeps its own fixed units (°C, bar(a))
+and says so.
+
+Conversions are pint's; the expected figures are worked by hand from the exact definitions
+(1 psi = 6894.757 Pa, NIST SP 811; T[°F] = 1.8 T[°C] + 32; 0 °C = 273.15 K).
+"""
+
+from __future__ import annotations
+
+import io
+
+import pytest
+from rich.console import Console
+
+from balance import api
+from balance.balances.cautions import Caution, record_units
+from balance.record.solve_text import solve_text
+from tests.helpers import sample, sheet
+from tests.test_output_app import text_of
+from tests.test_tui_pilot import SIZE, author, ready, sample_app, solve_on_results  # noqa: F401  (fixture)
+from tui.display import caution_value
+from tui.render import result_renderable
+
+#: Nitrogen from 200 bar, 0 °C into nine times its volume of vacuum (Peng-Robinson): it
+#: settles near -52.6 °C, below the -29 °C at which carbon steel needs impact testing.
+COLD = """
+[fluid]
+species = "N2"
+model = "peng-robinson"
+[[initial]]
+name = "V-1"
+T = "0 degC"
+P = "200 bar"
+V = "1 m3"
+[[initial]]
+name = "V-2"
+empty = true
+V = "9 m3"
+[final]
+name = "settled"
+T = "?"
+P = "?"
+[process]
+constraints = ["free-expansion"]
+"""
+
+
+def cautions_shown(r, units: str) -> str:
+    out = io.StringIO()
+    Console(file=out, width=400, color_system=None).print(result_renderable(r, units))
+    text = out.getvalue()
+    return " ".join(text[text.index("Cautions"):].split())
+
+
+@pytest.fixture(scope="module")
+def demo():
+    return api.solve(sample("n2-buffer-into-receiver.toml"))
+
+
+@pytest.fixture(scope="module")
+def cold():
+    return api.solve(sheet(COLD))
+
+
+@pytest.mark.parametrize("kind, value, units, text", [
+    ("P", 151.01325e5, "metric", "151 bar(a)"),
+    ("P", 151.01325e5, "us", "2190 psia"),       # 15101325 Pa / 6894.757 Pa/psi = 2190.25
+    ("P", 151.01325e5, "si", "15101 kPa(a)"),
+    ("P", 200e5, "si", "20000 kPa(a)"),           # not 2e+04
+    ("T", 220.6, "metric", "-52.5 °C"),
+    ("T", 220.6, "us", "-62.6 °F"),               # 1.8 x (-52.55) + 32 = -62.59
+    ("T", 220.6, "si", "220.6 K"),
+    ("T limit", 244.15, "metric", "-29 °C"),
+    ("T limit", 244.15, "us", "-20 °F"),          # -20.2 °F, to the degree as the trade quotes it
+])
+def test_a_caution_value_in_each_unit_set(kind, value, units, text):
+    assert caution_value(kind, value, units) == text
+
+
+def test_the_record_writes_cautions_in_bar_and_celsius():
+    c = Caution("pressure", "up to {} at {}", (("P", 2e6), ("T", 250.0)))
+    assert c.text() == str(c) == "up to 20 bar(a) at -23.1 °C"
+    assert record_units("T limit", 244.15) == "-29 °C"
+
+
+def test_us_units_never_print_bar_in_the_cautions(demo):
+    text = cautions_shown(demo, "us")
+    assert "Pressures up to 2190 psia occur" in text
+    assert "bar" not in text
+    assert "Pressures up to 15101 kPa(a) occur" in cautions_shown(demo, "si")
+    assert "Pressures up to 151 bar(a) occur" in cautions_shown(demo, "metric")
+
+
+def test_the_low_temperature_caution_follows_the_units(cold):
+    T = cold.final.point.T
+    assert T < 244.15
+    us = cautions_shown(cold, "us")
+    assert f"A temperature of {1.8 * (T - 273.15) + 32:.1f} °F occurs (the final state 'settled'), below -20 °F" in us
+    assert "°C" not in us
+    si = cautions_shown(cold, "si")
+    assert f"A temperature of {T:.1f} K occurs (the final state 'settled'), below 244 K" in si
+
+
+def test_the_record_keeps_its_units_and_says_which(demo):
+    data = api.as_json(demo)
+    assert "Pressures up to 151 bar(a) occur" in data["cautions"][1]
+    text = solve_text(data)
+    assert "Units (fixed, whatever the display): T in K and °C, P in bar(a)" in " ".join(text.split())
+
+
+def test_the_command_line_gives_the_atmosphere_in_the_display_units(demo):
+    out = io.StringIO()
+    Console(file=out, width=200, color_system=None).print(result_renderable(demo, "us"))
+    assert "gauge pressures read with atmosphere = 14.6959 psia" in out.getvalue()  # 101325 Pa / 6894.757
+
+
+async def test_f2_on_the_results_step_rewrites_the_cautions(tmp_path, author):  # noqa: F811
+    app = sample_app(tmp_path, "n2-buffer-into-receiver.toml")
+    app.session.step = "results"
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        await solve_on_results(pilot)
+        assert "Pressures up to 151 bar(a) occur" in " ".join(text_of(app, "#balance").split())
+        await pilot.press("f2")  # metric -> US customary
+        await pilot.pause()
+        shown = " ".join(text_of(app, "#balance").split())
+        assert "Pressures up to 2190 psia occur" in shown
+        assert "bar(a)" not in shown
