@@ -59,3 +59,87 @@ async def test_notices_take_lines_of_their_own_and_cover_no_input(tmp_path, auth
         assert rack.region.height == 0
         # the sign convention (the choice the demo's notice used to cover) is on screen
         assert on_screen(app, "work done BY the system is positive")
+
+
+# -- ticks read without colour; implied constraints; the keys --------------------------------
+async def test_ticked_and_unticked_differ_in_their_characters_and_implied_constraints_are_shown(tmp_path, author):
+    from balance import api
+    from tui.analysis import IMPLIED
+    from tui.widgets.check_list import CheckList
+    from tui.widgets.tick_box import TickBox
+
+    app = sample_app(tmp_path, DEMO)  # free expansion ticked: rigid and adiabatic follow from it
+    app.session.step = "states"
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        boxes = list(app.screen.query(TickBox))
+        assert [b.value for b in boxes] == [False, True]  # V-101 holds gas, V-102 is evacuated
+        assert on_screen(app, "[ ] evacuated: only a volume") and on_screen(app, "[x] evacuated: only a volume")
+        await next_step(pilot)
+        await next_step(pilot)
+        assert app.session.step == "constraints"
+        ticks = app.screen.query_one(CheckList)
+        assert ticks.mark("free-expansion") == "[x]" and ticks.mark("isothermal") == "[ ]"
+        assert ticks.mark("rigid") == ticks.mark("adiabatic") == "[=]"
+        assert on_screen(app, "[=] rigid — implied by free expansion")
+        assert on_screen(app, "[=] adiabatic — implied by free expansion")
+        # the table the list shows is the domain's: the constraints in force, as counted
+        assert set(app.check.constraints) == {"free-expansion", *IMPLIED["free-expansion"]}
+        rupture = api.check(app.session.worksheet.with_(
+            process=app.session.worksheet.process.__class__(constraints=("membrane-rupture", "adiabatic"))))
+        assert set(rupture.constraints) == {"membrane-rupture", "adiabatic", *IMPLIED["membrane-rupture"]}
+
+
+async def test_tab_goes_from_field_to_field_and_a_space_on_a_list_stays_there(tmp_path, author):
+    from tui.widgets.check_list import CheckList
+
+    app = sample_app(tmp_path, "argon-membrane-rupture.toml")  # two compartments: each has a remove button
+    app.session.step = "states"
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        await focus(pilot, in_row("amount-V", "initial-1"))
+        await pilot.press("tab")
+        assert in_row("name", "final")(app.focused)  # the next field, not '+ compartment'
+        # Tab across the whole step never lands on a button (Enter would fire it)
+        for _ in range(40):
+            await pilot.press("tab")
+            assert type(app.focused).__name__ != "Button", app.focused
+        await next_step(pilot)
+        await next_step(pilot)
+        assert app.session.step == "constraints"
+        await focus(pilot, is_widget("constraints"))
+        before = app.screen.query_one(CheckList).ticked
+        await pilot.press("down", "space")  # ticks 'adiabatic' (the cursor starts on 'rigid')
+        await settle(pilot)
+        assert app.screen.query_one(CheckList).ticked != before
+        await pilot.press("tab")
+        assert in_row("n")(app.focused) and app.focused.value == ""  # the space stayed in the list
+        await pilot.press("shift+tab", "space")
+        await settle(pilot)
+        assert app.screen.query_one(CheckList).ticked == before
+        assert app.session.worksheet.process.n == ""
+
+
+def test_every_step_with_a_list_says_its_arrow_keys_in_its_help():
+    from tui.screens.help import KEYS
+    from tui.steps import STEPS, screen_class
+
+    assert "↑" in KEYS and "space" in KEYS
+    for step in STEPS:
+        if step.id in ("purpose", "boundary", "fluid", "constraints", "review"):
+            assert "↑/↓" in screen_class(step.id).HELP, step.id
+    assert "←/→" in screen_class("results").HELP
+
+
+async def test_the_terms_note_follows_the_terms(tmp_path, author):
+    app = sample_app(tmp_path, DEMO)  # no heat or work terms
+    app.session.step = "terms"
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        assert on_screen(app, "No terms: Q = 0 and W = 0.")
+        await pilot.press("ctrl+f")  # a work term
+        await settle(pilot)
+        assert not on_screen(app, "No terms")
+        await pilot.press("ctrl+g")  # removed again
+        await settle(pilot)
+        assert on_screen(app, "No terms: Q = 0 and W = 0.")

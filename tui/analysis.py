@@ -67,6 +67,22 @@ class Check(api.Check):
         return tuple(p for p in self.problems if p.step == step)
 
 
+# -- constraints implied by others ----------------------------------------------------------
+#: What a ticked constraint brings with it, as the closed balance reads it (free expansion
+#: is rigid and adiabatic; a membrane rupture is rigid): shown as implied in step 6.
+#: tests/test_tui_frame.py holds it to the domain's count (``Check.constraints``).
+IMPLIED = {"free-expansion": ("rigid", "adiabatic"), "membrane-rupture": ("rigid",)}
+
+
+def implied(ticked) -> dict[str, str]:
+    """Each constraint implied by a ticked one, and the first ticked one that implies it."""
+    out: dict[str, str] = {}
+    for by in ticked:
+        for c in IMPLIED.get(by, ()):
+            out.setdefault(c, by)
+    return out
+
+
 # -- where a domain error's field is typed -----------------------------------------------
 _LIST_PARTS = ("initial", "heat", "work")
 

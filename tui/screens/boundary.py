@@ -51,7 +51,8 @@ written for. Everything inside it is the *system*; heat and work are only
 what crosses it.
 
 - *Kind*: a closed system keeps its mass; open systems (streams crossing the
-  boundary) are planned and shown greyed.
+  boundary) are planned and shown greyed (↑/↓ in the list, space or Enter
+  chooses).
 - *Inside*: say in words what the boundary encloses — which vessels, lines,
   the gas only or the steel as well.
 - *Boundary temperature*: the temperature of the wall or reservoir where

@@ -4,11 +4,12 @@ from __future__ import annotations
 
 from textual.app import ComposeResult
 from textual.content import Content
-from textual.widgets import Label, SelectionList, Static
-from textual.widgets.selection_list import Selection
+from textual.widgets import Label, Static
 
 from balance.worksheet import CONSTRAINTS, Process, Worksheet
 
+from ..analysis import implied
+from ..widgets.check_list import CheckList
 from ..widgets.field_row import FieldRow
 from ..widgets.problem_line import ProblemLine
 from .step import StepScreen
@@ -34,7 +35,8 @@ class ConstraintsScreen(StepScreen):
 states: each constraint is an equation (or fixes a final property), and the
 degrees-of-freedom line below counts them against the unknowns.
 
-- ↑/↓ to move, space to tick a constraint.
+- ↑/↓ to move in the list, space (or Enter) to tick or untick a constraint:
+  `[x]` ticked, `[ ]` not, `[=]` implied by another that is ticked.
 - *Rigid*, *isobaric*, *isothermal* and *polytropic* say how the boundary
   moves and so give the boundary work. Where none applies and the volume
   changes, add a work term of kind *boundary* (step 5).
@@ -55,9 +57,9 @@ its exponent n.
 
     def compose_form(self) -> ComposeResult:
         pr = self.worksheet.process
-        yield Label("Constraints (space ticks)", classes="form-label")
-        yield SelectionList[str](*[Selection(DESCRIPTIONS[c], c, c in pr.constraints) for c in CONSTRAINTS],
-                                 id="constraints")
+        yield Label("Constraints (↑/↓ move, space ticks; [=] implied by another)", classes="form-label")
+        yield CheckList([(c, DESCRIPTIONS[c]) for c in CONSTRAINTS], pr.constraints, implies=implied,
+                        id="constraints")
         yield ProblemLine(about="#constraints", id="constraints-problem")
         yield FieldRow("Polytropic n", pr.n, kind="dimensionless", field_label="polytropic n", id="n",
                        label_width=13, tooltip="The exponent of P vⁿ = const, e.g. 1.3")
@@ -79,7 +81,7 @@ its exponent n.
                 ("process", None, "dPE"): q("#dPE", FieldRow)}
 
     def collect(self, ws: Worksheet) -> Worksheet:
-        ticked = set(self.query_one("#constraints", SelectionList).selected)
+        ticked = set(self.query_one("#constraints", CheckList).ticked)
         # keep the order the worksheet had; add new ones at the end
         kept = [c for c in ws.process.constraints if c in ticked]
         added = [c for c in CONSTRAINTS if c in ticked and c not in kept]

@@ -15,7 +15,9 @@ KEYS = """\
 |---|---|
 | `ctrl+n` / `ctrl+o` | next / previous step (commits this one) |
 | `esc` | the step list: ↑/↓ and Enter, or a digit 1–8 |
-| `tab` / `shift+tab` | next / previous field |
+| `tab` / `shift+tab` | next / previous field (buttons are passed by: use their keys) |
+| `↑` / `↓` | move in a list (choices, constraints, species found, entries) |
+| `space` / `enter` | in a list: choose the line, or tick and untick it |
 | `ctrl+s` | commit the edits to the record |
 | `ctrl+r` | solve (when unknowns and equations match) |
 | `f1` | this help; `f2` display units |

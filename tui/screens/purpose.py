@@ -34,8 +34,8 @@ printed with every result.
 - *Asked*: the question, e.g. "final T and P after the valve fails open".
 - *Basis*: what the balance is written for, e.g. "all gas in both vessels".
 - *Assumptions*: one per line (rigid vessels, no heat from the walls ...).
-- *Sign convention*: which work is counted positive. Heat *to* the system
-  is always positive.
+- *Sign convention*: which work is counted positive (↑/↓ in the list, space
+  or Enter chooses). Heat *to* the system is always positive.
 - *Atmosphere*: used to turn gauge readings (`barg`, `psig`) into absolute
   pressures.
 

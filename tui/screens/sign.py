@@ -12,6 +12,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Checkbox, Label, Select, Static
 
 from ..widgets.field_row import FieldRow
+from ..widgets.tick_box import TickBox
 
 KEY_NAMES = ("id_ed25519", "id_ecdsa", "id_rsa")
 
@@ -68,7 +69,7 @@ class SignScreen(ModalScreen[SignRequest | None]):
             yield FieldRow("SSH key", default_key(), id="key",
                            placeholder="~/.ssh/id_ed25519 (signed with ssh-keygen -Y sign)",
                            tooltip="Private key file (or a public key held in ssh-agent)")
-            yield Checkbox("sign off without a signature (unsigned)", False, id="unsigned", compact=True)
+            yield TickBox("sign off without a signature (unsigned)", False, id="unsigned", compact=True)
             with Horizontal(classes="sign--buttons"):
                 yield Button("Sign off", id="sign", variant="success")
                 yield Button("Cancel (esc)", id="cancel")

@@ -10,7 +10,7 @@ from textual.widgets import Button, Static
 from balance.worksheet import StateInput, Worksheet
 
 from .. import fields
-from ..widgets.state_form import StateForm
+from ..widgets.state_form import StateForm, out_of_tab_order
 from .step import StepScreen
 
 
@@ -29,7 +29,8 @@ state. A state is fixed by two properties; the amount by one of n, m or V.
   properties asked.
 - *Evacuated* compartments (a receiver under vacuum) have only a volume.
 - `ctrl+t` adds a compartment; `ctrl+g` (or its *remove* button) removes the
-  one you are in. Several compartments join into one final state inside a
+  one you are in. Tab goes from field to field and passes the buttons by.
+- *Evacuated*: space ticks it (`[x]`) and unticks it (`[ ]`). Several compartments join into one final state inside a
   rigid boundary (a rupture, a valve opening).
 - The amount of an initial state may be unknown: type `?` for n.
 
@@ -50,7 +51,7 @@ follows from the initial one).
         ws = self.worksheet
         with Vertical(id="initial-forms"):
             yield from self._initial_forms(ws)
-        yield Button("+ compartment (ctrl+t)", id="add", compact=True)
+        yield out_of_tab_order(Button("+ compartment (ctrl+t)", id="add", compact=True))
         yield Static("", classes="spacer")
         yield StateForm(ws.final, "final", p_atm=self._p_atm, id="final")
 

@@ -38,7 +38,7 @@ class StepScreen(Screen):
     HELP = ""
     """Markdown: what the step is for, and the common mistakes."""
 
-    AUTO_FOCUS = "#form Input, #form TextArea, #form LineList, #form OptionList, #form Button, #form SelectionList"
+    AUTO_FOCUS = "#form Input, #form TextArea, #form LineList, #form OptionList, #form Button"
 
     BINDINGS = [
         Binding("escape", "focus_steps", "Steps", id="step.steps", show=False,
@@ -168,7 +168,7 @@ class StepScreen(Screen):
     def on_checkbox_changed(self, event) -> None:
         self.changed()
 
-    def on_selection_list_selected_changed(self, event) -> None:
+    def on_check_list_changed(self, event) -> None:
         self.changed()
 
     def on_choice_list_chosen(self, event: ChoiceList.Chosen) -> None:

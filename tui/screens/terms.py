@@ -12,6 +12,7 @@ from balance.worksheet import HeatTerm, Worksheet, WorkTerm
 
 from ..widgets.heat_term_form import HeatTermForm
 from ..widgets.problem_line import ProblemLine
+from ..widgets.state_form import out_of_tab_order
 from ..widgets.work_term_form import WorkTermForm
 from .step import StepScreen
 
@@ -34,7 +35,9 @@ balance should find it.
   other. A path constraint (rigid, isobaric, isothermal, polytropic)
   supplies the boundary work itself: do not add a boundary term as well.
 - `ctrl+t` adds a heat term, `ctrl+f` a work term, `ctrl+g` removes the term
-  you are in.
+  you are in. Tab goes from field to field and passes the buttons by.
+- *Direction* and *kind* are drop-down lists: Enter opens one, ↑/↓ move,
+  Enter chooses.
 
 **Common mistakes.** A heat term on an adiabatic process (remove one);
 counting the boundary work twice (a path constraint *and* a boundary
@@ -61,8 +64,8 @@ used as the boundary temperature of a hotter jacket.
         with Vertical(id="work-forms"):
             yield from self._work_forms(ws)
         with Horizontal(classes="button-row"):
-            yield Button("+ heat term (ctrl+t)", id="add-heat", compact=True)
-            yield Button("+ work term (ctrl+f)", id="add-work", compact=True)
+            yield out_of_tab_order(Button("+ heat term (ctrl+t)", id="add-heat", compact=True))
+            yield out_of_tab_order(Button("+ work term (ctrl+f)", id="add-work", compact=True))
 
     @staticmethod
     def _convention_note(ws: Worksheet) -> str:
@@ -101,6 +104,7 @@ used as the boundary temperature of a hotter jacket.
             await container.remove_children()
             await container.mount_all(list(forms))
         self.app.edit(ws)
+        self.query_one("#convention-note", Static).update(self._convention_note(ws))  # 'No terms' no more
         self._ready = True
         self._place_problems(self.app.check)
         if focus:
@@ -137,7 +141,7 @@ used as the boundary temperature of a hotter jacket.
         else:
             ws = ws.with_(work=ws.work[:form.index] + ws.work[form.index + 1:])
         await self._rebuild(ws, None)
-        first = self.query("#form FieldRow Input, #form Button")
+        first = self.query("#form FieldRow Input")
         if first:
             first.first().focus()
 

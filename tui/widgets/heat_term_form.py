@@ -11,6 +11,7 @@ from balance.worksheet import HeatTerm
 from .. import fields
 from .field_row import FieldRow
 from .problem_line import ProblemLine
+from .state_form import out_of_tab_order
 from .term_form import TermForm
 
 DIRECTIONS = [("into the system", "in"), ("out of the system", "out")]
@@ -35,7 +36,8 @@ class HeatTermForm(TermForm):
             yield FieldRow("Name", self.term.name, id="name", label_width=6)
             with Horizontal():
                 yield Static("", classes="term--spacer")
-                yield Button("remove", compact=True, id="remove", tooltip="Remove this term (ctrl+g)")
+                yield out_of_tab_order(Button("remove ^g", compact=True, id="remove",
+                                                    tooltip="Remove this term (ctrl+g)"))
             yield FieldRow("Q", magnitude, kind="energy", id="value", allow_unknown=True, required=True,
                            field_label=f"Q of heat term {self.index + 1}", label_width=6,
                            tooltip="The heat, e.g. 400 kJ, or ? to solve for it")

@@ -12,6 +12,7 @@ from textual.widgets import Button, Checkbox, Static
 from balance.worksheet import STATE_KEYS, StateInput
 
 from .field_row import FieldRow
+from .tick_box import TickBox
 from .problem_line import ProblemLine
 
 LABELS = {"T": "T", "P": "P", "v": "v", "rho": "ρ", "u": "u", "h": "h", "s": "s", "x": "x",
@@ -29,6 +30,13 @@ TIPS = {
     "m": "mass: 2.5 kg, 1.2 g",
     "V": "volume: 2 m3, 50 L",
 }
+
+
+def out_of_tab_order(button: Button) -> Button:
+    """A button Tab passes by (its key and a click still press it): Tab goes from field to
+    field, and never onto a button that Enter would fire (a 'remove' among the fields)."""
+    button.can_focus = False
+    return button
 
 
 class StateForm(Widget):
@@ -49,7 +57,6 @@ class StateForm(Widget):
         & .state-form--top { height: auto; }
         & .state-form--top FieldRow { width: 1fr; }
         & .state-form--amount { color: $text-muted; height: 1; margin-top: 0; }
-        & Checkbox { border: none; padding: 0; height: 1; background: transparent; }
         & Button { width: auto; min-width: 0; margin-left: 1; }
     }
     StateForm:focus-within { border: round $border; }
@@ -80,9 +87,10 @@ class StateForm(Widget):
         with Horizontal(classes="state-form--top"):
             yield FieldRow("Name", s.name, id="name", label_width=6)
             if self.removable:
-                yield Button("remove", compact=True, id="remove", tooltip="Remove this compartment (ctrl+g)")
+                yield out_of_tab_order(Button("remove ^g", compact=True, id="remove",
+                                              tooltip="Remove this compartment (ctrl+g)"))
         if initial:
-            yield Checkbox("evacuated: only a volume", s.empty, id="empty", compact=True)
+            yield TickBox("evacuated: only a volume", s.empty, id="empty", compact=True)
         with Grid(classes="state-form--props"):
             for key in STATE_KEYS:
                 yield FieldRow(LABELS[key], s.props.get(key, ""), kind=key, id=f"prop-{key}",

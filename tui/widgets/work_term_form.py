@@ -12,6 +12,7 @@ from balance.worksheet import WORK_KINDS, WorkTerm
 from .. import fields
 from .field_row import FieldRow
 from .problem_line import ProblemLine
+from .state_form import out_of_tab_order
 from .term_form import TermForm
 
 DIRECTIONS = [("done on the system", "on"), ("done by the system", "by")]
@@ -40,7 +41,8 @@ class WorkTermForm(TermForm):
             with Horizontal():
                 yield Select([(k, k) for k in WORK_KINDS], value=self.term.kind, allow_blank=False,
                              compact=True, id="kind", tooltip="shaft, stirring, electrical, boundary or other")
-                yield Button("remove", compact=True, id="remove", tooltip="Remove this term (ctrl+g)")
+                yield out_of_tab_order(Button("remove ^g", compact=True, id="remove",
+                                                    tooltip="Remove this term (ctrl+g)"))
             yield FieldRow("W", magnitude, kind="energy", id="value", allow_unknown=True, required=True,
                            field_label=f"W of work term {self.index + 1}", label_width=6,
                            tooltip="The work, e.g. 15 kJ, or ? to solve for it")
