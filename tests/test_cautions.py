@@ -7,6 +7,11 @@ pressure-equipment rules begin), a low-temperature caution below -29 °C
 common pressure-vessel codes), a caution when the final pressure exceeds every
 initial one, and always the statement that the calculation is not a design
 and defers to the codes and a licensed engineer.
+
+Where compartments join suddenly, the gas left in an emptying compartment expands on its
+own and is colder than the settled state; the caution takes the isentropic bound, checked
+here against the ideal gas's closed form T2 = T1 (P2/P1)^(R/cp) (common practice, no
+source) and against CoolProp 8.0's (P, s) flash of nitrogen.
 """
 
 from __future__ import annotations
@@ -14,7 +19,7 @@ from __future__ import annotations
 import pytest
 
 from balance import api
-from tests.helpers import sheet
+from tests.helpers import sample, sheet
 
 #: A phrase that identifies each caution in the text (the text itself is tested in the goldens).
 DISCLAIMER = "checked by a competent, licensed engineer"
@@ -86,11 +91,11 @@ def test_a_heated_rigid_vessel_shows_its_rise():
 # Every bundled sample, from the numbers its worksheet gives and its solved final state:
 SAMPLES = {
     "air-test-cylinder-reversible.toml": {PRESSURE, ABOVE_INITIAL},   # 1 bar to 8 bar, 20 °C and hotter
-    "argon-membrane-rupture.toml": {PRESSURE},                        # 80 bar start, settles at 20 bar, 4.7 °C
+    "argon-membrane-rupture.toml": {PRESSURE, LOW_TEMPERATURE},       # 80 bar to 20 bar: chamber A's gas -99 °C
     "co2-cylinder-hot-store.toml": {PRESSURE, ABOVE_INITIAL},         # heated rigid: 51 to 92 bar
     "methane-piston-isothermal.toml": {PRESSURE, ABOVE_INITIAL},      # 5 bar to 60 bar at 25 °C
     "n2-accumulator-polytropic.toml": {PRESSURE, ABOVE_INITIAL},      # 90 bar to 210 bar
-    "n2-buffer-into-receiver.toml": {PRESSURE},                       # 150 barg; cools to -10.8 °C only
+    "n2-buffer-into-receiver.toml": {PRESSURE, LOW_TEMPERATURE},      # settles at -10.8 °C; V-101's gas -86 °C
     "steam-kettle-wet.toml": {PRESSURE, ABOVE_INITIAL},               # 1 atm heated rigid: 5.8 bar
 }
 
@@ -107,3 +112,99 @@ def test_the_table_covers_every_sample():
     from tests.test_record_support import sample_names
 
     assert sorted(SAMPLES) == sample_names()
+
+
+# -- the gas left behind when compartments join suddenly --------------------------------------
+def emptied(P1: str, V2: str, cp: str | None = None, model: str = "ideal-gas") -> str:
+    """Nitrogen at 20 °C and P1 in 1 m3, let into an evacuated volume V2 (free expansion)."""
+    overrides = f'[fluid.overrides]\ncp = "{cp}"\n' if cp else ""
+    return f"""
+[fluid]
+species = "N2"
+model = "{model}"
+{overrides}[[initial]]
+name = "source"
+T = "20 degC"
+P = "{P1}"
+V = "1 m3"
+[[initial]]
+name = "receiver"
+empty = true
+V = "{V2}"
+[final]
+name = "settled"
+T = "?"
+P = "?"
+[process]
+constraints = ["free-expansion"]
+"""
+
+
+def test_the_gas_left_behind_follows_the_ideal_gas_isentrope():
+    from balance.balances.cautions import gas_left_behind
+
+    r = api.solve(sheet(emptied("10 bar", "3 m3", cp="29.1 J/(mol K)")))
+    # ideal gas, constant cp: the free expansion keeps T (Joule), P2 = P1/4, and the gas left
+    # in the source expands isentropically: T = T1 (P2/P1)^(R/cp)
+    assert r.final.point.T == pytest.approx(293.15, rel=1e-9)
+    state, T, reason = gas_left_behind(r.initial, r.final)
+    assert state.name == "source" and reason == ""
+    assert T == pytest.approx(293.15 * 0.25 ** (8.314462618 / 29.1), abs=0.01)  # 197.4 K, -75.8 °C
+    (c,) = [str(c) for c in r.cautions if LOW_TEMPERATURE in str(c)]
+    assert c.startswith("During the event the gas left in 'source' expands from 10 bar(a) to 2.5 bar(a): ")
+    assert f"it cools to {T - 273.15:.1f} °C, below -29 °C" in c
+    assert "the settled 20.0 °C is the state after mixing" in c
+    assert c.endswith("follow that code.")
+
+
+def test_the_demo_bound_agrees_with_the_reference_equation_of_nitrogen():
+    import CoolProp.CoolProp as CP
+
+    from balance.balances.cautions import gas_left_behind
+
+    r = api.solve(sample("n2-buffer-into-receiver.toml"))
+    _, T, _ = gas_left_behind(r.initial, r.final)
+    P1, P2 = r.initial[0].point.P, r.final.point.P
+    s1 = CP.PropsSI("S", "T", 293.15, "P", P1, "Nitrogen")
+    reference = CP.PropsSI("T", "P", P2, "S", s1, "Nitrogen")  # CoolProp 8.0: 186.33 K (-86.8 °C)
+    assert T == pytest.approx(reference, abs=1.0)  # Peng-Robinson: 186.77 K
+    (c,) = [str(c) for c in r.cautions if LOW_TEMPERATURE in str(c)]
+    assert "it cools to -86.4 °C, below -29 °C" in c and "the settled -10.8 °C is the state after mixing" in c
+
+
+def test_the_isentrope_of_the_reference_model_is_its_own_flash():
+    from balance.api import fluid
+    from balance.balances.cautions import isentropic_temperature
+
+    _, model = fluid("N2", "reference")
+    start = model.at_TP(293.15, 150e5)
+    T = isentropic_temperature(model, start, 30e5)
+    assert T == pytest.approx(model.flash({"P": 30e5, "s": start.s}).T, abs=1e-4)
+
+
+def test_a_small_emptying_adds_no_low_temperature_caution():
+    # 1.2 bar into a fifth more volume: the gas left behind cools only to about 278 K
+    r = api.solve(sheet(emptied("1.2 bar", "0.2 m3")))
+    assert kinds(r.cautions) == {DISCLAIMER}
+
+
+def test_a_quasi_static_path_has_no_gas_left_behind():
+    # the methane compression and the polytropic accumulator are not sudden: no such caution
+    for name in ("methane-piston-isothermal.toml", "n2-accumulator-polytropic.toml"):
+        r = api.solve(sample(name))
+        assert not any("During the event" in str(c) for c in r.cautions)
+
+
+def test_the_readme_says_what_the_demo_shows():
+    import re
+
+    from balance.balances.cautions import gas_left_behind
+    from tests.helpers import ROOT
+
+    readme = " ".join((ROOT / "README.md").read_text(encoding="utf-8").split())
+    settled, behind = re.search(r"The demo settles at −(\d+\.\d) °C, above the limit, but the gas left in V-101 "
+                                r"cools towards −(\d+) °C during the event", readme).groups()
+    r = api.solve(sample("n2-buffer-into-receiver.toml"))
+    assert f"{r.final.point.T - 273.15:.1f}" == f"-{settled}"
+    assert round(gas_left_behind(r.initial, r.final)[1] - 273.15) == -int(behind)
+    assert "below −29 °C / −20 °F" in readme and "No caution is shown above the limit." in readme

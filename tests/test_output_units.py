@@ -93,13 +93,22 @@ def test_us_units_never_print_bar_in_the_cautions(demo):
 
 
 def test_the_low_temperature_caution_follows_the_units(cold):
-    T = cold.final.point.T
-    assert T < 244.15
-    us = cautions_shown(cold, "us")
-    assert f"A temperature of {1.8 * (T - 273.15) + 32:.1f} °F occurs (the final state 'settled'), below -20 °F" in us
+    from balance.balances.cautions import gas_left_behind
+    from tests.test_cautions import held
+
+    r = api.solve(sheet(held("-40 degC", "1 bar")))  # -40 °C is -40 °F
+    us = cautions_shown(r, "us")
+    assert "A temperature of -40.0 °F occurs (the final state 'final'), below -20 °F" in us
     assert "°C" not in us
-    si = cautions_shown(cold, "si")
-    assert f"A temperature of {T:.1f} K occurs (the final state 'settled'), below 244 K" in si
+    assert "A temperature of 233.1 K occurs (the final state 'final'), below 244 K" in cautions_shown(r, "si")
+    # the gas left behind in a sudden expansion, in US units: 200 bar = 2900.75 psi
+    _, T, _ = gas_left_behind(cold.initial, cold.final)
+    us = cautions_shown(cold, "us")
+    P2 = cold.final.point.P / 6894.757
+    assert f"the gas left in 'V-1' expands from 2901 psia to {P2:.4g} psia" in us
+    assert f"it cools to {1.8 * (T - 273.15) + 32:.1f} °F, below -20 °F" in us
+    assert f"the settled {1.8 * (cold.final.point.T - 273.15) + 32:.1f} °F is the state after mixing" in us
+    assert "°C" not in us and "bar" not in us
 
 
 def test_the_record_keeps_its_units_and_says_which(demo):

@@ -15,6 +15,8 @@ import math
 from dataclasses import dataclass
 from typing import Callable
 
+from ..errors import BalanceError
+
 #: Below this metal temperature carbon steels need impact-test qualification under
 #: the common pressure-vessel codes (-29 °C / -20 °F; common practice, no source).
 LOW_TEMPERATURE_K = 244.15
@@ -62,12 +64,15 @@ DISCLAIMER = Caution(
 )
 
 
-def cautions_for(p_atm: float, initial, final) -> list[Caution]:
+def cautions_for(p_atm: float, initial, final, event: bool = False) -> list[Caution]:
     """The cautions an engineer expects to see beside a result that can hurt someone.
 
     ``p_atm`` [Pa] is the atmosphere gauge pressures are read against; ``initial``
     and ``final`` are the states (:class:`balance.state.State`). A pressure the
-    model does not determine (NaN) is left out of the pressure cautions.
+    model does not determine (NaN) is left out of the pressure cautions. ``event``:
+    the compartments join suddenly (a free expansion, a rupture), so the gas left in
+    a compartment that empties expands on its own on the way to the final pressure
+    and is colder than the settled state (:func:`gas_left_behind`).
     """
     out = [DISCLAIMER]
     states = [*initial, final]
@@ -80,15 +85,15 @@ def cautions_for(p_atm: float, initial, final) -> list[Caution]:
             (("P", max(known)),),
         ))
     coldest = min(reversed(states), key=lambda st: st.point.T)  # of equals, the final state
-    if coldest.point.T < LOW_TEMPERATURE_K:
+    behind = gas_left_behind(initial, final) if event else None
+    if behind is not None and (behind[1] is None or behind[1] < min(LOW_TEMPERATURE_K, coldest.point.T)):
+        out.append(_cooling_caution(final, *behind))
+    elif coldest.point.T < LOW_TEMPERATURE_K:
         where = "the final state" if coldest is final else "the initial state"
         out.append(Caution(
             "low temperature",
             f"A temperature of {{}} occurs ({where} '{coldest.name}'), below {{}}, the usual limit for "
-            "carbon-steel equipment without impact testing (common practice): check the minimum design "
-            "metal temperature of every vessel and pipe within the boundary (low-temperature "
-            "embrittlement) before relying on this result. The limit depends on the material and on "
-            "the code that governs the equipment: follow that code.",
+            f"carbon-steel equipment without impact testing (common practice): {_CHECK}. {_DEFER}",
             (("T", coldest.point.T), ("T limit", LOW_TEMPERATURE_K)),
         ))
     initial_P = [st.point.P for st in initial if math.isfinite(st.point.P)]
@@ -96,3 +101,83 @@ def cautions_for(p_atm: float, initial, final) -> list[Caution]:
         out.append(Caution("above initial",
                            "The final pressure exceeds every initial pressure: the boundary must be rated for it."))
     return out
+
+
+#: What the low-temperature cautions say after the temperature and its place.
+_CHECK = ("check the minimum design metal temperature of every vessel and pipe within the boundary "
+          "(low-temperature embrittlement) before relying on this result")
+_DEFER = "The limit depends on the material and on the code that governs the equipment: follow that code."
+
+
+def gas_left_behind(initial, final):
+    """The coldest gas left in a compartment that empties, when compartments join suddenly.
+
+    Each compartment whose pressure falls to the final pressure P2 keeps expanding
+    while it empties; with no time for heat from the walls that expansion is
+    isentropic, the usual bound of a fast blowdown (common practice, no source): the
+    gas left in it cools to T(P2, s1), below the settled state, which is the state
+    after the streams have mixed. Returns (state, T [K], reason) for the coldest
+    compartment, with T None and the model's words when it cannot follow the gas
+    there (it would condense, or leave the model's range); None when no
+    compartment empties.
+    """
+    P2 = final.point.P
+    found = []
+    for st in initial:
+        if not (math.isfinite(P2) and st.point.P > P2 * (1 + 1e-9)):
+            continue
+        try:
+            found.append((st, isentropic_temperature(st.model, st.point, P2, final.point), ""))
+        except BalanceError as exc:
+            found.append((st, None, str(exc)))
+    if not found:
+        return None
+    unknown = [f for f in found if f[1] is None]
+    return unknown[0] if unknown else min(found, key=lambda f: f[1])
+
+
+def isentropic_temperature(model, start, P: float, near=None) -> float:
+    """T [K] at pressure P [Pa] with the entropy of the point ``start``, in the same phase.
+
+    Newton's method on ln T, (∂ln T/∂s)_P = 1/cp, through states at (T, P), from
+    T1 (P/P1)^((cp - cv)/cp) with cp and cv of ``near`` (a point at or near P; default
+    ``start``). A step below 1e-3 leaves an error of the order of its square (about
+    1e-6 of T), far below the 0.1 K a caution prints, so two or three states do.
+    Where the states leave the phase or do not settle, the model's own (P, s) flash.
+    Raises BalanceError where the model has no such state (a cubic's two-phase region).
+    """
+    q = near if near is not None else start
+    k = (q.cp - q.cv) / q.cp if math.isfinite(q.cp) and math.isfinite(q.cv) and q.cp > 0 else 0.0
+    T = start.T * (P / start.P) ** k
+    for _ in range(12):
+        try:
+            q = model.at_TP(T, P)
+        except BalanceError:
+            break
+        if q.phase in ("liquid", "two-phase") or not (math.isfinite(q.cp) and q.cp > 0):
+            break
+        step = (start.s - q.s) / q.cp
+        T *= math.exp(step)
+        if abs(step) < 1e-3:
+            return T
+    return model.flash({"P": P, "s": start.s}, "state").T
+
+
+def _cooling_caution(final, st, T, reason: str) -> Caution:
+    if T is None:
+        return Caution(
+            "low temperature",
+            f"During the event the gas left in '{st.name}' expands from {{}} to {{}} and cools below the "
+            f"settled {{}}, but the model cannot follow it there ({reason.rstrip('.')}): estimate its "
+            f"coldest temperature with the reference model, then {_CHECK}. {_DEFER}",
+            (("P", st.point.P), ("P", final.point.P), ("T", final.point.T)),
+        )
+    return Caution(
+        "low temperature",
+        f"During the event the gas left in '{st.name}' expands from {{}} to {{}}: with no time for heat "
+        "from the walls (isentropically, the usual bound of a fast blowdown) it cools to {}, below {}, "
+        "the usual limit for carbon-steel equipment without impact testing (common practice); the "
+        f"settled {{}} is the state after mixing (the balance gives end states only). {_CHECK[0].upper()}"
+        f"{_CHECK[1:]}; the metal cools more slowly than the gas. {_DEFER}",
+        (("P", st.point.P), ("P", final.point.P), ("T", T), ("T limit", LOW_TEMPERATURE_K), ("T", final.point.T)),
+    )

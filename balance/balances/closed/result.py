@@ -23,6 +23,10 @@ from .explain import WORDING, RoundOff, explain
 from .problem import Problem
 
 
+#: Constraints under which compartments join suddenly (the cautions look at the gas left behind).
+EVENTS = {"free-expansion", "membrane-rupture"}
+
+
 @dataclass(frozen=True)
 class Result:
     """A solved closed-system balance, every value in SI."""
@@ -152,7 +156,7 @@ def result_of(s, final_point: Point, lin: dict, method: str) -> Result:
         problem=p, initial=initial, final=final, terms=tuple(terms), n=n, dU=dU, dU_ig=dU_ig,
         dU_dep=dU_dep, dS_system=dS, dS_surroundings=dS_surr, S_gen=S_gen, residual=residual,
         iterations=evaluations, method=method, equations=(), warnings=tuple(warnings),
-        cautions=tuple(cautions_for(p.p_atm, initial, final)), round_off=round_off, unknowns=unknowns,
+        cautions=tuple(cautions_for(p.p_atm, initial, final, event=bool(EVENTS & set(p.constraints)))), round_off=round_off, unknowns=unknowns,
     )
     return replace(result, equations=tuple(explain(result)))
 
