@@ -1,0 +1,9 @@
+"""The steady-flow balance: streams through devices, the open form of the control-volume balance.
+
+    0 = Σ ṅ_in e_in - Σ ṅ_out e_out + Σ Q̇ + Σ Ẇ,   e = h + M (V²/2 + g z)
+    Ṡ_gen = Σ ṅ_out s_out - Σ ṅ_in s_in - Σ Q̇ / T_boundary  >= 0
+
+- :mod:`.streams` — a stream's state, rate, speed and height (:class:`~.streams.Flow`);
+- :mod:`.devices` — what each kind of device does, solved forward, and the three balances
+  recomputed from the flows (the independent check).
+"""
