@@ -143,3 +143,24 @@ async def test_the_terms_note_follows_the_terms(tmp_path, author):
         await pilot.press("ctrl+g")  # removed again
         await settle(pilot)
         assert on_screen(app, "No terms: Q = 0 and W = 0.")
+
+
+async def test_the_adequacy_hint_of_step_3_is_on_screen_without_scrolling(tmp_path, author):
+    app = sample_app(tmp_path, DEMO)
+    app.session.step = "fluid"
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        from tests.test_tui_pilot import wait_until
+
+        await wait_until(pilot, lambda: app.advice is not None, what="advice")
+        await settle(pilot)
+        advice = app.screen.query_one("#advice")
+        form = app.screen.query_one("#form")
+        assert form.scroll_y == 0
+        assert advice.region.height >= 3 and advice.region.bottom <= form.region.bottom
+        assert on_screen(app, app.advice.recommendation)
+        # moving on to the model list gives the species matches' lines to the hint
+        await focus(pilot, is_widget("model"))
+        await settle(pilot)
+        assert not app.screen.query_one("#species-results").display
+        assert advice.region.bottom <= form.region.bottom

@@ -57,14 +57,15 @@ liquid (use the incompressible or the reference model).
     def compose_form(self) -> ComposeResult:
         f = self.worksheet.fluid
         yield SpeciesPicker(f.species, id="picker")
-        yield Label("Property model", classes="form-label")
+        yield Label("Property model", classes="form-label fluid--model-label")
         yield ChoiceList(MODELS, _canonical(f.model), disabled_values=self._disabled(f.species), id="model")
         yield ProblemLine(about="#model", id="model-problem")
+        # the hint straight under the model it judges: on screen at 80x24 without scrolling
+        yield Label("Adequacy at the states given so far", classes="form-label")
+        yield Static("", id="advice", markup=False)
         yield FieldRow("Overrides", overrides_text(f.overrides), id="overrides",
                        placeholder="none; e.g. Tc = 126.2 K; omega = 0.04",
                        tooltip="Constants that replace the data's, NAME = VALUE; separated by ;")
-        yield Label("Adequacy at the states given so far", classes="form-label")
-        yield Static("", id="advice", markup=False)
 
     def on_mount(self) -> None:
         super().on_mount()

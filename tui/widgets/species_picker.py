@@ -83,7 +83,7 @@ class SpeciesPicker(Widget):
         found = matches(query)
         shown = found[:MAX_SHOWN]
         results.set_options([Option(f"{sp.id:<8} {sp.name}", id=sp.id) for sp in shown])
-        results.display = bool(found)
+        self._show_results()
         note = self.query_one(".species-picker--found", Static)
         if not query.strip():
             first = f" (first {len(shown)} listed)" if len(shown) < len(found) else ""
@@ -97,6 +97,18 @@ class SpeciesPicker(Widget):
         ref = "reference model: yes" if sp.coolprop else "reference model: no"
         note.update(f"→ {sp.name} ({sp.id}): M = {sp.M * 1e3:.4g} g/mol, Tc = {sp.Tc:.5g} K, "
                     f"Pc = {sp.Pc / 1e5:.4g} bar, ω = {sp.omega:.3g}; {ref}")
+
+    def _show_results(self) -> None:
+        """The matches while the species is being chosen (its field or the list focused);
+        otherwise they give their lines to the model and its adequacy hint."""
+        results = self.query_one("#species-results", OptionList)
+        results.display = bool(results.option_count) and self.has_focus_within
+
+    def on_descendant_focus(self, event) -> None:
+        self._show_results()
+
+    def on_descendant_blur(self, event) -> None:
+        self.call_after_refresh(self._show_results)  # the focus may move to the list, within
 
     def on_input_changed(self, event: Input.Changed) -> None:
         self._fill(event.value)
