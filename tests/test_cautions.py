@@ -207,4 +207,4 @@ def test_the_readme_says_what_the_demo_shows():
     r = api.solve(sample("n2-buffer-into-receiver.toml"))
     assert f"{r.final.point.T - 273.15:.1f}" == f"-{settled}"
     assert round(gas_left_behind(r.initial, r.final)[1] - 273.15) == -int(behind)
-    assert "below −29 °C / −20 °F" in readme and "No caution is shown above the limit." in readme
+    assert "below −29 °C / −20 °F" in readme and "No caution is shown above the limit" in readme

@@ -49,7 +49,7 @@ def unit_label(kind: str, units: str) -> str:
 
 def show(value: float | None, kind: str, units: str, digits: int = 6) -> str:
     """An SI value (mass-based for intensive properties) in the chosen set, as text."""
-    if value is None:
+    if value is None or value != value:  # none, or NaN: a value the model does not determine
         return "—"
     target = UNIT_SETS[units][kind]
     try:

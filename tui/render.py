@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+
 from rich import box
 from rich.console import Group
 from rich.panel import Panel
@@ -32,7 +34,7 @@ def states_table(states: list[State], units: str, title: str = "States") -> Tabl
             value = raw if label in ("T", "P") else raw / st.M
             vals.append(show(value, kind, units))
         t.add_row(label, unit_label(kind, units), *vals)
-    t.add_row("Z", "", *(f"{st.point.Z:.6g}" for st in states))
+    t.add_row("Z", "", *(f"{st.point.Z:.6g}" if math.isfinite(st.point.Z) else "—" for st in states))
     t.add_row("x", "", *("—" if st.point.x is None else f"{st.point.x:.6g}" for st in states))
     t.add_row("phase", "", *(st.point.phase for st in states))
     t.add_row("n", unit_label("n", units), *(show(st.n, "n", units) for st in states))
@@ -52,7 +54,8 @@ def headline(r: Result, units: str) -> str:
         zero = ro.zero(x, "J/K" if kind == "S" else "J") if kind in ("E", "S") else False
         return f"{'0' if zero else show(x, kind, units, digits)} {unit_label(kind, units)}"
 
-    parts = [f"{f.name}: T = {value(f.point.T, 'T')}, P = {value(f.point.P, 'P')}"]
+    P = f"P = {value(f.point.P, 'P')}" if math.isfinite(f.point.P) else "P not determined by the model"
+    parts = [f"{f.name}: T = {value(f.point.T, 'T')}, {P}"]
     for t in r.terms:
         if not t.solved or (t.kind == "boundary work" and t.name == "rigid"):  # rigid: 0 by its path
             continue

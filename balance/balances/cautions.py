@@ -39,7 +39,7 @@ class Caution:
     """One caution: its words, with ``{}`` where each value goes, and the values in SI."""
 
     kind: str
-    """'disclaimer', 'pressure', 'low temperature' or 'above initial'"""
+    """'disclaimer', 'pressure', 'low temperature', 'above initial' or 'pressure not determined'"""
     words: str
     values: tuple[tuple[str, float], ...] = ()
     """(kind of value, SI value) for each ``{}`` in ``words`` (see :data:`Show`)"""
@@ -96,6 +96,8 @@ def cautions_for(p_atm: float, initial, final, event: bool = False) -> list[Caut
             f"carbon-steel equipment without impact testing (common practice): {_CHECK}. {_DEFER}",
             (("T", coldest.point.T), ("T limit", LOW_TEMPERATURE_K)),
         ))
+    if not math.isfinite(final.point.P):
+        out.append(_liquid_full(final))
     initial_P = [st.point.P for st in initial if math.isfinite(st.point.P)]
     if initial_P and math.isfinite(final.point.P) and final.point.P > max(initial_P) * 1.001:
         out.append(Caution("above initial",
@@ -180,4 +182,22 @@ def _cooling_caution(final, st, T, reason: str) -> Caution:
         f"settled {{}} is the state after mixing (the balance gives end states only). {_CHECK[0].upper()}"
         f"{_CHECK[1:]}; the metal cools more slowly than the gas. {_DEFER}",
         (("P", st.point.P), ("P", final.point.P), ("T", T), ("T limit", LOW_TEMPERATURE_K), ("T", final.point.T)),
+    )
+
+
+def _liquid_full(final) -> Caution:
+    """The final pressure is not the model's to give (the incompressible model fixes v, not P)."""
+    species = final.model.species
+    where = ('solve the same worksheet with the reference model (model = "reference"), which gives '
+             f"{species.name}'s compressibility" if species.coolprop else
+             f"use a model that gives {species.name}'s compressibility (the reference model has no "
+             "equation for it)")
+    return Caution(
+        "pressure not determined",
+        f"The {final.model.name} model fixes the liquid's volume, not its pressure: it cannot give the "
+        f"pressure of '{final.name}'. A real liquid heated in a closed, rigid vessel it fills raises its "
+        "pressure sharply (its expansion is held back only by its small compressibility), which is why "
+        "liquid-full equipment that can be blocked in and heated gets thermal "
+        f"relief (common practice; follow the code that governs the equipment, e.g. API 521). For the "
+        f"pressure, {where}.",
     )

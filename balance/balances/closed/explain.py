@@ -75,6 +75,12 @@ def _n(x: float) -> str:
     return "0" if t == "-0" else t
 
 
+def _P(P: float) -> str:
+    """A state's pressure, or that the model does not determine it (the incompressible model
+    fixes v, not P, and leaves P as NaN)."""
+    return f"P = {_n(P)} Pa" if math.isfinite(P) else "P not determined by the model (it fixes v, not P)"
+
+
 def _factor(x: float) -> str:
     """A number as a factor after ×: a negative one in parentheses, as engineers write it."""
     return f"({_n(x)})" if x < 0 else _n(x)
@@ -105,20 +111,24 @@ def explain(r) -> list[str]:
     for st in r.initial:
         pt = st.point
         lines.append(
-            f"State {st.name}: T = {_n(pt.T)} K, P = {_n(pt.P)} Pa, v = {_n(pt.v)} m3/mol, "
+            f"State {st.name}: T = {_n(pt.T)} K, {_P(pt.P)}, v = {_n(pt.v)} m3/mol, "
             f"u = {_n(pt.u)} J/mol, s = {_n(pt.s)} J/(mol K), n = {_n(st.n)} mol"
         )
     fixed = ", ".join(f"{k} by {w}" if w != "given" else f"{k} given" for k, w in p.final_sources.items())
     lines.append(
-        f"State {f.name}: T = {_n(fp.T)} K, P = {_n(fp.P)} Pa, v = {_n(fp.v)} m3/mol, "
+        f"State {f.name}: T = {_n(fp.T)} K, {_P(fp.P)}, v = {_n(fp.v)} m3/mol, "
         f"u = {_n(fp.u)} J/mol, s = {_n(fp.s)} J/(mol K)" + (f"  [{fixed}]" if fixed else "")
     )
     U1 = sum(st.U for st in r.initial)
     lines.append(f"ΔU = n u2 - Σ n u1 = {_n(r.n)} × {_factor(fp.u)}{_minus(U1)} = {_kJ(r.dU, ro)}")
-    lines.append(
-        f"  ideal-gas part Σ n (u_ig(T2) - u_ig(T1)) = {_kJ(r.dU_ig, ro)}; "
-        f"departure part Σ n (u_dep2 - u_dep1) = {_kJ(r.dU_dep, ro)}"
-    )
+    if math.isfinite(r.dU_ig) and math.isfinite(r.dU_dep):
+        lines.append(
+            f"  ideal-gas part Σ n (u_ig(T2) - u_ig(T1)) = {_kJ(r.dU_ig, ro)}; "
+            f"departure part Σ n (u_dep2 - u_dep1) = {_kJ(r.dU_dep, ro)}"
+        )
+    else:
+        lines.append(f"  not split into ideal-gas and departure parts: the {p.model.name} model has no "
+                     "ideal-gas state")
     for t in r.terms:
         if t.kind == "boundary work":
             lines.append(_boundary_line(r, t, ro))
