@@ -22,9 +22,15 @@ def screen_lines(app) -> list[str]:
 
 
 def on_screen(app, text: str) -> bool:
-    """Whether ``text`` is drawn whole, wrapped at word ends onto as many lines as it takes."""
-    drawn = " ".join(" ".join(line.split()) for line in screen_lines(app))
-    return " ".join(text.split()) in drawn
+    """Whether ``text`` is drawn whole, wrapped at word ends onto as many lines as it takes
+    (across the screen's width, or in the form's column, right of the step list)."""
+    lines = screen_lines(app)
+    wanted = " ".join(text.split())
+    for start in (0, 18):
+        drawn = " ".join(" ".join(line[start:].split()) for line in lines)
+        if wanted in drawn:
+            return True
+    return False
 
 
 async def test_a_long_degrees_of_freedom_line_wraps_and_is_never_cut(tmp_path, author):
@@ -164,3 +170,36 @@ async def test_the_adequacy_hint_of_step_3_is_on_screen_without_scrolling(tmp_pa
         await settle(pilot)
         assert not app.screen.query_one("#species-results").display
         assert advice.region.bottom <= form.region.bottom
+
+
+# -- sign-off ---------------------------------------------------------------------------------
+async def test_an_unsigned_sign_off_is_never_reported_as_a_plain_pass(tmp_path, author, monkeypatch):
+    from tui.screens import sign
+
+    monkeypatch.setattr(sign, "default_key", lambda: "")  # no key found on this machine
+    app = sample_app(tmp_path, DEMO)
+    app.session.step = "review"
+    seen: list = []
+    async with app.run_test(size=SIZE, message_hook=seen.append) as pilot:
+        await ready(pilot)
+        await pilot.press("ctrl+g")
+        await pilot.pause(0.2)
+        key = app.screen.query_one("#key")
+        # the field's hint cannot be taken for a typed path: it is a sentence in brackets
+        assert key.value == "" and key.input.placeholder.startswith("(none")
+        assert "/" not in key.input.placeholder and "~" not in key.input.placeholder
+        assert on_screen(app, "e.g. ~/.ssh/id_ed25519; signed with ssh-keygen -Y sign")
+        await focus(pilot, is_widget("unsigned"))
+        await pilot.press("space")
+        await focus(pilot, is_widget("sign"))
+        await pilot.press("enter")
+        await settle(pilot)
+        said = [m.notification.message for m in seen if type(m).__name__ == "Notify"]
+        assert said[-1].startswith("signed off: prepared by t.engineer, unsigned (no signature) (entry ")
+        assert on_screen(app, "UNSIGNED: no signature proves who did")
+        await focus(pilot, is_widget("verify"))
+        await pilot.press("enter")
+        await settle(pilot)
+        said = [m.notification.message for m in seen if type(m).__name__ == "Notify"]
+        assert said[-1].startswith("the record verifies: chain intact")
+        assert "UNSIGNED sign-off, no signature: prepared by t.engineer (entry " in said[-1]

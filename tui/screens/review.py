@@ -89,7 +89,12 @@ that starts a new revision, which needs signing again.
         if dirty:
             parts += ["\n", (f"uncommitted: {', '.join(dirty)} (ctrl+s commits)", "$text-warning")]
         elif session.signed():
-            parts += ["\n", ("signed off since the last change", "$text-success")]
+            last = signoffs[-1] if signoffs else None
+            if last is not None and last.data.get("unsigned"):
+                parts += ["\n", ("signed off since the last change, UNSIGNED: no signature proves who did",
+                                  "$text-warning")]
+            else:
+                parts += ["\n", ("signed off since the last change", "$text-success")]
         elif entries:
             parts += ["\n", (f"next sign-off: {session.next_role()}", "$text-muted")]
         summary.update(Content.assemble(*parts))
@@ -206,7 +211,9 @@ that starts a new revision, which needs signing again.
                     raise
                 entry = self._guard(sign)
         if entry is not None:
-            self.notify(f"signed off: {request.role} by {entry.data.get('signer')} (entry {entry.seq})")
+            how = "unsigned (no signature)" if entry.data.get("unsigned") else "signed with the SSH key"
+            self.notify(f"signed off: {request.role} by {entry.data.get('signer')}, {how} (entry {entry.seq})",
+                        severity="warning" if entry.data.get("unsigned") else "information")
         self.app.after_record_change()
         if self.is_attached:  # the user may have moved on while the solve ran
             self.reload()
@@ -216,8 +223,8 @@ that starts a new revision, which needs signing again.
         if v is None:
             return
         self.query_one("#detail", Static).update("\n".join(v.lines()))
-        self.notify("the record verifies" if v.ok else f"the record does not verify: {v.reason}",
-                    severity="information" if v.ok else "error")
+        words, severity = verification_words(v)
+        self.notify(words, severity=severity, timeout=10, markup=False)
 
     async def on_button_pressed(self, event: Button.Pressed) -> None:
         event.stop()
@@ -233,3 +240,22 @@ that starts a new revision, which needs signing again.
         yield SystemCommand("Sign off", "Sign off the record in a role", self.action_sign)
         yield SystemCommand("Verify the record", "Check the seals, the rules and the signatures",
                             self.action_verify)
+
+
+def verification_words(v) -> tuple[str, str]:
+    """What a verification found, in one notice, and its severity: an unsigned sign-off is
+    never reported as a plain pass (nothing proves who made it)."""
+    if not v.ok:
+        return f"the record does not verify: {v.reason}", "error"
+    unsigned = [s for s in v.signoffs if s.status == "unsigned"]
+    valid = [s for s in v.signoffs if s.status == "valid"]
+    words = f"the record verifies: chain intact, {v.entries} entries"
+    if not v.signoffs:
+        return words + "; no sign-off yet", "information"
+    if valid:
+        words += f"; {len(valid)} signature{'' if len(valid) == 1 else 's'} valid"
+    if unsigned:
+        listed = ", ".join(f"{s.role} by {s.signer} (entry {s.seq})" for s in unsigned)
+        words += f"; UNSIGNED sign-off{'' if len(unsigned) == 1 else 's'}, no signature: {listed}"
+        return words, "warning"
+    return words, "information"

@@ -41,6 +41,7 @@ class SignScreen(ModalScreen[SignRequest | None]):
         border: round $success; background: $surface; padding: 0 1;
     }
     SignScreen Static { margin-bottom: 1; }
+    SignScreen .sign--hint { color: $text-muted; margin: 0 0 0 12; }
     SignScreen Horizontal { height: auto; }
     SignScreen .sign--buttons { margin-top: 1; align: center middle; }
     SignScreen Select { width: 1fr; }
@@ -66,9 +67,12 @@ class SignScreen(ModalScreen[SignRequest | None]):
                 yield Select([(r, r) for r in self.roles], value=self.role, allow_blank=False, compact=True,
                              id="role")
             yield FieldRow("Signer", self.signer, id="signer", tooltip="Your name as the record shows it")
-            yield FieldRow("SSH key", default_key(), id="key",
-                           placeholder="~/.ssh/id_ed25519 (signed with ssh-keygen -Y sign)",
+            found = default_key()
+            yield FieldRow("SSH key", found, id="key", placeholder="(none: type the key file's path)",
                            tooltip="Private key file (or a public key held in ssh-agent)")
+            # what the field is for, on a line of its own: a hint in the field looks typed
+            yield Static(("found in ~/.ssh; " if found else "e.g. ~/.ssh/id_ed25519; ")
+                         + "signed with ssh-keygen -Y sign", id="key-hint", classes="sign--hint", markup=False)
             yield TickBox("sign off without a signature (unsigned)", False, id="unsigned", compact=True)
             with Horizontal(classes="sign--buttons"):
                 yield Button("Sign off", id="sign", variant="success")
