@@ -203,3 +203,32 @@ async def test_an_unsigned_sign_off_is_never_reported_as_a_plain_pass(tmp_path, 
         said = [m.notification.message for m in seen if type(m).__name__ == "Notify"]
         assert said[-1].startswith("the record verifies: chain intact")
         assert "UNSIGNED sign-off, no signature: prepared by t.engineer (entry " in said[-1]
+
+
+# -- the report, from the app -------------------------------------------------------------------
+async def test_the_report_is_exported_from_the_app_as_markdown_and_html(tmp_path, author):
+    app = sample_app(tmp_path, DEMO)
+    app.session.step = "review"
+    seen: list = []
+    async with app.run_test(size=SIZE, message_hook=seen.append) as pilot:
+        await ready(pilot)
+        await pilot.press("f3")
+        await pilot.pause(0.2)
+        assert type(app.screen).__name__ == "ExportScreen"
+        await pilot.press("enter")  # Markdown (the first format); on to the file
+        assert app.focused.value == str(tmp_path / "n2-buffer-into-receiver-report.md")
+        await pilot.press("enter")
+        await settle(pilot)
+        md = (tmp_path / "n2-buffer-into-receiver-report.md").read_text()
+        assert md.startswith("# N2 buffer vessel V-101 emptied into evacuated receiver V-102")
+        said = [m.notification.message for m in seen if type(m).__name__ == "Notify"]
+        assert said[-1].startswith("report written (Markdown, 8 entries): ")
+
+        await pilot.press("f3")
+        await pilot.pause(0.2)
+        await pilot.press("down", "space")  # HTML: the file follows the format
+        assert app.focused.value == str(tmp_path / "n2-buffer-into-receiver-report.html")
+        await pilot.press("end", "ctrl+u", *str(tmp_path / "calc.html"), "enter")
+        await settle(pilot)
+        page = (tmp_path / "calc.html").read_text()
+        assert page.lstrip().lower().startswith("<!doctype html") and "V-102" in page

@@ -55,6 +55,8 @@ class JoulebookApp(BackgroundWork, App):
                 tooltip="Switch the display units: SI, metric engineering, US customary"),
         Binding("ctrl+p", "command_palette", "Commands", id="app.commands", priority=True,
                 tooltip="Every command by name"),
+        Binding("f3", "export", "Export", id="record.export", show=False,
+                tooltip="Export the calculation report (Markdown or HTML) from the record"),
         Binding("ctrl+pagedown", "next_step", "Next", id="step.next.page", priority=True, show=False,
                 tooltip="Commit this step and open the next one"),
         Binding("ctrl+pageup", "previous_step", "Back", id="step.back.page", priority=True, show=False,
@@ -368,6 +370,48 @@ class JoulebookApp(BackgroundWork, App):
         else:
             self.start_solve()
 
+    # -- the report ---------------------------------------------------------------------------
+    def action_export(self, fmt: str | None = None) -> None:
+        """Commit what can be committed, then export the record's report: ask for the format
+        and the file (``fmt`` given: that format, to its default file)."""
+        self.commit_all(quiet=True, then=lambda ok: self._export_committed(ok, fmt))
+
+    def _export_committed(self, ok: bool, fmt: str | None) -> None:
+        session = self.session
+        if not ok:
+            return
+        if session.record is None:
+            self.notify("no report yet: nothing has been committed (leaving a step or ctrl+s commits it)",
+                        severity="warning")
+            return
+        if fmt is not None:
+            self._export(fmt, None)
+            return
+        from .screens.export import ExportScreen
+
+        held = session.dirty_steps()
+        note = (f"The report of {session.path.name} as the record holds it: {len(session.entries())} entries, "
+                f"revision {session.record.revision}.")
+        if held:
+            note += (" Not in it: the uncommitted edits to step"
+                     f"{'' if len(held) == 1 else 's'} {', '.join(str(BY_ID[s].number) for s in held)}.")
+        paths = {f: str(session.report_path(f)) for f in ("md", "html")}
+        self.push_screen(ExportScreen(paths, note),
+                         lambda request: request and self._export(request.format, request.path))
+
+    def _export(self, fmt: str, path: str | None) -> None:
+        try:
+            written = self.session.export_report(fmt, path)
+        except BalanceError as exc:
+            self.notify(f"report not written: {exc}", severity="error", timeout=10, markup=False)
+            return
+        except OSError as exc:
+            self.notify(f"report not written: {path}: {exc.strerror}", severity="error", timeout=10, markup=False)
+            return
+        kind = "Markdown" if fmt == "md" else "HTML"
+        self.notify(f"report written ({kind}, {len(self.session.entries())} entries): {written}", timeout=8,
+                    markup=False)
+
     # -- help, units, theme ---------------------------------------------------------------------
     def action_help(self) -> None:
         from .screens.help import HelpScreen
@@ -396,6 +440,11 @@ class JoulebookApp(BackgroundWork, App):
             yield SystemCommand(f"Step {step.number}: {step.title}", f"Commit this step and open step {step.number}",
                                 lambda s=step.id: self.goto(s))
         yield SystemCommand("Commit", "Write the uncommitted edits to the record", self.action_commit)
+        yield SystemCommand("Export the report…", "The calculation report, Markdown or HTML (f3)", self.action_export)
+        yield SystemCommand("Export the report as Markdown", "Beside the record, NAME-report.md",
+                            lambda: self.action_export("md"))
+        yield SystemCommand("Export the report as HTML", "Beside the record, NAME-report.html",
+                            lambda: self.action_export("html"))
         if self.check is not None and self.check.ready:
             yield SystemCommand("Solve", "Solve the balance and record the solve", self.action_solve)
         yield SystemCommand("Help for this step", "What the step is for, and common mistakes", self.action_help)

@@ -278,6 +278,24 @@ class Session:
             self.save_draft()
             return entry
 
+    def report_path(self, fmt: str) -> Path:
+        """Where a report is written by default: beside the record, ``NAME-report.md`` / ``.html``."""
+        return self.path.with_name(f"{self.path.stem}-report.{fmt}")
+
+    def export_report(self, fmt: str, path: Path | str | None = None) -> Path:
+        """Write the calculation report of the record as it stands (Markdown ``md`` or
+        standalone HTML ``html``, :mod:`balance.record.export`) and return where; raises
+        BalanceError (e.g. nothing committed yet) or OSError."""
+        from balance.record import default_allowed_signers, export_html, export_markdown
+        from balance.record.store import write_output
+
+        record = self._need_record("export a report")
+        target = Path(path).expanduser() if path else self.report_path(fmt)
+        allowed = default_allowed_signers()
+        text = export_markdown(record, allowed) if fmt == "md" else export_html(record, allowed)
+        write_output(target, text.encode("utf-8"))
+        return target
+
     def verify(self):
         """The record's :class:`balance.record.Verification` (with the configured allowed signers)."""
         from balance.record import default_allowed_signers

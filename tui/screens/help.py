@@ -20,7 +20,7 @@ KEYS = """\
 | `space` / `enter` | in a list: choose the line, or tick and untick it |
 | `ctrl+s` | commit the edits to the record |
 | `ctrl+r` | solve (when unknowns and equations match) |
-| `f1` | this help; `f2` display units |
+| `f1` | this help; `f2` display units; `f3` export the report (Markdown, HTML) |
 | `ctrl+p` | command palette: every command by name |
 | `ctrl+q` | quit (asks first when edits are uncommitted) |
 

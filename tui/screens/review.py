@@ -36,6 +36,8 @@ one before. This step shows it and adds to it.
   asked on the terminal) or record an unsigned sign-off.
 - *Verify* checks the chain of seals, the sign-off rules and (with an
   allowed-signers file configured) the signatures.
+- `f3` (or *Export*) writes the calculation report from the record, as
+  Markdown or as one HTML page, beside the record unless you say where.
 
 **Common mistakes.** The checker signing as the preparer (refused);
 approving with open comments (refused); changing a step after a sign-off —
@@ -61,6 +63,7 @@ that starts a new revision, which needs signing again.
             yield Button("Resolve ^f", id="resolve", compact=True)
             yield Button("Sign off ^g", id="sign", compact=True, variant="success")
             yield Button("Verify", id="verify", compact=True)
+            yield Button("Export f3", id="export", compact=True)
 
     def on_mount(self) -> None:
         super().on_mount()
@@ -229,7 +232,7 @@ that starts a new revision, which needs signing again.
     async def on_button_pressed(self, event: Button.Pressed) -> None:
         event.stop()
         action = {"comment": self.action_comment, "resolve": self.action_resolve, "sign": self.action_sign,
-                  "verify": self.action_verify}.get(event.button.id)
+                  "verify": self.action_verify, "export": self.app.action_export}.get(event.button.id)
         if action is not None:
             action()
 
