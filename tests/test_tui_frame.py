@@ -232,3 +232,46 @@ async def test_the_report_is_exported_from_the_app_as_markdown_and_html(tmp_path
         await settle(pilot)
         page = (tmp_path / "calc.html").read_text()
         assert page.lstrip().lower().startswith("<!doctype html") and "V-102" in page
+
+
+# -- two models side by side ---------------------------------------------------------------------
+async def test_the_worksheet_is_compared_on_the_reference_model_solved_in_its_own_process(tmp_path, author):
+    import math
+    import multiprocessing
+
+    from balance import api
+    from tests.test_tui_pilot import wait_until
+    from tui import analysis, offload
+
+    app = sample_app(tmp_path, "methane-piston-isothermal.toml")  # Soave-Redlich-Kwong
+    app.session.step = "results"
+    try:
+        async with app.run_test(size=SIZE) as pilot:
+            await ready(pilot)
+            await wait_until(pilot, lambda: app.outcome is not None and app.outcome.result is not None,
+                             what="the solve")
+            entries = len(app.session.entries())
+            await pilot.press("f4")
+            await pilot.pause(0.2)
+            assert type(app.screen).__name__ == "CompareScreen"
+            await pilot.press("end", "enter")  # the last model listed: the reference EOS
+            await wait_until(pilot, lambda: app.comparison is not None and not app.busy, timeout=120,
+                             what="the comparison")
+            await settle(pilot)
+            assert multiprocessing.active_children()  # solved in the reference model's process
+            c = app.comparison
+            rows = {label: (a, b) for label, _, a, b in c.rows}
+            own = app.outcome.result
+            # the first column is the solve on screen, not another one
+            assert c.attempts[0].result is own and rows["P end"][0] == own.final.point.P
+            # the second is the worksheet solved on the reference model (CoolProp 8.0)
+            reference = api.attempt(analysis.with_model(app.session.worksheet, "reference")).result
+            q_ref = next(t for t in reference.terms if t.name == "jacket").value
+            assert math.isclose(rows["Q 'jacket'"][1], q_ref, rel_tol=1e-9)
+            assert math.isclose(rows["T end"][1], reference.final.point.T, rel_tol=1e-9)
+            # side by side on screen, with the difference, and nothing recorded
+            assert on_screen(app, "A: Soave–Redlich–Kwong B: reference EOS (CoolProp)")
+            assert any(line.lstrip("│ ").startswith("Q 'jacket'") for line in screen_lines(app))
+            assert len(app.session.entries()) == entries
+    finally:
+        offload.shutdown()

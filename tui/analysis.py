@@ -285,6 +285,84 @@ def solve(source: Worksheet | dict) -> api.Attempt:
     return api.attempt(source.to_dict() if isinstance(source, Worksheet) else source)
 
 
+# -- two models side by side ----------------------------------------------------------------
+@dataclass(frozen=True)
+class Comparison:
+    """One worksheet solved on two models: what each gives, row by row."""
+
+    worksheet: Worksheet
+    models: tuple[str, str]
+    attempts: tuple[api.Attempt, api.Attempt]
+    rows: tuple[tuple[str, str, float | None, float | None], ...] = ()
+    """(label, display kind, value on the first model, on the second); SI, per unit mass
+    for the intensive ones (what :func:`tui.display.show` takes)"""
+
+
+def with_model(ws: Worksheet, model: str) -> Worksheet:
+    """The worksheet with its property model replaced (species and overrides kept)."""
+    return ws.with_(fluid=ws.fluid.__class__(species=ws.fluid.species, model=model, overrides=ws.fluid.overrides))
+
+
+def compared(ws: Worksheet, models: tuple[str, str], attempts: tuple[api.Attempt, api.Attempt]) -> Comparison:
+    """The rows worth comparing: the final state, each term the balance solved for, ΔU and
+    the entropy generated."""
+    a, b = (x.result for x in attempts)
+
+    def value(result, get):
+        if result is None:
+            return None
+        try:
+            return get(result)
+        except (AttributeError, KeyError, StopIteration):
+            return None
+
+    some = a or b
+    rows: list[tuple] = []
+    if some is not None:
+        name = some.final.name
+        rows += [(f"T {name}", "T", value(a, lambda r: r.final.point.T), value(b, lambda r: r.final.point.T)),
+                 (f"P {name}", "P", value(a, lambda r: r.final.point.P), value(b, lambda r: r.final.point.P)),
+                 (f"v {name}", "v", value(a, lambda r: r.final.point.v / r.final.M),
+                  value(b, lambda r: r.final.point.v / r.final.M))]
+        for t in some.terms:
+            if t.kind == "boundary work" and some.problem.path == "rigid":
+                continue  # no boundary work on a rigid path, on any model
+            if t.solved or t.kind == "boundary work":
+                label = ("Q" if t.kind == "heat" else "W") + f" '{t.name}'"
+
+                def term(r, t=t):
+                    found = next(x for x in r.terms if x.kind == t.kind and x.name == t.name)
+                    return r.problem.convention.shown(found.kind, found.value)
+
+                rows.append((label, "E", value(a, term), value(b, term)))
+        rows += [("ΔU", "E", value(a, lambda r: r.dU), value(b, lambda r: r.dU)),
+                 ("S_gen", "S", value(a, lambda r: r.S_gen), value(b, lambda r: r.S_gen))]
+        rows = _round_off(rows, [r for r in (a, b) if r is not None])
+    return Comparison(ws, models, attempts, tuple(rows))
+
+
+#: a computed energy or entropy below this share of the result's scale is round-off of zero
+#: (the balances are solved far tighter; common practice, no source)
+ROUND_OFF = 1e-9
+R_GAS = 8.314462618  # J/(mol K), CODATA 2018 (exact since the 2019 SI)
+
+
+def _round_off(rows: list[tuple], results: list) -> list[tuple]:
+    """Energies and entropies that are round-off of zero, as 0: the scale is the largest of
+    n R T at the final states and the energies compared (n R for entropies)."""
+    scale = {"E": max([abs(r.n * R_GAS * r.final.point.T) for r in results]
+                      + [abs(x) for _, k, *xs in rows if k == "E" for x in xs if x is not None and math.isfinite(x)]),
+             "S": max([abs(r.n * R_GAS) for r in results]
+                      + [abs(x) for _, k, *xs in rows if k == "S" for x in xs if x is not None and math.isfinite(x)])}
+
+    def zeroed(kind: str, x):
+        if kind in scale and x is not None and math.isfinite(x) and abs(x) < ROUND_OFF * scale[kind]:
+            return 0.0
+        return x
+
+    return [(label, kind, zeroed(kind, a), zeroed(kind, b)) for label, kind, a, b in rows]
+
+
 def trace(result):
     """The P-v and T-s diagrams' lines (:func:`balance.api.trace`); raises BalanceError.
 

@@ -55,6 +55,8 @@ class JoulebookApp(BackgroundWork, App):
                 tooltip="Switch the display units: SI, metric engineering, US customary"),
         Binding("ctrl+p", "command_palette", "Commands", id="app.commands", priority=True,
                 tooltip="Every command by name"),
+        Binding("f4", "compare", "Compare", id="balance.compare", show=False,
+                tooltip="Solve the worksheet on another model too and show both side by side"),
         Binding("f3", "export", "Export", id="record.export", show=False,
                 tooltip="Export the calculation report (Markdown or HTML) from the record"),
         Binding("ctrl+pagedown", "next_step", "Next", id="step.next.page", priority=True, show=False,
@@ -71,6 +73,8 @@ class JoulebookApp(BackgroundWork, App):
     units = reactive("metric", init=False)
     dirty: reactive[tuple] = reactive(tuple, init=False)
     busy = reactive("", init=False)
+    comparison = reactive(None, init=False)
+    """the worksheet solved on a second model (tui.analysis.Comparison), for the compare screen"""
     notices: reactive[tuple] = reactive(tuple, init=False)
     """the notifications being shown (textual.notifications.Notification), oldest first:
     a step shows them in its notice bar, where they cover nothing"""
@@ -370,6 +374,16 @@ class JoulebookApp(BackgroundWork, App):
         else:
             self.start_solve()
 
+    # -- two models side by side --------------------------------------------------------------
+    def action_compare(self) -> None:
+        from .screens.compare import CompareScreen
+        from .screens.fluid import FluidScreen
+
+        if isinstance(self.screen, CompareScreen):
+            return
+        fluid = self.session.worksheet.fluid
+        self.push_screen(CompareScreen(fluid.model, FluidScreen._disabled(fluid.species)))
+
     # -- the report ---------------------------------------------------------------------------
     def action_export(self, fmt: str | None = None) -> None:
         """Commit what can be committed, then export the record's report: ask for the format
@@ -440,6 +454,8 @@ class JoulebookApp(BackgroundWork, App):
             yield SystemCommand(f"Step {step.number}: {step.title}", f"Commit this step and open step {step.number}",
                                 lambda s=step.id: self.goto(s))
         yield SystemCommand("Commit", "Write the uncommitted edits to the record", self.action_commit)
+        yield SystemCommand("Compare two models…", "The worksheet on its model and another, side by side (f4)",
+                            self.action_compare)
         yield SystemCommand("Export the report…", "The calculation report, Markdown or HTML (f3)", self.action_export)
         yield SystemCommand("Export the report as Markdown", "Beside the record, NAME-report.md",
                             lambda: self.action_export("md"))

@@ -76,6 +76,14 @@ class Recorded(Message):
         self.error = error
 
 
+class Compared(Message):
+    """The worksheet solved on a second model, beside the first (tui.analysis.Comparison)."""
+
+    def __init__(self, comparison) -> None:
+        super().__init__()
+        self.comparison = comparison
+
+
 class Warmed(Message):
     """numpy, scipy, pint and the models are loaded: units can be checked."""
 
@@ -246,6 +254,41 @@ class BackgroundWork:
         else:
             self.notify("not signed off: the solve it covers was not recorded", severity="error", timeout=10)
 
+    # -- two models side by side ---------------------------------------------------------
+    def start_compare(self, other: str) -> None:
+        """Solve the worksheet on ``other`` as well (the reference model in its own process)
+        and show the two side by side; nothing of it is recorded."""
+        ws = self.session.worksheet
+        slow = self._slow(ws) or offload.uses_reference(other)
+        self._set_busy("compare", self._slow_text("comparing") if slow else "comparing")
+        outcome = self.outcome
+        first = None
+        if outcome is not None and outcome.worksheet == ws and outcome.result is not None:
+            from balance.api import Attempt
+
+            first = Attempt(ws, outcome.result)  # the solve on screen: not solved again
+        self._compare_worker(ws, other, first)
+
+    @work(thread=True, exclusive=True, group="compare", exit_on_error=False)
+    def _compare_worker(self, ws: Worksheet, other: str, first) -> None:
+        from balance.api import Attempt
+
+        from . import analysis
+
+        def solved(sheet: Worksheet):
+            try:
+                return offload.call(sheet.fluid.model, analysis.solve, sheet)
+            except offload.OffloadError as exc:
+                return Attempt(sheet, error_kind="OffloadError", error=str(exc))
+
+        second_ws = analysis.with_model(ws, other)
+        attempts = (first or solved(ws), solved(second_ws))
+        self.post_message(Compared(analysis.compared(ws, (ws.fluid.model, other), attempts)))
+
+    def on_compared(self, message: Compared) -> None:
+        self._set_busy("compare", None)
+        self.comparison = message.comparison
+
     def on_solved(self, message: Solved) -> None:
         self._set_busy("solve", None)
         self.outcome = message.outcome
@@ -267,7 +310,8 @@ class BackgroundWork:
         if event.state != WorkerState.ERROR:
             return
         group = event.worker.group
-        self._set_busy({"check": "check", "advice": "advice", "solve": "solve"}.get(group, group), None)
+        self._set_busy({"check": "check", "advice": "advice", "solve": "solve", "compare": "compare"}.get(group, group),
+                       None)
         if group == "check":
             self._run_after_check(force=True)  # committing waits no longer: each field's own check holds
         error = event.worker.error

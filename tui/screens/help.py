@@ -21,6 +21,7 @@ KEYS = """\
 | `ctrl+s` | commit the edits to the record |
 | `ctrl+r` | solve (when unknowns and equations match) |
 | `f1` | this help; `f2` display units; `f3` export the report (Markdown, HTML) |
+| `f4` | compare: the worksheet on its model and another, side by side |
 | `ctrl+p` | command palette: every command by name |
 | `ctrl+q` | quit (asks first when edits are uncommitted) |
 

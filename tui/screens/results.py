@@ -30,6 +30,9 @@ equation with its numbers.
   Quasi-static paths are drawn through the model; a rupture or a free
   expansion has none, so its end states are joined by a dotted line.
 - `f2` switches the display units (SI, metric, US).
+- `f4` solves the worksheet on another model as well (the reference model
+  in its own process) and shows the two side by side, with the difference;
+  the comparison is not recorded.
 
 **Common mistakes.** Reading a negative S_gen as a result (joulebook refuses
 it: look at heat directions and boundary temperatures); ignoring the
