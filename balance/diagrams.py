@@ -1,9 +1,11 @@
 """The diagrams: the process drawn as lines on the P-v and T-s planes.
 
-Quasi-static paths are followed through the model; processes without one
-(free expansion, a ruptured membrane, a boundary work given as a number)
-join their end states with a line marked as a jump. For models with two
-phases the saturation dome is added.
+Quasi-static paths are followed through the model: each point of a path is
+a state the model computed. Processes without one (free expansion, a
+ruptured membrane, a boundary work given as a number) join their end states
+with a line marked as a jump. Where the model has a saturation curve (the
+reference model, and the cubic equations, which compute their own) the
+saturation dome is added.
 """
 
 from __future__ import annotations
@@ -100,27 +102,52 @@ def trace(result) -> Trace:
         note = "the worksheet gives the boundary work, not the path: the end states are joined by a dashed line"
         curves.append(Curve("initial → final", (first.T, fin.T), (first.P, fin.P), (first.v, fin.v),
                             (first.s, fin.s), style="jump"))
-    if model.two_phase:
-        dome = _dome(model)
-        if dome is not None:
-            curves.append(dome)
+    dome = _dome(model)
+    if dome is not None:
+        curves.append(dome)
     return Trace(model.species.M, states, tuple(curves), note, tuple(problems))
 
 
+N_DOME = 30
+
+
 def _dome(model) -> Curve | None:
-    """The saturation curve (liquid side up to the critical point, vapour side down)."""
+    """The saturation curve (liquid side up to the critical point, vapour side down): from
+    the model's two-phase states, or a cubic's own saturation (``Cubic.saturation``: the
+    pressure and the two volumes at T, solved on equal fugacities); None for a model
+    without one."""
     import numpy as np
 
-    lo, _ = model.T_bounds()
-    Tc = model.species.Tc
-    temps = list(np.linspace(max(lo, 0.5 * Tc), Tc * 0.999, 30))
+    if model.two_phase:
+        lo, _ = model.T_bounds()
+        Tc = model.species.Tc
+        ends = (max(lo, 0.5 * Tc), Tc * 0.999)
+
+        def pair(T: float):
+            return (model.flash({"T": T, "x": 0.0}, field="dome"), model.flash({"T": T, "x": 1.0}, field="dome"))
+    elif getattr(model, "saturation_curve", None) is not None:
+        curve = model.saturation_curve
+        Tc = model.Tc_eos
+        if curve.at(0.999 * Tc) is None:  # builds the curve; None: this cubic has none to draw
+            return None
+        ends = (max(curve.T_low, 0.5 * Tc), Tc * 0.999)
+
+        def pair(T: float):
+            sat = model.saturation(T)
+            if sat is None:
+                raise BalanceError(f"no saturation at T = {T:g} K")
+            _, v_l, v_v = sat
+            return model.at_Tv(T, v_l, "dome"), model.at_Tv(T, v_v, "dome")
+    else:
+        return None
     liquid, vapour = [], []
-    for T in temps:
+    for T in np.linspace(ends[0], ends[1], N_DOME):
         try:
-            liquid.append(model.flash({"T": float(T), "x": 0.0}, field="dome"))
-            vapour.append(model.flash({"T": float(T), "x": 1.0}, field="dome"))
-        except BalanceError:
+            l, v = pair(float(T))
+        except (BalanceError, ArithmeticError, ValueError):
             continue
+        liquid.append(l)
+        vapour.append(v)
     if len(liquid) < 3 or len(vapour) < 3:
         return None
     pts = liquid + vapour[::-1]

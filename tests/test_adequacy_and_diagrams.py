@@ -57,5 +57,32 @@ def test_rigid_path_keeps_the_volume():
 
 def test_free_expansion_is_drawn_as_a_jump():
     t = trace(api.solve(sample("n2-buffer-into-receiver.toml")))
-    assert [c.style for c in t.curves] == ["jump"]
+    assert [c.style for c in t.curves if c.style != "dome"] == ["jump"]
     assert "no quasi-static path" in t.note
+
+
+@pytest.mark.parametrize("sample_name", ["methane-piston-isothermal.toml", "n2-buffer-into-receiver.toml"])
+def test_a_cubic_model_draws_its_own_saturation_dome(sample_name):
+    """The dome of a cubic is its own saturation (Cubic.saturation): at each of its
+    temperatures the liquid and the vapour it joins are at one pressure and one Gibbs
+    energy g = h - T s (phase equilibrium of a pure fluid: common practice, no source)."""
+    r = api.solve(sample(sample_name))
+    model = r.problem.model
+    dome = [c for c in trace(r).curves if c.style == "dome"]
+    assert len(dome) == 1 and len(dome[0].T) >= 2 * 20
+    curve = dome[0]
+    half = len(curve.T) // 2
+    for i in range(half):
+        j = len(curve.T) - 1 - i  # the vapour side runs back down
+        T = curve.T[i]
+        assert curve.T[j] == pytest.approx(T, rel=1e-12) and T < model.Tc_eos
+        assert curve.P[j] == pytest.approx(curve.P[i], rel=1e-6)
+        assert curve.v[j] > curve.v[i]  # vapour right of liquid
+        liquid, vapour = model.at_Tv(T, curve.v[i]), model.at_Tv(T, curve.v[j])
+        g_l, g_v = liquid.h - T * liquid.s, vapour.h - T * vapour.s
+        assert g_v == pytest.approx(g_l, abs=1e-6 * abs(liquid.h - vapour.h))
+
+
+def test_a_model_without_saturation_draws_no_dome():
+    t = trace(api.solve(sample("air-test-cylinder-reversible.toml")))  # the ideal gas
+    assert [c.style for c in t.curves] == ["path"]

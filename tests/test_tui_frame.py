@@ -275,3 +275,28 @@ async def test_the_worksheet_is_compared_on_the_reference_model_solved_in_its_ow
             assert len(app.session.entries()) == entries
     finally:
         offload.shutdown()
+
+
+# -- diagrams --------------------------------------------------------------------------------------
+async def test_the_diagrams_label_their_log_axes_and_draw_the_path_through_the_model_states(tmp_path, author):
+    from tests.test_tui_pilot import wait_until
+
+    app = sample_app(tmp_path, "methane-piston-isothermal.toml")  # Soave-Redlich-Kwong: it has a dome
+    app.session.step = "results"
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        await wait_until(pilot, lambda: app.outcome is not None and app.outcome.trace is not None,
+                         what="the diagram")
+        await settle(pilot)
+        styles = [c.style for c in app.outcome.trace.curves]
+        assert styles == ["path", "dome"]
+        await pilot.press("shift+tab", "right")  # from the balance to the tab bar, then P–v
+        await settle(pilot)
+        assert on_screen(app, "P–v log–log: isothermal, 40 model states • · dome grey")
+        assert on_screen(app, "v [m³/kg], log scale")
+        assert any(line.lstrip().startswith("P [") and "], log scale" in line for line in screen_lines(app)), \
+            "the pressure axis says it is logarithmic"
+        await pilot.press("right")  # T–s: linear axes
+        await settle(pilot)
+        assert on_screen(app, "T–s: isothermal, 40 model states • · dome grey")
+        assert not on_screen(app, "log scale")

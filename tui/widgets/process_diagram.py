@@ -1,7 +1,9 @@
 """P–v and T–s diagrams of the process, drawn in the terminal with plotext.
 
 The widget only draws: the points come from :func:`balance.diagrams.trace`
-(molar SI) and are shown per unit mass in the display units.
+(molar SI) and are shown per unit mass in the display units. A quasi-static
+path is drawn through the states the model computed along it, and those
+states are marked on it; the P–v axes are logarithmic and labelled so.
 """
 
 from __future__ import annotations
@@ -11,8 +13,10 @@ from textual_plotext import PlotextPlot
 from ..display import converter, unit_label
 
 #: plotext colours: path, jump, dome, states
-COLOURS = {"path": "cyan", "jump": "orange", "dome": "gray", "state": "red"}
+COLOURS = {"path": "cyan", "jump": "orange", "dome": "gray", "state": "red", "along": "white"}
 JUMP_POINTS = 24
+#: every how many of a path's states one is marked on it
+ALONG_EVERY = 4
 
 
 class ProcessDiagram(PlotextPlot):
@@ -70,6 +74,8 @@ class ProcessDiagram(PlotextPlot):
                 plt.scatter(xs, ys, marker="dot", color=COLOURS["jump"])
             else:
                 plt.plot(xs, ys, marker="braille", color=COLOURS[curve.style])
+                if curve.style == "path":  # the model's states the path is drawn through
+                    plt.scatter(xs[::ALONG_EVERY], ys[::ALONG_EVERY], marker="•", color=COLOURS["along"])
         points = [((X(v, M), Y(P)) if pv else (X(s, M), Y(T)), name) for name, T, P, v, s in tr.states]
         xs = [p[0][0] for p in points]
         lo, hi = min(xs), max(xs)
@@ -82,12 +88,24 @@ class ProcessDiagram(PlotextPlot):
         if pv:
             plt.xscale("log")
             plt.yscale("log")
+            xl, yl = f"{xl}, log scale", f"{yl}, log scale"
         plt.xlabel(xl)
         plt.ylabel(yl)
-        kinds = {c.style: c.label for c in tr.curves}
-        what = "no quasi-static path (dotted)" if "jump" in kinds and "path" not in kinds else kinds.get("path", "")
-        plt.title(("P–v" if pv else "T–s") + (f": {what}" if what else "")
-                  + (" · saturation dome grey" if "dome" in kinds else ""))
+        plt.title(self.title_text(tr, pv))
+
+    @staticmethod
+    def title_text(tr, pv: bool) -> str:
+        """What the diagram shows, in words: the path (through the model's states, •) or
+        that there is none, and the saturation dome."""
+        kinds = {c.style: c for c in tr.curves}
+        if "path" in kinds:
+            what = f"{kinds['path'].label}, {len(kinds['path'].T)} model states •"
+        elif "jump" in kinds:
+            what = "no quasi-static path (dotted)"
+        else:
+            what = ""
+        return (("P–v log–log" if pv else "T–s") + (f": {what}" if what else "")
+                + (" · dome grey" if "dome" in kinds else ""))
 
 
 def _geom(a: float, b: float, n: int) -> list[float]:
