@@ -29,7 +29,7 @@ async def test_the_headline_shows_the_boundary_work_and_follows_the_units(tmp_pa
         await ready(pilot)
         await solve_on_results(pilot)
         head = " ".join(text_of(app, "#outcome").split())
-        assert head == ("solved: end: T = 25 °C, P = 60 bar; Q 'jacket' = -13.735 kJ; "
+        assert head == ("solved: end: T = 25 °C, P = 60 bar(a); Q 'jacket' = -13.735 kJ; "
                         "W boundary (isothermal) = 12.291 kJ; S_gen = 0 (reversible)")
         assert "Result:" not in text_of(app, "#balance")  # said once, above the tabs
         await pilot.press("f2")  # metric -> US customary

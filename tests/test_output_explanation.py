@@ -115,7 +115,7 @@ def test_one_evaluation_is_singular():
 def test_the_headline_shows_every_solved_term(isothermal):
     W = 1.0 * R * 300.0 * math.log(10.0) / 1e3  # kJ, closed form
     text = headline(isothermal, "metric")
-    assert text == (f"squeezed: T = 26.85 °C, P = 10 bar; Q 'wall' = {-W:.5g} kJ; "
+    assert text == (f"squeezed: T = 26.85 °C, P = 10 bar(a); Q 'wall' = {-W:.5g} kJ; "
                     f"W boundary (isothermal) = {W:.5g} kJ; S_gen = 0 (reversible)")
     assert headline(isothermal, "us").startswith("squeezed: T = 80.33 °F, P = 145.04 psia; Q 'wall' = -5.4437 Btu")
     assert ("Result: " + text) in cli_text(isothermal)
@@ -123,9 +123,44 @@ def test_the_headline_shows_every_solved_term(isothermal):
 
 def test_the_headline_leaves_out_a_rigid_boundary_and_shows_a_solved_amount():
     r = api.solve(sample("n2-buffer-into-receiver.toml"))
-    assert headline(r, "metric") == "settled: T = -10.762 °C, P = 32.984 bar; S_gen = 139.4 kJ/K"
+    assert headline(r, "metric") == "settled: T = -10.762 °C, P = 32.984 bar(a); S_gen = 139.4 kJ/K"
     amount = ISOTHERMAL.replace('n = "1 mol"', 'n = "?"').replace('Q = "?"', f'Q = "-{R * 300 * math.log(10):.6f} J"')
     r = api.solve(sheet(amount))
     assert r.n == pytest.approx(1.0, rel=1e-6)
     assert "; n = 0.001 kmol" in headline(r, "metric")
     assert "Amount: n = 1 mol, solved from the balances" in r.equations
+
+
+def test_the_record_says_each_thing_once():
+    from balance.record.solve_text import solve_text
+
+    data = api.as_json(api.solve(sample("steam-kettle-wet.toml")))
+    text = solve_text(data)
+    assert text.count("Sign convention:") == 1  # the explanation's first law line says its form
+    assert text.count(data["reference_state"].split(";")[0]) == 1  # in the explanation's model line
+    assert text.count(data["method"]) == 1  # in the explanation's solver line
+    assert "Species H2O, model reference\n" in text
+    (w,) = [ln for ln in text.splitlines() if ln.split()[:3] == ["W", "boundary", "rigid"]]
+    assert w.split()[3:] == ["0", "none:", "the", "boundary", "is", "rigid"]
+
+
+def test_a_quality_row_only_where_a_state_has_one():
+    from balance.record.solve_text import solve_text
+
+    demo = api.solve(sample("n2-buffer-into-receiver.toml"))
+    assert not any(ln.split()[:1] == ["x"] for ln in solve_text(api.as_json(demo)).splitlines())
+    assert not any(ln.split()[:1] == ["x"] for ln in cli_text(demo).splitlines())
+    kettle = api.solve(sample("steam-kettle-wet.toml"))
+    assert any(ln.split()[:3] == ["x", "0.05", "0.259292"] for ln in cli_text(kettle).splitlines())
+
+
+def test_the_command_line_says_where_heat_crosses_and_that_a_rigid_boundary_does_no_work():
+    text = cli_text(api.solve(sample("steam-kettle-wet.toml")), "us")
+    (q,) = [ln for ln in text.splitlines() if ln.split()[:2] == ["Q", "jacket"]]
+    # 150 kJ = 142.173 Btu (1 Btu_IT = 1055.056 J, pint), 180 °C = 356 °F
+    assert q.split()[2:] == ["142.173", "given,", "crosses", "at", "356", "°F"]
+    (w,) = [ln for ln in text.splitlines() if ln.split()[:3] == ["W", "boundary", "rigid"]]
+    assert w.split()[3:] == ["0", "none:", "the", "boundary", "is", "rigid"]
+    (cp,) = [ln for ln in text.splitlines() if ln.split()[:1] == ["cp"]]
+    assert cp.split()[2:] == ["∞", "∞"]  # a wet state's cp, not 'inf'
+    assert "inf" not in text.split("Equations with numbers")[0]

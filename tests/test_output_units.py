@@ -136,3 +136,15 @@ async def test_f2_on_the_results_step_rewrites_the_cautions(tmp_path, author):  
         shown = " ".join(text_of(app, "#balance").split())
         assert "Pressures up to 2190 psia occur" in shown
         assert "bar(a)" not in shown
+
+
+def test_the_amount_in_us_units_is_in_pound_moles(demo):
+    from tui.display import show
+
+    # 1 lbmol = 453.59237 mol (the avoirdupois pound, 0.45359237 kg exactly: NIST SP 811);
+    # the demo holds 12413 mol: 27.3659 lbmol (it was printed as 12413 "lbmol")
+    assert show(demo.n, "n", "us") == f"{demo.n / 453.59237:.6g}" == "27.3659"
+    out = io.StringIO()
+    Console(file=out, width=200, color_system=None).print(result_renderable(demo, "us"))
+    (n_row,) = [ln for ln in out.getvalue().splitlines() if ln.split()[:2] == ["n", "lbmol"]]
+    assert n_row.split()[2:] == ["27.3659", "27.3659"]

@@ -9,7 +9,18 @@ from __future__ import annotations
 
 import math
 
-from balance.units import to_unit
+from balance.units import to_unit as _pint_to_unit
+
+#: Display units pint's default registry lacks, as SI amounts per unit: the pound-mole is
+#: 453.59237 mol (the avoirdupois pound, 0.45359237 kg exactly: NIST SP 811).
+_BY_HAND = {"lbmol": ("mol", 453.59237)}
+
+
+def to_unit(value: float, unit: str, target: str) -> float:
+    """``value`` in ``unit`` converted to ``target`` (pint, or the factors of :data:`_BY_HAND`)."""
+    if target in _BY_HAND and unit == _BY_HAND[target][0]:
+        return value / _BY_HAND[target][1]
+    return _pint_to_unit(value, unit, target)
 
 UNIT_SETS = {
     "si": {
@@ -38,7 +49,7 @@ SI = {
 _SHORT = {
     "m**3/kg": "m³/kg", "kJ/(kg*K)": "kJ/(kg·K)", "degC": "°C", "degF": "°F", "m**3": "m³",
     "ft**3/lb": "ft³/lb", "Btu/(lb*degR)": "Btu/(lb·°R)", "ft**3": "ft³", "Btu/degR": "Btu/°R",
-    "psi": "psia",
+    "psi": "psia", "bar": "bar(a)",
 }
 
 
@@ -52,11 +63,9 @@ def show(value: float | None, kind: str, units: str, digits: int = 6) -> str:
     if value is None or value != value:  # none, or NaN: a value the model does not determine
         return "—"
     target = UNIT_SETS[units][kind]
-    try:
-        converted = to_unit(value, SI[kind], target)
-    except Exception:  # inf/nan from a two-phase cp: show it as it is
-        converted = value
-    return f"{converted:.{digits}g}"
+    if value in (math.inf, -math.inf):  # a wet state's cp (the warnings say why)
+        return "∞" if value > 0 else "-∞"
+    return f"{to_unit(value, SI[kind], target):.{digits}g}"
 
 
 #: Pressure labels that say "absolute" where a caution or a headline names a pressure.

@@ -35,7 +35,8 @@ def states_table(states: list[State], units: str, title: str = "States") -> Tabl
             vals.append(show(value, kind, units))
         t.add_row(label, unit_label(kind, units), *vals)
     t.add_row("Z", "", *(f"{st.point.Z:.6g}" if math.isfinite(st.point.Z) else "—" for st in states))
-    t.add_row("x", "", *("—" if st.point.x is None else f"{st.point.x:.6g}" for st in states))
+    if any(st.point.x is not None for st in states):  # a quality only where a state has one
+        t.add_row("x", "", *("—" if st.point.x is None else f"{st.point.x:.6g}" for st in states))
     t.add_row("phase", "", *(st.point.phase for st in states))
     t.add_row("n", unit_label("n", units), *(show(st.n, "n", units) for st in states))
     t.add_row("m", unit_label("m", units), *(show(st.m, "m", units) for st in states))
@@ -103,10 +104,15 @@ def result_renderable(r: Result, units: str = "metric", with_headline: bool = Tr
     for term in r.terms:
         value = p.convention.shown(term.kind, term.value)
         label = "Q" if term.kind == "heat" else ("W" if term.kind == "work" else "W boundary")
-        if term.solved:
-            e.add_row(label, term.name, *computed(value, "E", "solved"))
+        where = ""  # where heat crosses, when it is not the system's own temperature (detail)
+        if term.kind == "heat" and term.T_boundary is not None and not term.detail:
+            where = f", crosses at {show(term.T_boundary, 'T', units)} {unit_label('T', units)}"
+        if term.kind == "boundary work" and term.name == "rigid":
+            e.add_row(label, term.name, "0", "none: the boundary is rigid")
+        elif term.solved:
+            e.add_row(label, term.name, *computed(value, "E", "solved" + where))
         else:
-            e.add_row(label, term.name, show(value, "E", units), "given")
+            e.add_row(label, term.name, show(value, "E", units), "given" + where)
     e.add_row("ΔU", "", *computed(r.dU, "E", "n u2 - Σ n u1"))
     e.add_row("  ideal-gas part", "", *computed(r.dU_ig, "E", ""))
     e.add_row("  departure part", "", *computed(r.dU_dep, "E", ""))

@@ -1,7 +1,8 @@
 """The cautions a result that can hurt someone carries, in every kind of balance.
 
 The disclaimer always; a pressure above 0.5 bar gauge, a temperature below
--29 °C and a final pressure above every initial one each add theirs.
+-29 °C and a final pressure above every initial one each add theirs (one
+caution where the highest pressure is the final one).
 
 A caution keeps its numbers apart from its words (:class:`Caution`), so each
 face writes them in its own units: the record in fixed ones (°C, bar(a):
@@ -77,13 +78,20 @@ def cautions_for(p_atm: float, initial, final, event: bool = False) -> list[Caut
     out = [DISCLAIMER]
     states = [*initial, final]
     known = [st.point.P for st in states if math.isfinite(st.point.P)]
+    initial_P = [st.point.P for st in initial if math.isfinite(st.point.P)]
+    rises = bool(initial_P) and math.isfinite(final.point.P) and final.point.P > max(initial_P) * 1.001
     if known and max(known) > p_atm + 0.5e5:
+        where = ", in the final state, above every initial pressure" if rises else ""
+        rated = "; the boundary must be rated for it" if rises else ""
         out.append(Caution(
             "pressure",
-            "Pressures up to {} occur: confirm the design pressure of every vessel and pipe within the "
-            "boundary and the set pressure of its relief device.",
+            f"Pressures up to {{}} occur{where}: confirm the design pressure of every vessel and pipe within "
+            f"the boundary and the set pressure of its relief device{rated}.",
             (("P", max(known)),),
         ))
+    elif rises:
+        out.append(Caution("above initial",
+                           "The final pressure is above every initial pressure: the boundary must be rated for it."))
     coldest = min(reversed(states), key=lambda st: st.point.T)  # of equals, the final state
     behind = gas_left_behind(initial, final) if event else None
     if behind is not None and (behind[1] is None or behind[1] < min(LOW_TEMPERATURE_K, coldest.point.T)):
@@ -98,10 +106,6 @@ def cautions_for(p_atm: float, initial, final, event: bool = False) -> list[Caut
         ))
     if not math.isfinite(final.point.P):
         out.append(_liquid_full(final))
-    initial_P = [st.point.P for st in initial if math.isfinite(st.point.P)]
-    if initial_P and math.isfinite(final.point.P) and final.point.P > max(initial_P) * 1.001:
-        out.append(Caution("above initial",
-                           "The final pressure exceeds every initial pressure: the boundary must be rated for it."))
     return out
 
 

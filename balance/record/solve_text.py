@@ -46,6 +46,12 @@ def round_off(data: dict) -> tuple[float, float, float] | None:
     return float(rel), E, S
 
 
+def _later(data: dict) -> bool:
+    """Whether a solve was filed with wording 2 or later (see ``balance.balances.closed.explain.WORDING``)."""
+    w = data.get("wording", 1)
+    return isinstance(w, int) and not isinstance(w, bool) and w >= 2
+
+
 def _zero(x, ro, unit: str = "J") -> bool:
     """Whether a computed value [J or J/K] is round-off of zero under the recorded scales."""
     if ro is None or x is None or x == 0:
@@ -71,18 +77,21 @@ def solve_text(data: dict, inputs_seq: int | None = None) -> str:
     out = [f"Solved{basis}: {data.get('title') or 'closed-system balance'}"]
     if pins:
         out.append(pins)
-    out.append(f"Species {data.get('species', '?')}, model {data.get('model', '?')}; "
-               f"{data.get('method', '')}")
-    if data.get("reference_state"):
+    # a solve filed before wording 2 is rendered as it was written; from it on the text says its
+    # units, and what the equations say already (the reference state, the method) is said there only
+    later = _later(data)
+    species = f"Species {data.get('species', '?')}, model {data.get('model', '?')}"
+    out.append(species if later else f"{species}; {data.get('method', '')}")
+    if data.get("reference_state") and not later:
         out += wrap(f"Reference state: {data['reference_state']}", "", "  ")
     conv = str(data.get("convention", ""))
     out += wrap(f"Sign convention: {CONVENTIONS.get(conv, conv)}", "", "  ")
-    if data.get("wording", 1) != 1:  # a record filed before said its units in its tables only
+    if later:
         out += wrap(UNITS, "", "  ")
     if isinstance(data.get("overrides"), dict) and data["overrides"]:
         out.append("Overrides: " + ", ".join(f"{k} = {v}" for k, v in data["overrides"].items()))
     out += ["", "States"]
-    out += _states(data.get("states", {}))
+    out += _states(data.get("states", {}), later)
     out += ["", "Energy balance (heat to the system positive; work "
             + ("done by" if conv == "work-by-system" else "done on") + " the system positive)"]
     out += table(*energy_rows(data), "llrl")
@@ -119,11 +128,14 @@ _STATE_ROWS = (
 )
 
 
-def state_rows(states: dict) -> tuple[list[str], list[list[str]]]:
-    """Headers and rows of the states table (display units; see the module docstring)."""
+def state_rows(states: dict, compact: bool = False) -> tuple[list[str], list[list[str]]]:
+    """Headers and rows of the states table (display units; see the module docstring);
+    ``compact`` leaves out the quality where no state has one."""
     names = list(states)
     rows = []
     for label, unit, key, factor, per_mass in _STATE_ROWS:
+        if compact and key == "x" and all(_q(st, key) is None for st in states.values()):
+            continue
         row = [label, unit]
         for name in names:
             st = states[name] if isinstance(states[name], dict) else {}
@@ -147,16 +159,17 @@ def state_rows(states: dict) -> tuple[list[str], list[list[str]]]:
     return ["", "unit", *names], rows
 
 
-def _states(states: dict) -> list[str]:
+def _states(states: dict, compact: bool = False) -> list[str]:
     if not states:
         return ["  (none)"]
-    headers, rows = state_rows(states)
+    headers, rows = state_rows(states, compact)
     return table(headers, rows, "ll" + "r" * (len(headers) - 2))
 
 
 def energy_rows(data: dict) -> tuple[list[str], list[list[str]]]:
     """Headers and rows of the energy balance, term by term, in kJ."""
     ro = round_off(data)
+    later = _later(data)
     rows = []
     for t in data.get("terms", []):
         if not isinstance(t, dict):
@@ -165,6 +178,8 @@ def energy_rows(data: dict) -> tuple[list[str], list[list[str]]]:
         note = "solved" if t.get("solved") else "given"
         if t.get("kind") == "heat" and _q(t, "T_boundary") is not None:
             note += f", crosses at {g(_q(t, 'T_boundary'))} K"
+        elif later and t.get("kind") == "boundary work" and t.get("detail") == "rigid":
+            note = "none: the boundary is rigid"
         elif t.get("detail"):
             note += f", {t['detail']}"
         value = _q(t, "value")

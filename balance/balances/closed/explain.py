@@ -98,8 +98,8 @@ def explain(r) -> list[str]:
     fp = f.point
     c = p.convention
     ro = r.round_off
-    lines = [f"Sign convention: {c.words}"]
-    lines.append(f"Model: {p.model.label} for {p.species.name}; reference state: {p.model.reference_state}")
+    # the sign convention is said beside the explanation, and its form in the first law's line
+    lines = [f"Model: {p.model.label} for {p.species.name}; reference state: {p.model.reference_state}"]
     lines += [f"  {e}" for e in p.model.equations()]
     if p.species.overrides:
         lines.append("Overrides: " + ", ".join(f"{k} = {v}" for k, v in p.species.overrides))
