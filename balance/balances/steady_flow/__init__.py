@@ -5,5 +5,7 @@
 
 - :mod:`.streams` — a stream's state, rate, speed and height (:class:`~.streams.Flow`);
 - :mod:`.devices` — what each kind of device does, solved forward, and the three balances
-  recomputed from the flows (the independent check).
+  recomputed from the flows (the independent check);
+- :mod:`.network` — streams joined by devices, solved by propagation: each device works out
+  what its equations fix from what is known around it; what is still missing is said per device.
 """
