@@ -157,7 +157,7 @@ def check(ws: Worksheet) -> Check:
     except BalanceError as exc:
         return Check(ws, False, str(exc), error=str(exc), error_field=getattr(exc, "field", ""))
     return Check(ws, dof.ok, dof.message, tuple(u.words() for u in dof.unknowns), dof.equations, dof.fixed,
-                 problem.path, problem.constraints, problem=problem)
+                 getattr(problem, "path", ""), getattr(problem, "constraints", ()), problem=problem)
 
 
 def problems(source: Source) -> tuple[FieldProblem, ...]:

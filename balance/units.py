@@ -72,6 +72,7 @@ DIMENSIONS: dict[str, Dimension] = {
         Dimension("temperature", "K", "a temperature"),
         Dimension("temperature_difference", "K", "a temperature difference"),
         Dimension("pressure", "Pa", "a pressure"),
+        Dimension("pressure_difference", "Pa", "a pressure difference"),
         Dimension("volume", "m**3", "a volume"),
         Dimension("molar_volume", "m**3/mol", "a molar volume"),
         Dimension("specific_volume", "m**3/kg", "a specific volume"),
@@ -88,6 +89,13 @@ DIMENSIONS: dict[str, Dimension] = {
         Dimension("dimensionless", "dimensionless", "a pure number"),
         Dimension("cubic_a", "Pa*m**6/mol**2", "a cubic attraction parameter a"),
         Dimension("cubic_a_rk", "Pa*m**6*K**0.5/mol**2", "Redlich-Kwong's attraction parameter a (with K^0.5)"),
+        Dimension("mass_rate", "kg/s", "a mass rate"),
+        Dimension("molar_rate", "mol/s", "a molar rate"),
+        Dimension("volume_rate", "m**3/s", "a volumetric rate"),
+        Dimension("power", "W", "a power or heat rate"),
+        Dimension("velocity", "m/s", "a velocity"),
+        Dimension("area", "m**2", "an area"),
+        Dimension("length", "m", "a length"),
     )
 }
 
@@ -281,6 +289,7 @@ def _example(dimension: str) -> str:
         "temperature": "500 K",
         "temperature_difference": "10 K",
         "pressure": "35 bar",
+        "pressure_difference": "0.3 bar",
         "volume": "1 L",
         "molar_volume": "1 L/mol",
         "specific_volume": "0.1 m3/kg",
@@ -296,7 +305,68 @@ def _example(dimension: str) -> str:
         "molar_mass": "28.01 g/mol",
         "cubic_a": "0.137 Pa m6/mol2",
         "cubic_a_rk": "1.56 Pa m6 K^0.5/mol2",
+        "mass_rate": "12 t/h",
+        "molar_rate": "30 mol/s",
+        "volume_rate": "1500 Nm3/h",
+        "power": "250 kW",
+        "velocity": "20 m/s",
+        "area": "0.05 m2",
+        "length": "3 m",
     }.get(dimension, "1")
+
+
+@dataclass(frozen=True)
+class Standard:
+    """The standard conditions a standard-volume rate is counted at."""
+
+    prefix: str
+    T: float
+    """[K]"""
+    P: float
+    """[Pa]"""
+    words: str
+
+
+#: Standard-volume units as the gas trade writes them, and the conditions each counts at
+#: (common practice; the conditions are the ones each name stands for in its standard).
+STANDARDS = {
+    "Nm3": Standard("Nm3", 273.15, 101325.0, "normal m3 at 0 °C and 1.01325 bar (DIN 1343)"),
+    "Sm3": Standard("Sm3", 288.15, 101325.0, "standard m3 at 15 °C and 1.01325 bar (ISO 13443)"),
+    "scf": Standard("scf", 288.705556, 14.696 * 6894.757293168, "standard ft3 at 60 °F and 14.696 psia"),
+}
+_STANDARD = re.compile(r"^(MM|M)?(Nm3|Nm\^3|Nm³|Sm3|Sm\^3|Sm³|scf)(.*)$")
+
+
+def read_rate(text: str, M: float, field: str) -> tuple[float, str]:
+    """A stream's rate as typed — mass ('12 t/h'), molar ('30 mol/s') or standard volume
+    ('1500 Nm3/h', '2 MMscf/d') — as a molar rate [mol/s], and what was read, in words.
+
+    A standard volume counts the moles an ideal gas has in it at the standard conditions,
+    n = P_std V_std / (R T_std) (the trade's own convention). ``M`` [kg/mol] converts a mass rate.
+
+    >>> round(read_rate("1000 kg/h", 0.016043, "rate")[0], 6)
+    17.314578
+    >>> read_rate("1500 Nm3/h", 0.016043, "rate")[1]
+    'standard volume: normal m3 at 0 °C and 1.01325 bar (DIN 1343)'
+    """
+    m = _NUMBER.match(text) if isinstance(text, str) else None
+    unit = m.group(2).replace(" ", "") if m else ""
+    std = _STANDARD.match(unit)
+    if m and std:
+        scale = {"MM": 1e6, "M": 1e3, None: 1.0}[std.group(1)]
+        name = std.group(2).replace("^", "").replace("³", "3")
+        standard = STANDARDS[name]
+        volume_unit = ("ft**3" if name == "scf" else "m**3") + std.group(3)
+        V = parse(f"{float(m.group(1)) * scale!r} {volume_unit}", "volume_rate", field)
+        return standard.P * V / (R * standard.T), f"standard volume: {standard.words}"
+    try:
+        kind, value = dimension_of(text, ("mass_rate", "molar_rate"), field)
+    except InputError:
+        raise InputError(field, f"must be a mass, molar or standard-volume rate (like '12 t/h', '30 mol/s', "
+                                f"'1500 Nm3/h', '2 MMscf/d'); got {text!r}") from None
+    if not value > 0:
+        raise InputError(field, f"must be a positive rate; got {text!r}")
+    return (value / M, "mass rate") if kind == "mass_rate" else (value, "molar rate")
 
 
 def dimension_of(text: str, candidates: tuple[str, ...], field: str) -> tuple[str, float]:

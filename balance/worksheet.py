@@ -17,6 +17,15 @@ The sections:
 ``[[work]]``     work terms: name, kind, W
 ``[process]``    constraints, polytropic n, dKE, dPE
 
+and for a steady-flow worksheet (``[system] kind = "steady-flow"``), in place of the
+compartments, terms and process:
+
+``[[stream]]``   name, two of T, P, v, rho, u, h, s, x (or fewer: a device fixes the rest),
+                 rate (mass, molar or standard volume), velocity or area, z, and the stream's own
+                 species and model where they are not the worksheet's
+``[[device]]``   name, kind, inlets, outlets, and what the kind takes: Q, W, eta, eta_poly, dP,
+                 dP_cold, T_boundary, fractions, arrangement
+
 A value of ``"?"`` marks an unknown to be solved for.
 """
 
@@ -41,6 +50,8 @@ SECTIONS = {
     "heat": "heat",
     "work": "work",
     "process": "process",
+    "stream": "streams",
+    "device": "devices",
 }
 
 #: Properties a state may be given by (and their accepted spellings).
@@ -57,6 +68,11 @@ CONSTRAINTS = (
     "membrane-rupture",
 )
 WORK_KINDS = ("shaft", "stirring", "electrical", "boundary", "other")
+#: What a device of a steady-flow worksheet may be.
+DEVICE_KINDS = ("valve", "heater", "cooler", "compressor", "pump", "turbine", "expander", "nozzle", "diffuser",
+                "mixer", "splitter", "exchanger", "separator")
+#: A device's own values (text as typed), besides its name, kind, inlets and outlets.
+DEVICE_VALUES = ("Q", "W", "eta", "eta_poly", "dP", "dP_cold", "T_boundary", "arrangement")
 
 
 @dataclass(frozen=True)
@@ -163,8 +179,43 @@ class Process:
 
 
 @dataclass(frozen=True)
+class StreamInput:
+    """One stream of a steady-flow worksheet, as typed."""
+
+    name: str = ""
+    props: dict[str, str] = field(default_factory=dict)
+    """T, P, v, rho, u, h, s, x -> text (none, one or two: a device may fix the rest)"""
+    rate: str = ""
+    """a mass, molar or standard-volume rate ('12 t/h', '30 mol/s', '1500 Nm3/h'), or '?'"""
+    velocity: str = ""
+    area: str = ""
+    """the flow area: the velocity follows from the rate and the state"""
+    z: str = ""
+    """elevation"""
+    species: str = ""
+    """the stream's own species, when it is not the worksheet's (an exchanger's other side)"""
+    model: str = ""
+
+
+@dataclass(frozen=True)
+class DeviceInput:
+    """One device of a steady-flow worksheet, as typed."""
+
+    name: str = ""
+    kind: str = ""
+    """one of DEVICE_KINDS"""
+    inlets: tuple[str, ...] = ()
+    outlets: tuple[str, ...] = ()
+    """stream names (an exchanger: the hot side first)"""
+    values: dict[str, str] = field(default_factory=dict)
+    """Q, W, eta, eta_poly, dP, dP_cold, T_boundary, arrangement -> text ('?' to be found)"""
+    fractions: tuple[str, ...] = ()
+    """a splitter's share of the inlet rate, per outlet"""
+
+
+@dataclass(frozen=True)
 class Worksheet:
-    """A whole closed-system worksheet, as typed."""
+    """A whole worksheet, as typed (a closed system's sections, or a steady-flow one's)."""
 
     heading: Heading = field(default_factory=Heading)
     fluid: Fluid = field(default_factory=Fluid)
@@ -174,6 +225,8 @@ class Worksheet:
     heat: tuple[HeatTerm, ...] = ()
     work: tuple[WorkTerm, ...] = ()
     process: Process = field(default_factory=Process)
+    streams: tuple[StreamInput, ...] = ()
+    devices: tuple[DeviceInput, ...] = ()
 
     # -- conversion -----------------------------------------------------------
     def to_dict(self) -> dict:
@@ -200,6 +253,10 @@ class Worksheet:
             proc["constraints"] = list(proc["constraints"])
         if proc:
             out["process"] = proc
+        if self.streams:
+            out["stream"] = [_stream_dict(st) for st in self.streams]
+        if self.devices:
+            out["device"] = [_device_dict(d) for d in self.devices]
         return out
 
     def to_toml(self) -> str:
@@ -242,7 +299,7 @@ class Worksheet:
 
     @classmethod
     def from_dict(cls, data: dict) -> "Worksheet":
-        _only(data, ("worksheet", "fluid", "system", "initial", "final", "heat", "work", "process"), "")
+        _only(data, tuple(SECTIONS), "")
         head = _table(data, "worksheet")
         _only(head, [f.name for f in fields(Heading)], "worksheet")
         heading = Heading(
@@ -295,7 +352,9 @@ class Worksheet:
             constraints=constraints,
             **{k: _text(pr, k, "process") for k in ("n", "dKE", "dPE") if k in pr},
         )
-        return cls(heading, fluid, system, initial, final, tuple(heat), tuple(work), process)
+        streams = tuple(_stream(t, f"stream[{i + 1}]") for i, t in enumerate(_array(data, "stream")))
+        devices = tuple(_device(t, f"device[{i + 1}]") for i, t in enumerate(_array(data, "device")))
+        return cls(heading, fluid, system, initial, final, tuple(heat), tuple(work), process, streams, devices)
 
     def with_(self, **changes) -> "Worksheet":
         """A copy with some sections replaced (the worksheet is immutable)."""
@@ -383,6 +442,50 @@ def _state(t: dict, where: str, default_name: str) -> StateInput:
         amount={k: _text(t, k, where) for k in AMOUNT_KEYS if k in t},
         empty=empty,
     )
+
+
+_STREAM_KEYS = ("rate", "velocity", "area", "z", "species", "model")
+
+
+def _stream_dict(s: StreamInput) -> dict:
+    d: dict = {"name": s.name} if s.name else {}
+    d.update(s.props)
+    d.update({k: getattr(s, k) for k in _STREAM_KEYS if getattr(s, k)})
+    return d
+
+
+def _stream(t: dict, where: str) -> StreamInput:
+    _only(t, ("name", *STATE_KEYS, *_STREAM_KEYS), where)
+    name = _text(t, "name", where)
+    if not name:
+        raise InputError(f"{where}.name", "give the stream a name (the devices join streams by name)")
+    return StreamInput(name=name, props={k: _text(t, k, where) for k in STATE_KEYS if k in t},
+                       **{k: _text(t, k, where) for k in _STREAM_KEYS if k in t})
+
+
+def _device_dict(d: DeviceInput) -> dict:
+    out: dict = {"name": d.name, "kind": d.kind, "inlets": list(d.inlets), "outlets": list(d.outlets)}
+    out.update(d.values)
+    if d.fractions:
+        out["fractions"] = list(d.fractions)
+    return out
+
+
+def _device(t: dict, where: str) -> DeviceInput:
+    _only(t, ("name", "kind", "inlets", "outlets", "fractions", *DEVICE_VALUES), where)
+    name = _text(t, "name", where)
+    if not name:
+        raise InputError(f"{where}.name", "give the device a name, e.g. 'PV-101'")
+    where = f"device '{name}'"
+    kind = _text(t, "kind", where)
+    if kind not in DEVICE_KINDS:
+        raise InputError(f"{where}.kind", f"expected one of {', '.join(DEVICE_KINDS)}; got {shown(kind)}")
+    fractions = [repr(v) if isinstance(v, (int, float)) and not isinstance(v, bool) else v
+                 for v in (t.get("fractions") or [])]
+    return DeviceInput(name=name, kind=kind, inlets=tuple(_text_list(t, "inlets", where)),
+                       outlets=tuple(_text_list(t, "outlets", where)),
+                       values={k: _text(t, k, where) for k in DEVICE_VALUES if k in t},
+                       fractions=tuple(_text_list({"fractions": fractions}, "fractions", where)))
 
 
 def _only(table: dict, allowed, where: str) -> None:

@@ -56,10 +56,12 @@ SECTION_KINDS = {
     "heat": "heat terms",
     "work": "work terms",
     "process": "constraints",
+    "stream": "streams",
+    "device": "devices",
 }
 KIND_SECTIONS = {kind: section for section, kind in SECTION_KINDS.items()}
 #: Sections whose value is a list of tables (``[[initial]]``); the rest are one table.
-LIST_SECTIONS = ("initial", "heat", "work")
+LIST_SECTIONS = ("initial", "heat", "work", "stream", "device")
 
 OPENING, SOLVE, COMMENT, RESOLUTION, SIGN_OFF, NOTE = (
     "opening", "solve", "comment", "resolution", "sign-off", "revision note",

@@ -1,0 +1,184 @@
+"""From a steady-flow worksheet as typed to a network in SI numbers.
+
+``prepare(worksheet)`` reads every stream (its fluid, its given properties,
+its rate as mass, molar or standard volume, its speed and height) and every
+device (its kind, the streams it joins, its heat, work, efficiency and
+pressure drops), and says in words what the network still lacks
+(``Problem.dof``) by trying to solve it: the solution is propagation, so the
+count and the solution are the same walk.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from functools import cached_property
+
+from ...convention import Convention
+from ...errors import BalanceError, InputError, SpecificationError
+from ...state import make_fluid, read_specs
+from ...units import P_ATM, parse, read_rate
+from ...worksheet import UNKNOWN, FieldProblem, Worksheet, place
+from ..control_volume import Dof, Unknown, read_atmosphere
+from .network import DeviceSpec, Network, StreamSpec
+
+#: Devices that take heat (the others are adiabatic).
+HEATED = ("heater", "cooler")
+#: Devices that take work.
+WORKED = ("compressor", "pump", "turbine", "expander")
+#: The dead state exergy is counted against, unless the worksheet sets one [K].
+T0_DEFAULT = 298.15
+
+
+@dataclass
+class Problem:
+    """A steady-flow problem, every value in SI."""
+
+    worksheet: Worksheet
+    streams: list[StreamSpec]
+    devices: list[DeviceSpec]
+    convention: Convention
+    p_atm: float
+    rate_words: dict[str, str] = field(default_factory=dict)
+    """for each stream with a rate: what was read ('mass rate', 'standard volume: ...')"""
+    T0: float = T0_DEFAULT
+    """the dead-state temperature exergy destroyed is counted at [K]"""
+
+    def network(self) -> Network:
+        return Network(self.streams, self.devices)
+
+    @cached_property
+    def dof(self) -> Dof:
+        """What the network lacks, in words: the propagation tried once (it is cheap, and the
+        count and the solution are the same walk)."""
+        try:
+            self.network().solve()
+        except SpecificationError as exc:
+            return Dof((Unknown("state", "of the network"),), (), (), str(exc))
+        except BalanceError:  # complete; the solve itself says what fails
+            pass
+        plural = lambda n, w: f"{n} {w}{'' if n == 1 else 's'}"  # noqa: E731
+        return Dof((), (), (), f"{plural(len(self.devices), 'device')}, {plural(len(self.streams), 'stream')}: "
+                               "ready to solve")
+
+
+def prepare(ws: Worksheet) -> Problem:
+    """Read a steady-flow worksheet into a Problem; raises InputError naming the field."""
+    p_atm = read_atmosphere(ws.heading.atmosphere)
+    if not ws.streams:
+        raise InputError("stream", "give the streams: each a name and what is known of its state and rate")
+    if not ws.devices:
+        raise InputError("device", "give the devices: each a name, a kind and the streams it joins")
+    default = None
+    if ws.fluid.species or ws.fluid.model:
+        default = make_fluid(ws.fluid.species, ws.fluid.model, dict(ws.fluid.overrides))
+    names = [s.name for s in ws.streams]
+    twice = sorted({n for n in names if names.count(n) > 1})
+    if twice:
+        raise InputError("stream", f"two streams are named {twice[0]!r}: give each its own name")
+    streams, words = [], {}
+    for st in ws.streams:
+        where = f"stream '{st.name}'"
+        if st.species or st.model:
+            species = st.species or ws.fluid.species
+            model_name = st.model or ws.fluid.model
+            _, model = make_fluid(species, model_name, dict(ws.fluid.overrides) if species == ws.fluid.species else {},
+                                  fields=(f"{where}.species", f"{where}.model", "fluid.overrides"))
+        elif default is not None:
+            model = default[1]
+        else:
+            raise InputError("fluid.species", "give the species and model (for every stream, or each its own)")
+        M = model.species.M
+        given = read_specs(st.props, M, where, p_atm)
+        rate = None
+        if st.rate.strip() and st.rate.strip() != UNKNOWN:
+            rate, words[st.name] = read_rate(st.rate, M, f"{where}.rate")
+        velocity = _optional(st.velocity, "velocity", f"{where}.velocity")
+        area = _optional(st.area, "area", f"{where}.area", positive=True)
+        if velocity and area:
+            raise InputError(f"{where}.area", "give the velocity or the flow area, not both")
+        z = _optional(st.z, "length", f"{where}.z", allow_negative=True) or 0.0
+        streams.append(StreamSpec(st.name, model, given, rate, velocity or 0.0, area, z))
+    convention = Convention(ws.heading.convention)
+    devices = [_device(d, convention, p_atm) for d in ws.devices]
+    problem = Problem(ws, streams, devices, convention, p_atm, words)
+    problem.network()  # the graph itself: streams named, arity, each stream in at most one device's inlets
+    return problem
+
+
+def _optional(text: str, dimension: str, field: str, *, positive: bool = False,
+              allow_negative: bool = False) -> float | None:
+    if not text.strip():
+        return None
+    value = parse(text, dimension, field)
+    if (positive and not value > 0) or (not allow_negative and value < 0):
+        raise InputError(field, f"must be {'positive' if positive else 'zero or more'}; got {text!r}")
+    return value
+
+
+def _device(d, convention: Convention, p_atm: float) -> DeviceSpec:
+    where = f"device '{d.name}'"
+    v = d.values
+
+    def value(key: str, dimension: str, default=None, *, unknown_ok: bool = True):
+        text = v.get(key, "").strip()
+        if not text:
+            return default
+        if text == UNKNOWN:
+            if not unknown_ok:
+                raise InputError(f"{where}.{key}", "cannot be an unknown here")
+            return None
+        return parse(text, dimension, f"{where}.{key}")
+
+    if "Q" in v and d.kind not in HEATED:
+        raise InputError(f"{where}.Q", f"a {d.kind} here is adiabatic; heat is a heater's or a cooler's "
+                                       "(add one beside it)")
+    if "W" in v and d.kind not in WORKED:
+        raise InputError(f"{where}.W", f"a {d.kind} takes no work; power is a compressor's, pump's, "
+                                       "turbine's or expander's")
+    Q = value("Q", "power") if d.kind in HEATED else 0.0
+    W = value("W", "power") if d.kind in WORKED else 0.0
+    if W is not None and d.kind in WORKED:
+        W = convention.work_on(W)
+    eta = value("eta", "dimensionless")
+    poly = value("eta_poly", "dimensionless")
+    if eta is not None and poly is not None:
+        raise InputError(f"{where}.eta_poly", "give the isentropic efficiency eta or the polytropic eta_poly, not both")
+    if poly is not None and d.kind not in ("compressor", "pump"):
+        raise InputError(f"{where}.eta_poly", "a polytropic efficiency is a compressor's")
+    efficiency = poly if poly is not None else eta
+    if efficiency is not None and not 0.0 < efficiency <= 1.0:
+        key = "eta_poly" if poly is not None else "eta"
+        raise InputError(f"{where}.{key}", f"must be an efficiency above 0 and at most 1; got {v[key]!r}")
+    if d.kind in ("nozzle", "diffuser") and efficiency is None and not v.get("eta", "").strip():
+        efficiency = 1.0  # an ideal nozzle unless said otherwise (its words say so)
+    dP = tuple(_drop(v.get(k, ""), f"{where}.{k}") for k in ("dP", "dP_cold") if v.get(k, "").strip())
+    T_b = value("T_boundary", "temperature", unknown_ok=False)
+    fractions = tuple(parse(f, "dimensionless", f"{where}.fractions") for f in d.fractions)
+    arrangement = v.get("arrangement", "counter").strip() or "counter"
+    if arrangement not in ("counter", "co-current"):
+        raise InputError(f"{where}.arrangement", f"expected 'counter' or 'co-current'; got {arrangement!r}")
+    return DeviceSpec(d.name, d.kind, tuple(d.inlets), tuple(d.outlets), Q, W, efficiency, poly is not None, dP,
+                      T_b, fractions, arrangement == "counter")
+
+
+def _drop(text: str, field: str) -> float:
+    """A pressure drop as typed [Pa]: a pressure difference, zero or more."""
+    dP = parse(text, "pressure_difference", field)
+    if dP < 0:
+        raise InputError(field, f"a pressure drop is zero or more; got {text!r}")
+    return dP
+
+
+def problems(ws: Worksheet) -> list[FieldProblem]:
+    """Every field at fault (the first each part reaches, read as :func:`prepare` reads it), then
+    what stops the network; empty exactly when :func:`prepare` succeeds."""
+    try:
+        prepare(ws)
+    except InputError as exc:
+        return [place(ws, exc.field, exc.message)]
+    except SpecificationError as exc:
+        return [FieldProblem("", str(exc), "")]
+    return []
+
+
+__all__ = ["P_ATM", "Problem", "prepare", "problems"]
