@@ -21,7 +21,11 @@ def row(app, form: str, row_id: str) -> FieldRow:
 
 
 def step_line(app, number: int) -> str:
-    return app.screen.query_one(StepList).line(number - 1).plain
+    """The step's line in the step list, as drawn on the screen."""
+    steps = app.screen.query_one(StepList)
+    drawn = [strip.text for strip in app.screen._compositor.render_strips()]
+    row = steps.region.y + number - 1
+    return drawn[row][steps.region.x + 1:steps.region.right].rstrip()
 
 
 # a state field and what its message must say: below absolute zero is not a temperature

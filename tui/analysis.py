@@ -58,6 +58,9 @@ class Check(api.Check):
     statuses: dict[str, str] = field(default_factory=dict)
     problems: tuple[FieldProblem, ...] = ()
     """every field at fault, in the order of the steps and the form (the first is where to go)"""
+    missing: tuple[FieldProblem, ...] = ()
+    """what stops the count but is only not given yet (a blank field, a state with one
+    property so far, no path ticked): not a fault, and where ctrl+r goes when nothing is"""
 
     def faults(self, step: str) -> int:
         """How many fields of ``step`` are at fault."""
@@ -172,15 +175,67 @@ def process_problems(ws: Worksheet) -> list[FieldProblem]:
 
 def field_problems(ws: Worksheet, counted: api.Check | None = None) -> tuple[FieldProblem, ...]:
     """Every field at fault: each field's own check (what the inline validators say) and
-    what the domain's check found, placed at its field; in the order of the steps."""
+    what the domain's check found, placed at its field; in the order of the steps. What is
+    only not given yet is left out (:func:`missing_fields`)."""
+    return _sorted(p for p in _all_problems(ws, counted) if not _missing(ws, p))
+
+
+def missing_fields(ws: Worksheet, counted: api.Check | None = None) -> tuple[FieldProblem, ...]:
+    """What the checks name that is only not given yet: a blank field, a state given in
+    part, no path ticked. Not a fault: the step is incomplete, not invalid."""
+    return _sorted(p for p in _all_problems(ws, counted) if _missing(ws, p))
+
+
+def _all_problems(ws: Worksheet, counted: api.Check | None) -> list[FieldProblem]:
     found = (heading_problems(ws) + system_problems(ws) + fluid_problems(ws) + state_problems(ws) + term_problems(ws)
              + process_problems(ws))
     if counted is not None and counted.error:
         at = locate(counted.error_field, ws, counted.error)
         if at is not None and at.place not in {p.place for p in found}:
             found.append(at)
+    return found
+
+
+def _sorted(problems) -> tuple[FieldProblem, ...]:
     order = {step_id: i for i, step_id in enumerate(BY_ID)}
-    return tuple(sorted(found, key=lambda p: order[p.step]))
+    return tuple(sorted(problems, key=lambda p: order[p.step]))
+
+
+def _missing(ws: Worksheet, p: FieldProblem) -> bool:
+    """Whether a problem is only that something is not given yet."""
+    if p.key:
+        return _text_at(ws, p) == ""
+    if p.part == "initial":
+        states = ws.initial if p.index is None else ws.initial[p.index:p.index + 1]
+        return not states or not all(_state_complete(s, False) for s in states)
+    if p.part == "final":
+        return not _state_complete(ws.final, True)
+    return False
+
+
+def _text_at(ws: Worksheet, p: FieldProblem) -> str | None:
+    """The text typed at a problem's field ('' blank; None: not a text field of the worksheet)."""
+    part, i, key = p.place
+    if part == "fluid" and key in ("species", "model"):
+        return getattr(ws.fluid, key).strip()
+    if part == "worksheet" and key == "atmosphere":
+        return ws.heading.atmosphere.strip()
+    if part == "process":
+        if key == "constraints":
+            return "" if not ws.process.constraints and not any(w.kind == "boundary" for w in ws.work) else None
+        return getattr(ws.process, key, None).strip() if key in ("n", "dKE", "dPE") else None
+    if part in ("initial", "final"):
+        state = ws.final if part == "final" else (ws.initial[i] if i is not None else None)
+        if state is None:
+            return None
+        if key == "name":
+            return state.name.strip()
+        return (state.props.get(key) or state.amount.get(key) or "").strip()
+    if part in ("heat", "work") and i is not None:
+        term = getattr(ws, part)[i]
+        attr = {"Q": "Q", "W": "W", "T_boundary": "T_boundary", "name": "name"}.get(key)
+        return getattr(term, attr).strip() if attr else None
+    return None
 
 
 def _state_complete(s, final: bool) -> bool:
@@ -269,7 +324,8 @@ def check(ws: Worksheet, visited: frozenset[str] = frozenset()) -> Check:
     counted = api.check(ws)
     problems = field_problems(ws, counted)
     answer = Check(**{f.name: getattr(counted, f.name) for f in fields(api.Check) if f.name != "problem"},
-                   statuses=statuses(ws, visited, problems), problems=problems)  # no problem: it crosses processes
+                   statuses=statuses(ws, visited, problems), problems=problems,
+                   missing=missing_fields(ws, counted))  # no `problem`: the check crosses processes
     if not counted.error:
         return answer
     step = step_of_field(counted.error_field)

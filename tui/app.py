@@ -366,6 +366,9 @@ class JoulebookApp(BackgroundWork, App):
                            f"{BY_ID[first.step].number}: {first.message}")
             else:
                 message = f"not solved: {message}"
+                missing = check.missing if check is not None else ()
+                if missing:  # nothing at fault, something not given yet: go where it is typed
+                    self.go_to_problem(missing[0])
             self.notify(message, severity="warning", timeout=10, markup=False)
             return
         self.commit_all(quiet=True)

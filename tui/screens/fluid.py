@@ -85,7 +85,7 @@ liquid (use the incompressible or the reference model).
 
     def problem_targets(self) -> dict:
         q = self.query_one
-        return {("fluid", None, "species"): q("#species", FieldRow), ("fluid", None, ""): q("#model-problem", ProblemLine),
+        return {("fluid", None, "species"): q(SpeciesPicker), ("fluid", None, ""): q("#model-problem", ProblemLine),
                 ("fluid", None, "overrides"): q("#overrides", FieldRow)}
 
     def collect(self, ws: Worksheet) -> Worksheet:
@@ -121,7 +121,10 @@ liquid (use the incompressible or the reference model).
         for p in advice.problems:
             parts.append((f"• {p}\n", "$text-warning"))
         if advice.recommendation:
-            mark, style = ("✓ ", "$text-success") if advice.adequate else ("! ", "bold $text-warning")
+            if not advice.states:  # nothing judged yet: what to give, not a verdict
+                mark, style = ("· ", "$text-muted")
+            else:
+                mark, style = ("✓ ", "$text-success") if advice.adequate else ("! ", "bold $text-warning")
             parts.append((mark + advice.recommendation, style))
         box.update(Content.assemble(*parts))
 

@@ -181,6 +181,17 @@ class StepScreen(Screen):
     def action_focus_steps(self) -> None:
         self.query_one(StepList).focus()
 
+    def keep_focus_in_view(self) -> None:
+        """Scroll the focused field back into view once the foot has its new height (the
+        notices and the DOF line take the lines they need from the form)."""
+        def scroll() -> None:
+            focused = self.focused
+            if focused is not None and self.is_current:
+                focused.scroll_visible(animate=False)
+
+        # the first refresh restyles the foot, the second lays the form out again
+        self.call_after_refresh(lambda: self.call_after_refresh(scroll))
+
     def revalidate(self) -> None:
         """Check every unit-aware field again (after warm-up, or a new atmosphere)."""
         for row in self.query(FieldRow):

@@ -69,3 +69,8 @@ class DofLine(Static):
         if line != getattr(self, "_shown", None):  # an unchanged line costs no layout
             self._shown = line
             self.update(line)
+            rows = len(line.plain) // max(1, self.size.width - 2)  # about how many lines it wraps to
+            keep = getattr(self.screen, "keep_focus_in_view", None)
+            if rows != getattr(self, "_rows", None) and keep is not None:
+                keep()  # a line more or less for the form: the field being typed stays in view
+            self._rows = rows

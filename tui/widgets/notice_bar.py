@@ -60,7 +60,6 @@ class NoticeBar(Static):
         self.update(self._content(notices) if shown else "")
         if shown != self.has_class("-shown"):
             self.set_class(shown, "-shown")
-        focused = self.screen.focused
-        if focused is not None:
-            # the form gave lines up to the notices: keep the field being typed in view
-            self.call_after_refresh(focused.scroll_visible, animate=False)
+        keep = getattr(self.screen, "keep_focus_in_view", None)
+        if keep is not None:
+            keep()  # the form gave lines up to the notices: keep the field being typed in view

@@ -8,6 +8,8 @@ states are marked on it; the P–v axes are logarithmic and labelled so.
 
 from __future__ import annotations
 
+import math
+
 from textual_plotext import PlotextPlot
 
 from ..display import converter, unit_label
@@ -64,8 +66,21 @@ class ProcessDiagram(PlotextPlot):
                 return [X(v, M) for v in curve.v], [Y(P) for P in curve.P]
             return [X(s, M) for s in curve.s], [Y(T) for T in curve.T]
 
+        # the view: the process (its states and path) with a margin; a saturation dome is
+        # drawn where it passes through that view (whole, it would squash the process to a dot)
+        process = [xy(c) for c in tr.curves if c.style != "dome"]
+        process.append(([X(v, M) if pv else X(s, M) for _, T, P, v, s in tr.states],
+                        [Y(P) if pv else Y(T) for _, T, P, v, s in tr.states]))
+        x_lo, x_hi = _window([x for xs, _ in process for x in xs], pv)
+        y_lo, y_hi = _window([y for _, ys in process for y in ys], pv)
+        self.dome_shown = False
         for curve in tr.curves:
             xs, ys = xy(curve)
+            if curve.style == "dome":
+                for run in _inside(xs, ys, (x_lo, x_hi), (y_lo, y_hi)):
+                    plt.plot(*run, marker="braille", color=COLOURS["dome"])
+                    self.dome_shown = True
+                continue
             if curve.style == "jump":
                 # no quasi-static path: a dotted straight line (in the plotted axes)
                 n = JUMP_POINTS
@@ -89,23 +104,59 @@ class ProcessDiagram(PlotextPlot):
             plt.xscale("log")
             plt.yscale("log")
             xl, yl = f"{xl}, log scale", f"{yl}, log scale"
+        if pv:  # plotext takes the limits of a log axis as powers of ten
+            plt.xlim(math.log10(x_lo), math.log10(x_hi))
+            plt.ylim(math.log10(y_lo), math.log10(y_hi))
+        else:
+            plt.xlim(x_lo, x_hi)
+            plt.ylim(y_lo, y_hi)
         plt.xlabel(xl)
         plt.ylabel(yl)
-        plt.title(self.title_text(tr, pv))
+        plt.title(self.title_text(tr, pv, self.dome_shown))
 
     @staticmethod
-    def title_text(tr, pv: bool) -> str:
+    def title_text(tr, pv: bool, dome_shown: bool = True) -> str:
         """What the diagram shows, in words: the path (through the model's states, •) or
-        that there is none, and the saturation dome."""
+        that there is none, and the saturation dome (or that it lies outside the view)."""
         kinds = {c.style: c for c in tr.curves}
         if "path" in kinds:
-            what = f"{kinds['path'].label}, {len(kinds['path'].T)} model states •"
+            what = f"{kinds['path'].label}: {len(kinds['path'].T)} model states •"
         elif "jump" in kinds:
             what = "no quasi-static path (dotted)"
         else:
             what = ""
-        return (("P–v log–log" if pv else "T–s") + (f": {what}" if what else "")
-                + (" · dome grey" if "dome" in kinds else ""))
+        dome = ("" if "dome" not in kinds else " · dome grey" if dome_shown else " · dome off view")
+        # the tab names the plane; a title wider than the plot is not drawn at all
+        return (what + dome).lstrip(" ·")
+
+
+#: the margin around the process: a share of its span (linear axes), a factor (log axes)
+MARGIN, LOG_MARGIN = 0.25, 1.6
+
+
+def _window(values: list[float], log: bool) -> tuple[float, float]:
+    """The range of an axis: the process's values with a margin (never empty)."""
+    lo, hi = min(values), max(values)
+    if log and lo > 0:
+        spread = max(LOG_MARGIN, (hi / lo) ** MARGIN)
+        return lo / spread, hi * spread
+    pad = MARGIN * (hi - lo) or 0.05 * max(abs(lo), abs(hi)) or 1.0
+    return lo - pad, hi + pad
+
+
+def _inside(xs, ys, x_range, y_range) -> list[tuple[list[float], list[float]]]:
+    """The runs of a curve's points inside the view, each drawn on its own (a gap is not a chord)."""
+    runs, run = [], ([], [])
+    for x, y in zip(xs, ys):
+        if x_range[0] <= x <= x_range[1] and y_range[0] <= y <= y_range[1]:
+            run[0].append(x)
+            run[1].append(y)
+        elif run[0]:
+            runs.append(run)
+            run = ([], [])
+    if run[0]:
+        runs.append(run)
+    return [r for r in runs if len(r[0]) >= 2]
 
 
 def _geom(a: float, b: float, n: int) -> list[float]:

@@ -71,6 +71,17 @@ class SpeciesPicker(Widget):
     def on_mount(self) -> None:
         self._fill(self._initial)
 
+    # -- what the check found at the species (see StepScreen.problem_targets) -------------
+    def set_problem(self, text: str) -> None:
+        """The note under the field already says what the lookup found (the check's own
+        words for an unknown species): only a finding it does not say is shown there."""
+        note = self.query_one(".species-picker--found", Static)
+        if text and str(note.content) not in text:
+            note.update(text)
+
+    def focus_target(self):
+        return self.query_one("#species", FieldRow).input
+
     @property
     def value(self) -> str:
         return self.query_one("#species", FieldRow).value

@@ -64,6 +64,7 @@ class StepList(LineList):
 
     def on_mount(self) -> None:
         self.watch(self.app, "statuses", self.show_statuses, init=False)  # built with them
+        self.watch(self.app, "check", lambda _: self.refresh(), init=False)  # the counts, status unchanged
 
     def show_statuses(self, statuses: dict[str, str]) -> None:
         self._statuses = dict(statuses)
