@@ -280,6 +280,18 @@ def _convert(text: str, dimension: str) -> tuple[float, bool, str, bool]:
     return si, kind == "gauge", "", False
 
 
+def unit_of(text, dimension: str) -> str | None:
+    """The unit ``text`` is written in, as it is read: 'degC' for '25 C', 'bar' for '3 barg'
+    (a gauge or absolute marker taken off), 'm**3' for 'm3'; None where ``text`` does not read
+    as ``dimension`` (blank, '?', a bare number, a fault)."""
+    if not isinstance(text, str) or len(text) > MAX_TEXT or _convert(text, dimension)[2]:
+        return None
+    split = _split(text, dimension)
+    if isinstance(split, str) or not split[1]:
+        return None
+    return _pressure_suffix(split[1])[0] if dimension == "pressure" else split[1]
+
+
 def _is_offset(unit: str) -> bool:
     return unit.strip() in {"degC", "degF", "°C", "°F", "celsius", "fahrenheit"}
 

@@ -16,7 +16,7 @@ from rich.console import Console
 from balance import api
 from balance.balances.cautions import Caution, record_units
 from balance.record.solve_text import solve_text
-from tests.helpers import sample, sheet
+from tests.helpers import SAMPLES, sample, sheet
 from tests.test_output_app import text_of
 from tests.test_tui_pilot import SIZE, author, ready, sample_app, solve_on_results  # noqa: F401  (fixture)
 from tui.display import caution_value
@@ -148,3 +148,66 @@ def test_the_amount_in_us_units_is_in_pound_moles(demo):
     Console(file=out, width=200, color_system=None).print(result_renderable(demo, "us"))
     (n_row,) = [ln for ln in out.getvalue().splitlines() if ln.split()[:2] == ["n", "lbmol"]]
     assert n_row.split()[2:] == ["27.3659", "27.3659"]
+
+
+# -- units as typed -------------------------------------------------------------------------
+#: The piston rig typed in US units (77 degF, 72.5 psia, 0.07 lb) but for the final pressure.
+TYPED = (SAMPLES / "methane-piston-isothermal.toml").read_text().replace('T = "25 degC"', 'T = "77 degF"').replace(
+    'P = "5 bar"', 'P = "72.5 psia"').replace('n = "2 mol"', 'm = "0.07 lb"')
+
+
+def test_the_typed_set_takes_each_kind_in_the_unit_first_typed_for_it(tmp_path):
+    from tui.display import show, typed_set, unit_label, use_typed
+
+    ws = sheet(TYPED)
+    units = typed_set(ws)
+    # psia read as psi (absolute), °F as typed, the mass in pounds; what is not typed: metric
+    assert (units["T"], units["P"], units["m"], units["E"], units["V"]) == ("degF", "psi", "lb", "kJ", "m**3")
+    use_typed(ws)
+    assert unit_label("T", "typed") == "°F" and unit_label("P", "typed") == "psia"
+    # 298.15 K is 77 °F (T[°F] = 1.8 T[°C] + 32); 72.5 psi is 499869.9 Pa (1 psi = 6894.757 Pa)
+    assert show(298.15, "T", "typed") == "77"
+    assert show(72.5 * 6894.757, "P", "typed") == "72.5"
+
+
+def test_a_gauge_reading_and_a_unit_of_another_dimension_in_the_typed_set(tmp_path):
+    from tui.display import typed_set
+
+    text = TYPED.replace('P = "72.5 psia"', 'P = "4 barg"').replace('T = "77 degF"', 'T = "25 C"')
+    units = typed_set(sheet(text))
+    assert units["P"] == "bar" and units["T"] == "degC"  # barg shown absolute, in bar; '25 C' is °C
+    # a specific volume typed as a molar one (L/mol) cannot show a mass-based v: the metric unit stays
+    text = text.replace('m = "0.07 lb"', 'n = "2 mol"').replace('P = "4 barg"', 'v = "12 L/mol"')
+    assert typed_set(sheet(text))["v"] == "m**3/kg"
+
+
+def test_solve_on_the_command_line_in_the_units_typed(tmp_path):
+    from tui.display import use_typed
+
+    result = api.solve(sheet(TYPED))
+    use_typed(result.problem.worksheet)
+    out = io.StringIO()
+    Console(file=out, width=200, color_system=None).print(result_renderable(result, "typed"))
+    shown = out.getvalue()
+    assert "Result: end: T = 77 °F" in shown  # isothermal at the 77 °F typed
+    (m_row,) = [ln for ln in shown.splitlines() if ln.split()[:2] == ["m", "lb"]]
+    assert m_row.split()[2:] == ["0.07", "0.07"]
+
+
+async def test_f2_reaches_the_units_as_typed(tmp_path, author):  # noqa: F811
+    path = tmp_path / "typed.toml"
+    path.write_text(TYPED)
+    from tui.session import open_target
+    from tui.app import JoulebookApp
+
+    app = JoulebookApp(open_target(str(path), must_exist=False))
+    app.session.step = "results"
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        await solve_on_results(pilot)
+        for _ in range(2):  # metric -> US customary -> as typed
+            await pilot.press("f2")
+            await pilot.pause()
+        assert app.units == "typed"
+        shown = " ".join(text_of(app, "#balance").split())
+        assert "crosses at 77 °F" in shown and "lb 0.07 0.07" in shown

@@ -28,8 +28,9 @@ from .background import BackgroundWork, Outcome
 from .session import Session
 from .steps import BY_ID, ORDER, SECTION_STEPS, STEP_SECTIONS, STEPS, neighbour, screen_class
 
-UNIT_SETS = ("si", "metric", "us")
-UNIT_NAMES = {"si": "SI", "metric": "metric engineering", "us": "US customary"}
+UNIT_SETS = ("si", "metric", "us", "typed")
+UNIT_NAMES = {"si": "SI", "metric": "metric engineering", "us": "US customary",
+              "typed": "as typed (each kind in the unit first typed for it; gauge shown absolute)"}
 
 
 class JoulebookApp(BackgroundWork, App):
@@ -52,7 +53,7 @@ class JoulebookApp(BackgroundWork, App):
         Binding("ctrl+s", "commit", "Commit", id="record.commit",
                 tooltip="Write the uncommitted edits to the record"),
         Binding("f2", "cycle_units", "Units", id="display.units",
-                tooltip="Switch the display units: SI, metric engineering, US customary"),
+                tooltip="Switch the display units: SI, metric engineering, US customary, as typed"),
         Binding("ctrl+p", "command_palette", "Commands", id="app.commands", priority=True,
                 tooltip="Every command by name"),
         Binding("f4", "compare", "Compare", id="balance.compare", show=False,
@@ -164,6 +165,13 @@ class JoulebookApp(BackgroundWork, App):
         """Ask the key bar to redraw (greyed actions may have become possible)."""
         if self.screen_stack:
             self.screen.refresh_bindings()
+
+    def watch_check(self) -> None:
+        # the worksheet was checked again: the "as typed" units follow what is typed now
+        if self.units == "typed":
+            from .display import use_typed
+
+            use_typed(self.session.worksheet)
 
     def watch_dirty(self, old: tuple, new: tuple) -> None:
         if bool(old) != bool(new):
@@ -443,6 +451,10 @@ class JoulebookApp(BackgroundWork, App):
         self.set_units(units)
 
     def set_units(self, units: str) -> None:
+        if units == "typed":
+            from .display import use_typed
+
+            use_typed(self.session.worksheet)
         self.units = units
         self.session.set_units(units)
         self.notify(f"display units: {UNIT_NAMES[units]}")

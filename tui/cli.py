@@ -56,6 +56,10 @@ def cmd_solve(args) -> int:
     else:
         from .render import result_renderable
 
+        if args.units == "typed":
+            from .display import use_typed
+
+            use_typed(result.problem.worksheet)
         _console().print(result_renderable(result, args.units))
     return EXIT_OK
 
@@ -212,11 +216,13 @@ def build_parser():
     sub = parser.add_subparsers(dest="command")
 
     units = dict(choices=("si", "metric", "us"), default="metric", help="display units (default metric)")
+    solved_units = dict(units, choices=("si", "metric", "us", "typed"),
+                        help="display units (default metric; typed: each kind in the unit the worksheet uses)")
 
     p = sub.add_parser("solve", help="solve a worksheet and print the result")
     p.add_argument("file", help="worksheet (TOML)")
     p.add_argument("--json", action="store_true", help="machine-readable output (SI units)")
-    p.add_argument("--units", **units)
+    p.add_argument("--units", **solved_units)
     p.set_defaults(func=cmd_solve)
 
     p = sub.add_parser("check", help="validate a worksheet and count degrees of freedom (no solve)")
@@ -241,7 +247,7 @@ def build_parser():
     p = sub.add_parser("demo", help="open the bundled demo worksheet in the terminal app")
     p.add_argument("--print", action="store_true", help="print the solved demo instead (no terminal app)")
     p.add_argument("--record", help="keep the demo's record here (default: a temporary folder)")
-    p.add_argument("--units", **units)
+    p.add_argument("--units", **solved_units)
     p.set_defaults(func=cmd_demo)
 
     p = sub.add_parser("open", help="open a record (.jbk) or start one from a worksheet (.toml) in the terminal app")

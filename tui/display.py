@@ -1,6 +1,8 @@
 """Display units: the same SI results shown in the units an engineer reads.
 
-Three unit sets; the CLI's ``--units`` and the TUI's switch choose one.
+Three unit sets, and a fourth, "typed", made from the worksheet (:func:`use_typed`): each
+kind of value in the unit it was typed in; the CLI's ``--units`` and the TUI's switch
+choose one.
 Intensive properties are shown per unit mass (what plant data sheets use);
 the JSON output stays molar SI.
 """
@@ -39,6 +41,7 @@ UNIT_SETS = {
         "m": "lb", "n": "lbmol",
     },
 }
+UNIT_SETS["typed"] = dict(UNIT_SETS["metric"])  # until a worksheet is shown (use_typed)
 
 #: SI units of the values handed to ``show`` (mass-based intensive values).
 SI = {
@@ -51,6 +54,52 @@ _SHORT = {
     "ft**3/lb": "ft³/lb", "Btu/(lb*degR)": "Btu/(lb·°R)", "ft**3": "ft³", "Btu/degR": "Btu/°R",
     "psi": "psia", "bar": "bar(a)",
 }
+
+
+#: What the "typed" set takes from a worksheet: each display kind, the dimension it is read
+#: as, and the fields typed in it (a state's property or amount; a heat or work term).
+_TYPED_FROM = {
+    "T": ("temperature", ("T",)), "P": ("pressure", ("P",)), "v": ("specific_volume", ("v",)),
+    "u": ("specific_energy", ("u",)), "h": ("specific_energy", ("h",)), "s": ("specific_entropy", ("s",)),
+    "V": ("volume", ("V",)), "m": ("mass", ("m",)), "n": ("amount", ("n",)), "E": ("energy", ("Q", "W")),
+}
+
+
+def typed_set(ws) -> dict[str, str]:
+    """A unit set from a worksheet: each kind in the first unit a field of it was typed in
+    (gauge pressures shown absolute, in their unit), the metric set's for the rest. A unit
+    that does not convert from the kind's SI unit (a molar volume typed as v) is passed by."""
+    from balance.units import unit_of
+
+    typed = dict(UNIT_SETS["metric"])
+    states = [*ws.initial, ws.final]
+    texts = {key: [s.props.get(key) or s.amount.get(key) for s in states] for key in ("T", "P", "v", "u", "h", "s",
+                                                                                    "V", "m", "n")}
+    texts["Q"] = [t.Q for t in ws.heat]
+    texts["W"] = [t.W for t in ws.work]
+    for kind, (dimension, keys) in _TYPED_FROM.items():
+        for text in (t for key in keys for t in texts[key]):
+            unit = unit_of(text, dimension)
+            if unit is not None and _converts(SI[kind], unit):
+                typed[kind] = unit
+                break
+    if typed["E"] != UNIT_SETS["metric"]["E"] and _converts("J/K", f"({typed['E']})/K"):
+        E = typed["E"]
+        typed["S"] = f"{E}/K" if E.isalnum() else f"({E})/K"  # an entropy follows the energy typed
+    return typed
+
+
+def _converts(si: str, unit: str) -> bool:
+    try:
+        to_unit(1.0, si, unit)
+    except Exception:  # pint's errors for a unit of another dimension, or none it knows
+        return False
+    return True
+
+
+def use_typed(ws) -> None:
+    """Make the "typed" set the units of ``ws`` (one worksheet is shown at a time)."""
+    UNIT_SETS["typed"] = typed_set(ws)
 
 
 def unit_label(kind: str, units: str) -> str:
@@ -92,6 +141,14 @@ def _plain(x: float, digits: int) -> str:
     decimals = max(0, digits - 1 - math.floor(math.log10(abs(x))))
     text = f"{x:.{decimals}f}"
     return text.rstrip("0").rstrip(".") if "." in text else text
+
+
+def temperature_step(dK: float, units: str) -> str:
+    """A difference of temperatures: in kelvin, or in Fahrenheit degrees where the set's
+    temperatures are °F or °R."""
+    if UNIT_SETS[units]["T"] in ("degF", "degR"):
+        return f"{dK * 1.8:+.4g} °F"
+    return f"{dK:+.4g} K"
 
 
 def caution_writer(units: str):

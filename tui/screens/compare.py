@@ -79,7 +79,7 @@ class CompareScreen(ModalScreen[None]):
     @staticmethod
     def table(comparison, units: str) -> Content:
         """Both models' values, their difference and the difference relative to the first."""
-        from ..display import show, unit_label
+        from ..display import show, temperature_step, unit_label
 
         a_name, b_name = (model_words(m) for m in comparison.models)
         lines: list = [("A: ", "bold"), f"{a_name}   ", ("B: ", "bold"), f"{b_name}\n",
@@ -89,7 +89,7 @@ class CompareScreen(ModalScreen[None]):
             diff = rel = ""
             if a is not None and b is not None:
                 if kind == "T":  # a difference of temperatures: kelvin (°F degrees in US units)
-                    diff = f"{(b - a) * 1.8:+.4g} °F" if units == "us" else f"{b - a:+.4g} K"
+                    diff = temperature_step(b - a, units)
                 else:
                     diff = show(b - a, kind, units, 4)
                 rel = f" ({(b - a) / abs(a):+.1%})" if a else ""
