@@ -301,3 +301,26 @@ async def test_the_diagrams_label_their_log_axes_and_draw_the_path_through_the_m
         await settle(pilot)
         assert on_screen(app, "isothermal: 40 model states • · dome")
         assert not on_screen(app, "log scale")
+
+
+# -- a record whose chain is broken -----------------------------------------------------------
+async def test_a_broken_record_is_said_to_be_broken_on_opening_and_takes_no_commit(tmp_path, author):
+    from tui.session import Session
+
+    app = sample_app(tmp_path, DEMO)
+    app.session.commit()
+    path = app.session.path
+    text = path.read_text()
+    entries = text.split("\n\n")
+    path.write_text(text.rstrip("\n") + "\n\n" + entries[2].strip("\n") + "\n")  # an entry filed twice
+    app = JoulebookApp(Session.open(path))
+    async with app.run_test(size=SIZE) as pilot:
+        await ready(pilot)
+        bar = app.screen.query_one(NoticeBar)
+        assert "the chain is BROKEN at entry" in bar.text and "It can be read, not extended" in bar.text
+        await fill(pilot, in_row("title"), "typed after opening")
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+        assert "not committed" in app.screen.query_one(NoticeBar).text
+    assert "typed after opening" not in path.read_text()  # the record is left as found
+    assert "typed after opening" in Session.open(path).worksheet.heading.title  # and the draft keeps it

@@ -111,6 +111,8 @@ class JoulebookApp(BackgroundWork, App):
         return screen
 
     def on_mount(self) -> None:
+        for alarm in self.session.alarms:
+            self.notify(alarm, severity="error", timeout=60, markup=False)
         for note in self.session.notes:
             self.notify(note, timeout=8)
         self.screen.call_after_refresh(self._first_screen_shown)

@@ -91,6 +91,8 @@ class Session:
     """the open :class:`balance.record.Record`, or None until the first commit creates it"""
     notes: list[str] = field(default_factory=list)
     """what the app should tell the user on opening (e.g. a draft restored)"""
+    alarms: list[str] = field(default_factory=list)
+    """what the app says first and keeps on screen a minute: the record cannot be trusted"""
     author: str | None = None
     hold: tuple[str, ...] = ()
     """sections never committed while they are so: fields of theirs are at fault (the app
@@ -135,6 +137,11 @@ class Session:
             session.record = Record.load(str(session.path))
             if session.record.recovered:
                 session.notes.append(f"{session.path.name}: {session.record.recovered}")
+            if session.record.broken is not None:
+                seq, reason = session.record.broken
+                session.alarms.append(f"{session.path.name}: the chain is BROKEN at entry {seq}: {reason}. It can "
+                                     "be read, not extended: nothing is committed, solved or signed into it "
+                                     "(what you type is kept in the draft); restore the filed copy")
             session.committed = session.worksheet = session.record.worksheet()
         elif not session.draft_path.exists():
             raise InputError(str(path), "does not exist (give a record .jbk, a worksheet .toml, or no file for a new worksheet)")

@@ -93,7 +93,7 @@ class CompareScreen(ModalScreen[None]):
                 else:
                     diff = show(b - a, kind, units, 4)
                 rel = f" ({(b - a) / abs(a):+.1%})" if a else ""
-            lines.append(f"{label[:12]:<12}{unit[:9]:<9}{show(a, kind, units, 6):>15} "
+            lines.append(f"{label[:11]:<12}{unit[:8]:<9}{show(a, kind, units, 6):>15} "
                          f"{show(b, kind, units, 6):>15}  {diff}{rel}\n")
         for name, attempt in zip((a_name, b_name), comparison.attempts):
             if attempt.result is None:
