@@ -75,11 +75,15 @@ KINDS = MappingProxyType({k.name: k for k in (
     Kind("closed", "closed system",
          ("worksheet", "system", "fluid", "initial", "final", "heat", "work", "process"),
          "balance.balances.closed"),
+    Kind("steady-flow", "steady-flow devices",
+         ("worksheet", "system", "fluid", "stream", "device"),
+         "balance.balances.steady_flow"),
 )})
 
 #: Kinds a worksheet may already name, and why they cannot be balanced yet.
 RESERVED = MappingProxyType({
-    "open": "open systems (streams) are not available yet; use 'closed'",
+    "open": "say which open system: 'steady-flow' for streams through devices at steady state "
+            "(a vessel filled or emptied over time is not available yet)",
 })
 
 

@@ -42,6 +42,15 @@ STEPS_BY_KIND = {
         Step("results", "Solve and results", "Solve", (), "tui.screens.results:ResultsScreen"),
         Step("review", "Review and sign", "Review, sign", (), "tui.screens.review:ReviewScreen"),
     ),
+    "steady-flow": _numbered(
+        Step("purpose", "Purpose and basis", "Purpose", ("worksheet",), "tui.screens.purpose:PurposeScreen"),
+        Step("boundary", "System boundary", "Boundary", ("system",), "tui.screens.boundary:BoundaryScreen"),
+        Step("fluid", "Fluid and property model", "Fluid, model", ("fluid",), "tui.screens.fluid:FluidScreen"),
+        Step("streams", "Streams", "Streams", ("stream",), "tui.screens.streams:StreamsScreen"),
+        Step("devices", "Devices", "Devices", ("device",), "tui.screens.devices:DevicesScreen"),
+        Step("results", "Solve and results", "Solve", (), "tui.screens.results:ResultsScreen"),
+        Step("review", "Review and sign", "Review, sign", (), "tui.screens.review:ReviewScreen"),
+    ),
 }
 
 #: The app's steps. Only closed systems can be balanced today; a worksheet of another
