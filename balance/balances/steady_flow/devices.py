@@ -17,7 +17,8 @@ compressor, pump   adiabatic: Ẇ = ṅ (h_out - h_in); isentropic efficiency
                    or polytropic efficiency η_p over many small stages of that definition
 turbine, expander  adiabatic: η_s = (h_in - h_out) / (h_in - h_2s)
 nozzle, diffuser   adiabatic, no work: V_out² = V_in² + 2 (h_in - h_out) / M;
-                   η = (h_in - h_out) / (h_in - h_2s) (a nozzle's kinetic-energy efficiency)
+                   η = (h_in - h_out) / (h_in - h_2s) (a nozzle's kinetic-energy efficiency);
+                   a diffuser's (P_out > P_in) η = (h_2s - h_in) / (h_out - h_in)
 mixer              adiabatic, no work: ṅ_out e_out = Σ ṅ_in e_in
 splitter           every outlet in the inlet's state; the rates share the inlet's
 exchanger          two sides that do not mix: Q̇ = ṅ_hot (e_hot,in - e_hot,out)
@@ -191,9 +192,13 @@ def _polytropic(inlet: Flow, P_out: float, eta_p: float, field: str) -> Point:
 
 def nozzle(inlet: Flow, P_out: float, name: str, *, eta: float = 1.0, field: str = "device") -> Flow:
     """A nozzle (or, run the other way, a diffuser): adiabatic, no work; the outlet speed [m/s] from
-    h_in - h_out = η (h_in - h_2s) and V_out² = V_in² + 2 (h_in - h_out) / M (same height)."""
+    V_out² = V_in² + 2 (h_in - h_out) / M (same height), with h_out from the efficiency as published:
+    a nozzle's η = (h_in - h_out) / (h_in - h_2s) (the kinetic energy gained over the isentropic gain),
+    a diffuser's (P_out above P_in) η = (h_2s - h_in) / (h_out - h_in) (the isentropic rise over the
+    kinetic energy given up)."""
     end = isentropic_end(inlet, P_out, field)
-    h2 = inlet.point.h - eta * (inlet.point.h - end.h)
+    h1 = inlet.point.h
+    h2 = h1 + (end.h - h1) / eta if P_out > inlet.point.P else h1 - eta * (h1 - end.h)
     point = inlet.model.flash({"P": P_out, "h": h2}, field=field)
     V2sq = inlet.velocity**2 + 2.0 * (inlet.point.h - point.h) / inlet.M
     if V2sq < 0:

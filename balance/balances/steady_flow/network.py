@@ -104,6 +104,10 @@ class Network:
         self.W: dict[str, float | None] = {d.name: d.W_dot for d in devices}
         self.eta: dict[str, float | None] = {d.name: d.eta for d in devices}
         self.isentropic: dict[str, Point] = {}
+        self.speeds: dict[str, float] = {}
+        self.checked: set[str] = set()
+        """devices whose outlets were given in full and have been held to what the device makes of its inlet"""
+        """speeds a device works out (a nozzle's outlet) [m/s], over the stream's own"""
         self.notes: list[str] = []
         self.basis = ""
         self._check_graph()
@@ -162,7 +166,7 @@ class Network:
         """The stream's Flow (its state and rate known), with its speed."""
         spec = self.streams[name]
         n = self.rates[name]
-        v = spec.velocity
+        v = self.speeds.get(name, spec.velocity)
         if spec.area is not None:
             v = n * self.points[name].v / spec.area
         return Flow(name, spec.model, self.points[name], n, v, spec.z)
@@ -227,7 +231,8 @@ class Network:
             b = dv.balance_of(ins, outs, self.Q[d.name] or 0.0, self.W[d.name] or 0.0, d.T_boundary)
             if abs(b.mass) > TOLERANCE or abs(b.energy) > TOLERANCE:
                 raise SolveError(f"{d.where}: its balances do not close after solving (mass {b.mass:.2e}, "
-                                 f"energy {b.energy:.2e}, relative); no result reported")
+                                 f"energy {b.energy:.2e}, relative): if every state and rate here is given, one "
+                                 "of them is fixed by the others (leave it to be found, '?'); no result reported")
             if d.kind == "exchanger":
                 ap = dv.approach(flows[d.inlets[0]], flows[d.outlets[0]], flows[d.inlets[1]], flows[d.outlets[1]],
                                  counter=d.counter, field=d.where)
@@ -297,8 +302,10 @@ def _rates(net: Network, d: DeviceSpec) -> bool:
 # -- the rules: what each kind works out --------------------------------------------------
 def _valve(net: Network, d: DeviceSpec) -> bool:
     a, b = d.inlets[0], d.outlets[0]
-    if not net.known(a) or net.known(b):
+    if not net.known(a) or (net.known(b) and d.name in net.checked):
         return False
+    if net.known(b):  # both ends given: the outlet's given values must be the throttle's (over-specified otherwise)
+        net.checked.add(d.name)
     P = net.P_of(b, d, a)
     if P is None:
         return False
@@ -373,8 +380,10 @@ def _machine(net: Network, d: DeviceSpec) -> bool:
             point = dv.machine(inlet, P, b, compresses=compresses, eta=net.eta[d.name], polytropic=d.polytropic,
                                field=d.where).out.point
         elif net.W[d.name] is not None and a in net.rates:
-            point = net.streams[a].model.flash({"P": P, "h": net.points[a].h + net.W[d.name] / net.rates[a]},
-                                               field=d.where)
+            e = net.flow(a).e + net.W[d.name] / net.rates[a]
+            spec = net.streams[b]
+            point = _with_speed(net, b, lambda V: net.streams[a].model.flash(
+                {"P": P, "h": dv.h_for_energy(e, spec.model.species.M, V, spec.z)}, field=d.where))
         else:
             return False
         net.set_point(b, point)
@@ -386,8 +395,8 @@ def _machine(net: Network, d: DeviceSpec) -> bool:
     if net.eta[d.name] is None:
         net.eta[d.name] = m.eta_isentropic
         progress = True
-    if net.W[d.name] is None and a in net.rates:
-        net.W[d.name] = net.rates[a] * (net.points[b].h - net.points[a].h)
+    if net.W[d.name] is None and a in net.rates and b in net.rates:  # the energy carried: h, speed, height
+        net.W[d.name] = net.rates[a] * (net.flow(b).e - net.flow(a).e)
         progress = True
     return progress
 
@@ -399,10 +408,17 @@ def _nozzle(net: Network, d: DeviceSpec) -> bool:
     P = net.P_of(b, d, a)
     if P is None or net.eta[d.name] is None:
         return False
-    inlet = Flow(a, net.streams[a].model, net.points[a], net.rates.get(a, 1.0), net.streams[a].velocity,
-                 net.streams[a].z)
+    spec = net.streams[b]
+    if spec.velocity or spec.area is not None:
+        raise SpecificationError(f"{d.kind} {d.name}: the outlet speed of '{b}' follows from its energy balance; "
+                                 "leave out its velocity and area")
+    if net.streams[a].area is not None and a not in net.rates:
+        return False  # the inlet's speed needs its rate
+    inlet = net.flow(a) if a in net.rates else Flow(a, net.streams[a].model, net.points[a], 1.0,
+                                                     net.streams[a].velocity, net.streams[a].z)
     out = dv.nozzle(inlet, P, b, eta=net.eta[d.name], field=d.where)
     net.set_point(b, out.point)
+    net.speeds[b] = out.velocity
     net.note(f"{d.kind} {d.name}: outlet speed {out.velocity:.4g} m/s")
     return True
 
