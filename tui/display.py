@@ -15,7 +15,7 @@ from balance.units import to_unit as _pint_to_unit
 
 #: Display units pint's default registry lacks, as SI amounts per unit: the pound-mole is
 #: 453.59237 mol (the avoirdupois pound, 0.45359237 kg exactly: NIST SP 811).
-_BY_HAND = {"lbmol": ("mol", 453.59237)}
+_BY_HAND = {"lbmol": ("mol", 453.59237), "lbmol/h": ("mol/s", 453.59237 / 3600.0)}
 
 
 def to_unit(value: float, unit: str, target: str) -> float:
@@ -28,17 +28,20 @@ UNIT_SETS = {
     "si": {
         "T": "K", "P": "kPa", "v": "m**3/kg", "u": "kJ/kg", "h": "kJ/kg", "s": "kJ/(kg*K)",
         "cv": "kJ/(kg*K)", "cp": "kJ/(kg*K)", "E": "kJ", "S": "kJ/K", "V": "m**3", "m": "kg",
-        "n": "mol",
+        "n": "mol", "Edot": "kW", "Sdot": "kW/K", "mdot": "kg/s", "ndot": "mol/s", "Vdot": "m**3/s",
+        "vel": "m/s",
     },
     "metric": {
         "T": "degC", "P": "bar", "v": "m**3/kg", "u": "kJ/kg", "h": "kJ/kg", "s": "kJ/(kg*K)",
         "cv": "kJ/(kg*K)", "cp": "kJ/(kg*K)", "E": "kJ", "S": "kJ/K", "V": "m**3", "m": "kg",
-        "n": "kmol",
+        "n": "kmol", "Edot": "kW", "Sdot": "kW/K", "mdot": "kg/h", "ndot": "kmol/h", "Vdot": "m**3/h",
+        "vel": "m/s",
     },
     "us": {
         "T": "degF", "P": "psi", "v": "ft**3/lb", "u": "Btu/lb", "h": "Btu/lb", "s": "Btu/(lb*degR)",
         "cv": "Btu/(lb*degR)", "cp": "Btu/(lb*degR)", "E": "Btu", "S": "Btu/degR", "V": "ft**3",
-        "m": "lb", "n": "lbmol",
+        "m": "lb", "n": "lbmol", "Edot": "Btu/h", "Sdot": "Btu/(h*degR)", "mdot": "lb/h", "ndot": "lbmol/h",
+        "Vdot": "ft**3/min", "vel": "ft/s",
     },
 }
 UNIT_SETS["typed"] = dict(UNIT_SETS["metric"])  # until a worksheet is shown (use_typed)
@@ -47,12 +50,15 @@ UNIT_SETS["typed"] = dict(UNIT_SETS["metric"])  # until a worksheet is shown (us
 SI = {
     "T": "K", "P": "Pa", "v": "m**3/kg", "u": "J/kg", "h": "J/kg", "s": "J/(kg*K)",
     "cv": "J/(kg*K)", "cp": "J/(kg*K)", "E": "J", "S": "J/K", "V": "m**3", "m": "kg", "n": "mol",
+    # the rates of steady flow: power, entropy rate, mass, molar and actual volume rates, speed
+    "Edot": "W", "Sdot": "W/K", "mdot": "kg/s", "ndot": "mol/s", "Vdot": "m**3/s", "vel": "m/s",
 }
 
 _SHORT = {
     "m**3/kg": "m³/kg", "kJ/(kg*K)": "kJ/(kg·K)", "degC": "°C", "degF": "°F", "m**3": "m³",
     "ft**3/lb": "ft³/lb", "Btu/(lb*degR)": "Btu/(lb·°R)", "ft**3": "ft³", "Btu/degR": "Btu/°R",
-    "psi": "psia", "bar": "bar(a)",
+    "psi": "psia", "bar": "bar(a)", "m**3/s": "m³/s", "m**3/h": "m³/h", "ft**3/min": "ft³/min",
+    "Btu/(h*degR)": "Btu/(h·°R)",
 }
 
 
@@ -62,6 +68,8 @@ _TYPED_FROM = {
     "T": ("temperature", ("T",)), "P": ("pressure", ("P",)), "v": ("specific_volume", ("v",)),
     "u": ("specific_energy", ("u",)), "h": ("specific_energy", ("h",)), "s": ("specific_entropy", ("s",)),
     "V": ("volume", ("V",)), "m": ("mass", ("m",)), "n": ("amount", ("n",)), "E": ("energy", ("Q", "W")),
+    # a steady-flow worksheet's rates: its devices' heat and power, its streams' mass and molar rates
+    "Edot": ("power", ("Q_dot", "W_dot")), "mdot": ("mass_rate", ("rate",)), "ndot": ("molar_rate", ("rate",)),
 }
 
 
@@ -77,6 +85,11 @@ def typed_set(ws) -> dict[str, str]:
                                                                                     "V", "m", "n")}
     texts["Q"] = [t.Q for t in ws.heat]
     texts["W"] = [t.W for t in ws.work]
+    for key in ("T", "P", "v", "u", "h", "s"):  # a steady-flow worksheet's streams (none in a closed one)
+        texts[key] += [st.props.get(key) for st in ws.streams]
+    texts["rate"] = [st.rate for st in ws.streams]
+    texts["Q_dot"] = [d.values.get("Q") for d in ws.devices]
+    texts["W_dot"] = [d.values.get("W") for d in ws.devices]
     for kind, (dimension, keys) in _TYPED_FROM.items():
         for text in (t for key in keys for t in texts[key]):
             unit = unit_of(text, dimension)

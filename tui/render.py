@@ -44,7 +44,7 @@ def states_table(states: list[State], units: str, title: str = "States") -> Tabl
     return t
 
 
-def headline(r: Result, units: str) -> str:
+def closed_headline(r: Result, units: str) -> str:
     """The result in one line: the final T and P, every solved term (heat, work, the moving
     boundary's work, the amount) and S_gen, in the display units; round-off shown as 0."""
     p = r.problem
@@ -70,7 +70,7 @@ def headline(r: Result, units: str) -> str:
     return "; ".join(parts)
 
 
-def result_renderable(r: Result, units: str = "metric", with_headline: bool = True) -> Group:
+def closed_result_renderable(r: Result, units: str = "metric", with_headline: bool = True) -> Group:
     """The result's tables, equations, warnings and cautions; ``with_headline`` starts them with
     the result in one line (the app shows that line above its tabs instead)."""
     p = r.problem
@@ -81,7 +81,7 @@ def result_renderable(r: Result, units: str = "metric", with_headline: bool = Tr
         f"gauge pressures read with atmosphere = {show(p.p_atm, 'P', units)} {unit_label('P', units)}",
         style="dim",
     )
-    parts: list = [title, Text("Result: " + headline(r, units))] if with_headline else [title]
+    parts: list = [title, Text("Result: " + closed_headline(r, units))] if with_headline else [title]
     parts.append(meta)
     if p.species.overrides:
         parts.append(Text("overrides: " + ", ".join(f"{k} = {v}" for k, v in p.species.overrides), style="yellow"))
@@ -143,7 +143,7 @@ def result_renderable(r: Result, units: str = "metric", with_headline: bool = Tr
     return Group(*parts)
 
 
-def dof_renderable(p: Problem, dof: Dof) -> Group:
+def closed_dof_renderable(p: Problem, dof: Dof) -> Group:
     t = Table(box=box.SIMPLE_HEAD, title="Degrees of freedom", title_justify="left")
     t.add_column("unknowns")
     t.add_column("equations")
@@ -158,6 +158,39 @@ def dof_renderable(p: Problem, dof: Dof) -> Group:
         t,
         Text(dof.message, style=style),
     )
+
+
+# -- by kind of balance: the one place a face chooses its rendering ------------------------
+#: Each kind's (result, headline, degrees of freedom) renderings, by ``[system] kind``
+#: (:data:`balance.kinds.KINDS`): named, so a kind's module loads on its first use.
+FACES = {
+    "closed": ("tui.render:closed_result_renderable", "tui.render:closed_headline", "tui.render:closed_dof_renderable"),
+    "steady-flow": ("tui.render_flow:flow_result_renderable", "tui.render_flow:flow_headline",
+                    "tui.render_flow:flow_dof_renderable"),
+}
+
+
+def _face(problem, which: int):
+    from importlib import import_module
+
+    module, name = FACES[problem.worksheet.system.kind][which].split(":")
+    return getattr(import_module(module), name)
+
+
+def result_renderable(r, units: str = "metric", with_headline: bool = True) -> Group:
+    """The result's tables, equations, warnings and cautions, as its kind of balance shows them;
+    ``with_headline`` starts them with the result in one line."""
+    return _face(r.problem, 0)(r, units, with_headline)
+
+
+def headline(r, units: str) -> str:
+    """The result in one line, as its kind of balance says it."""
+    return _face(r.problem, 1)(r, units)
+
+
+def dof_renderable(p, dof: Dof) -> Group:
+    """What the problem lacks or that it is ready, as its kind of balance says it."""
+    return _face(p, 2)(p, dof)
 
 
 def species_table(entries: list[Species]) -> Table:
