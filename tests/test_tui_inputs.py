@@ -138,8 +138,9 @@ async def test_purpose_boundary_and_process_fields_reject_bad_text(tmp_path, aut
         await type_bad(pilot, in_row("boundary-T"), "warm", "boundary temperature", "a temperature")
         # the boundary temperature of step 2 is written to the heat terms, as typed
         assert app.session.worksheet.heat[0].T_boundary == "warm"
-        for _ in range(4):
+        for step in ("fluid", "states", "terms", "constraints"):  # each step shown before the next key
             await pilot.press("ctrl+n")
+            await wait_until(pilot, lambda: app.session.step == step and app.screen.is_current, what=step)
             await settle(pilot)
         assert app.session.step == "constraints"
         await type_bad(pilot, in_row("n"), "1.3 K", "polytropic n", "a pure number")
