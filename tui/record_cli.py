@@ -237,14 +237,18 @@ def cmd_worksheet(args) -> int:
     if rec.broken:  # said in the TOML too, where the worksheet is kept
         print(f"# joulebook: the record's chain is BROKEN at entry {rec.broken[0]}: this worksheet is folded "
               "from its entries as read, not as filed")
-    sys.stdout.write(ws.to_toml())
+    import tomli_w
+
+    from balance.record.replay import sections_of
+
+    sys.stdout.write(tomli_w.dumps(sections_of(ws), multiline_strings=True))  # Worksheet.to_toml, of its kind's sections
     return EXIT_FAILED if _broken(rec, args.record, "the worksheet printed is not the record's as filed") else EXIT_OK
 
 
 @_pipe_safe
 def cmd_update(args) -> int:
     from balance.record.format import LIST_SECTIONS, SECTION_KINDS
-    from balance.record.replay import fold
+    from balance.record.replay import fold, sections_of
     from balance.worksheet import Worksheet
 
     rec = _load(args.record)
@@ -253,7 +257,7 @@ def cmd_update(args) -> int:
 
         raise InputError(args.record, f"its chain is broken at entry {rec.broken[0]} ({rec.broken[1]}); "
                                       "a broken record cannot be extended: restore the filed copy")
-    new = Worksheet.load(args.worksheet).to_dict()
+    new = sections_of(Worksheet.load(args.worksheet))
     current = fold(rec.entries)
     changed = []
     for section in SECTION_KINDS:

@@ -19,6 +19,7 @@ from ..errors import BalanceError
 from ..worksheet import CONVENTIONS
 from .format import SOLVE
 from .review import revisions
+from . import solve_text_flow as flow
 from .text import energy_rows, entropy_rows, state_rows
 
 # A block: (kind, payload). Kinds: h1, h2, h3, p, kv, table, pre, list, olist.
@@ -36,7 +37,8 @@ def blocks(record, verification) -> list[Block]:
         ws_error = ""
     except BalanceError as exc:
         ws, head, ws_error = None, None, str(exc)
-    title = (head.title if head and head.title else "Closed-system energy balance")
+    title = (head.title if head and head.title else
+             TITLES.get(ws.system.kind if ws is not None else "closed", TITLES["closed"]))
     out: list[Block] = [("h1", title)]
     broken = _broken(verification)
     if broken:
@@ -81,27 +83,7 @@ def blocks(record, verification) -> list[Block]:
     else:
         d = solve.data
         later = [e.seq for e in entries if e.section and e.seq > solve.seq]
-        out.append(("p", f"From the solve in entry {solve.seq} (revision {revs[solve.seq - 1]}), "
-                         f"with joulebook {d.get('joulebook', '?')}: {d.get('species', '?')}, {d.get('model', '?')}. "
-                         f"Reference state: {d.get('reference_state', '?')}."))
-        if later:
-            out.append(("p", "The inputs changed after this solve (entry " + ", ".join(map(str, later))
-                             + "): these results are not those of the current inputs."))
-        out.append(("h3", "States"))
-        headers, rows = state_rows(d["states"])
-        out.append(("table", headers, rows, "ll" + "r" * (len(headers) - 2)))
-        out.append(("h3", "Energy balance"))
-        headers, rows = energy_rows(d)
-        out.append(("table", headers, rows, "llrl"))
-        out.append(("h3", "Entropy balance"))
-        headers, rows = entropy_rows(d)
-        out.append(("table", headers, rows, "lr"))
-        out.append(("h3", "Equations with numbers"))
-        out.append(("pre", [str(x) for x in _as_list(d.get("equations"))]))
-        out.append(("h3", "Warnings"))
-        out.append(("list", [str(x) for x in _as_list(d.get("warnings"))] or ["none"]))
-        out.append(("h3", "Cautions"))
-        out.append(("list", [str(x) for x in _as_list(d.get("cautions"))] or ["none"]))
+        out += _RESULTS[d.get("kind", "closed")](d, solve.seq, revs[solve.seq - 1], later)
 
     out.append(("h2", "Sign-off"))
     if verification.signoffs:
@@ -115,6 +97,67 @@ def blocks(record, verification) -> list[Block]:
                      f"Check the record itself with: joulebook record verify {record.path.name} "
                      "--allowed-signers FILE"))
     return out
+
+
+def _changed_after(later: list[int]) -> list[Block]:
+    if not later:
+        return []
+    return [("p", "The inputs changed after this solve (entry " + ", ".join(map(str, later))
+                  + "): these results are not those of the current inputs.")]
+
+
+def _closed_results(d: dict, seq: int, rev: int, later: list[int]) -> list[Block]:
+    """A closed system's results: states, energy and entropy balances, equations, warnings, cautions."""
+    out: list[Block] = [("p", f"From the solve in entry {seq} (revision {rev}), "
+                              f"with joulebook {d.get('joulebook', '?')}: {d.get('species', '?')}, {d.get('model', '?')}. "
+                              f"Reference state: {d.get('reference_state', '?')}.")]
+    out += _changed_after(later)
+    out.append(("h3", "States"))
+    headers, rows = state_rows(d["states"])
+    out.append(("table", headers, rows, "ll" + "r" * (len(headers) - 2)))
+    out.append(("h3", "Energy balance"))
+    headers, rows = energy_rows(d)
+    out.append(("table", headers, rows, "llrl"))
+    out.append(("h3", "Entropy balance"))
+    headers, rows = entropy_rows(d)
+    out.append(("table", headers, rows, "lr"))
+    return out + _words(d)
+
+
+def _flow_results(d: dict, seq: int, rev: int, later: list[int]) -> list[Block]:
+    """A steady-flow network's results: the streams (states and rates), the devices (Q̇, Ẇ, η,
+    Ṡ_gen, exergy destroyed), each device's recomputed balances, equations, warnings, cautions."""
+    fluids = "; ".join(flow.fluids(d["streams"])) or "no streams"
+    out: list[Block] = [("p", f"From the solve in entry {seq} (revision {rev}), "
+                              f"with joulebook {d.get('joulebook', '?')}: {fluids}. {flow.UNITS}")]
+    if d.get("basis"):
+        out.append(("p", f"Basis: {d['basis']}"))
+    out += _changed_after(later)
+    out.append(("h3", "Streams"))
+    out.append(("table", *flow.stream_rows(d)))
+    out.append(("h3", "Stream rates"))
+    out.append(("table", *flow.rate_rows(d)))
+    given = flow.rates_given(d)
+    if given:
+        out.append(("list", given))
+    out.append(("h3", "Devices"))
+    out.append(("table", *flow.device_rows(d)))
+    out.append(("p", flow.totals(d)))
+    out.append(("h3", "Each device's balances, recomputed from its flows"))
+    out.append(("table", *flow.check_rows(d)))
+    return out + _words(d)
+
+
+def _words(d: dict) -> list[Block]:
+    return [("h3", "Equations with numbers"), ("pre", [str(x) for x in _as_list(d.get("equations"))]),
+            ("h3", "Warnings"), ("list", [str(x) for x in _as_list(d.get("warnings"))] or ["none"]),
+            ("h3", "Cautions"), ("list", [str(x) for x in _as_list(d.get("cautions"))] or ["none"])]
+
+
+#: A solve's results as blocks, by the kind of balance its data name (the reader refuses another).
+_RESULTS = {"closed": _closed_results, "steady-flow": _flow_results}
+#: A report's title where the worksheet has none, by its kind of balance.
+TITLES = {"closed": "Closed-system energy balance", "steady-flow": "Steady-flow energy balance"}
 
 
 def _broken(v) -> str:

@@ -18,7 +18,7 @@ from .format import (COMMENT, CONTENT_KINDS, FORMAT, GENESIS, LIST_SECTIONS, MAG
                      SECTION_KINDS, SIGN_OFF, SOLVE, TAG_SEAL, Entry, clean_author, entry_lines,
                      format_time, parse, prune, seal)
 from .layout import MAX_TEXT, value_problem
-from .replay import DEFAULT_TOLERANCE, ReplayReport, fold, replay_entries, solve_data, worksheet_of
+from .replay import DEFAULT_TOLERANCE, ReplayReport, fold, replay_entries, sections_of, solve_data, worksheet_of
 from .review import (comment_problem, current_revision, open_comments, resolution_problem, roles_of,
                      signoff_problem)
 from .signing import NAMESPACE, ROLES, check_allowed_signers, message
@@ -177,7 +177,7 @@ class Record:
         data = {"format": FORMAT, **api.pins(), "models": list(MODEL_NAMES), "roles": list(roles)}
         rec._stage(OPENING, data, None)
         if worksheet is not None:
-            sheet = worksheet.to_dict()
+            sheet = sections_of(worksheet)
             for section in STEP_ORDER:
                 if section in sheet:
                     rec._stage(SECTION_KINDS[section], {section: sheet[section]}, None)

@@ -150,6 +150,10 @@ class RecordDiff:
         return out
 
 
+#: Sections whose items the diff names by their name (``device 'K-1'.eta``), not their place.
+BY_NAME = ("stream", "device")
+
+
 def _flatten(prefix: str, value, out: dict, depth: int = 1) -> None:
     if isinstance(value, dict):
         check_depth(depth)
@@ -159,6 +163,11 @@ def _flatten(prefix: str, value, out: dict, depth: int = 1) -> None:
             out[prefix] = {}
     elif isinstance(value, list) and (value and all(isinstance(v, dict) for v in value)):
         check_depth(depth)
+        names = [v.get("name") for v in value]
+        if prefix in BY_NAME and all(isinstance(n, str) and n for n in names) and len(set(names)) == len(names):
+            for n, v in zip(names, value):  # a stream or device is named: an insertion moves none of the others
+                _flatten(f"{prefix} '{n}'", {k: x for k, x in v.items() if k != "name"}, out, depth + 1)
+            return
         for i, v in enumerate(value):
             _flatten(f"{prefix}[{i + 1}]", v, out, depth + 1)
     else:

@@ -9,7 +9,15 @@ head it covers and a signature or ``unsigned = true``), naming the line.
 
 from __future__ import annotations
 
+from ..worksheet import shown
 from .layout import COMMENT, KIND_SECTIONS, LIST_SECTIONS, NOTE, OPENING, RESOLUTION, SIGN_OFF, SOLVE
+
+#: What a solved entry's data must hold, by the kind of balance they name (``kind``; a closed
+#: system's data name none).
+SOLVED = {
+    "closed": {"states": dict, "terms": list},
+    "steady-flow": {"streams": dict, "devices": dict},
+}
 
 #: Required keys and their types in the data of each kind that is not a step or a solve.
 _KEYS = {
@@ -38,8 +46,13 @@ def shape_problem(kind: str, data: dict) -> str | None:
         if "error" in data:
             if not isinstance(data["error"], str) or not isinstance(data.get("error_kind"), str):
                 return "a failed solve needs 'error' and 'error_kind' as text"
-        elif not isinstance(data.get("states"), dict) or not isinstance(data.get("terms"), list):
-            return "a solve needs 'states' and 'terms', or 'error'"
+            return None
+        kind = data.get("kind", "closed")
+        if not isinstance(kind, str) or kind not in SOLVED:
+            return f"a solve of an unknown kind of balance {shown(str(kind))}; expected one of {', '.join(SOLVED)}"
+        keys = SOLVED[kind]
+        if not all(isinstance(data.get(k), t) for k, t in keys.items()):
+            return f"a solve needs {' and '.join(repr(k) for k in keys)}, or 'error'"
         return None
     for key, typ in _KEYS[kind].items():
         value = data.get(key)

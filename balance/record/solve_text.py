@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from ..worksheet import CONVENTIONS
 from .plain import g, table, wrap
+from .solve_text_flow import solve_text as flow_text
 
 
 #: The units of a solve's text in the record, whatever units the app or the command line showed.
@@ -61,7 +62,9 @@ def _zero(x, ro, unit: str = "J") -> bool:
 
 
 def solve_text(data: dict, inputs_seq: int | None = None) -> str:
-    """The result of a solve entry: states, energy and entropy balances, equations,
+    """The result of a solve entry, laid out by the kind of balance its data says (``kind``;
+    a closed system's data have none): a closed system's states, energy and entropy balances,
+    a steady-flow network's streams and devices (:mod:`.solve_text_flow`), then equations,
     warnings and cautions; or the error of a failed solve."""
     basis = f" (inputs as of entry {inputs_seq})" if inputs_seq else ""
     pins = ""
@@ -74,6 +77,11 @@ def solve_text(data: dict, inputs_seq: int | None = None) -> str:
         if pins:
             out.append(pins.replace("Solved with", "Attempted with"))
         return "\n".join(out)
+    return _TEXTS[data.get("kind", "closed")](data, basis, pins)  # the reader refuses another kind
+
+
+def _closed_text(data: dict, basis: str, pins: str) -> str:
+    """The result of a closed-system solve entry."""
     out = [f"Solved{basis}: {data.get('title') or 'closed-system balance'}"]
     if pins:
         out.append(pins)
@@ -106,6 +114,10 @@ def solve_text(data: dict, inputs_seq: int | None = None) -> str:
     for c in _list(data, "cautions") or ["none"]:
         out += wrap(str(c))
     return "\n".join(out)
+
+
+#: The text of a solved result, by the kind of balance its data name.
+_TEXTS = {"closed": _closed_text, "steady-flow": flow_text}
 
 
 _STATE_ROWS = (

@@ -16,8 +16,11 @@ SECTION_TITLES = {
     "heat": "Heat terms (heat to the system is positive)",
     "work": "Work terms (in the worksheet's sign convention)",
     "process": "Constraints and process",
+    "stream": "Streams",
+    "device": "Devices (each joins its inlet streams to its outlet streams)",
 }
-ITEM_NOUNS = {"initial": "compartment", "heat": "heat term", "work": "work term"}
+ITEM_NOUNS = {"initial": "compartment", "heat": "heat term", "work": "work term", "stream": "stream",
+              "device": "device"}
 
 
 def _value(key: str, v) -> list[str]:
