@@ -171,6 +171,16 @@ class Network:
             v = n * self.points[name].v / spec.area
         return Flow(name, spec.model, self.points[name], n, v, spec.z)
 
+    def inlet(self, name: str) -> Flow | None:
+        """The stream as an inlet: its Flow, or where its rate is not known yet, its state and speed
+        per mole/s (None while its speed waits for the rate, through a given flow area)."""
+        if name in self.rates:
+            return self.flow(name)
+        spec = self.streams[name]
+        if spec.area is not None:
+            return None
+        return Flow(name, spec.model, self.points[name], 1.0, self.speeds.get(name, spec.velocity), spec.z)
+
     def note(self, words: str) -> None:
         """Say something of the solution once, however often the rules pass."""
         if words not in self.notes:
@@ -279,7 +289,13 @@ def _rates(net: Network, d: DeviceSpec) -> bool:
         unknown = [s for s in (*d.inlets, *d.outlets) if s not in r]
         if len(unknown) == 1:
             s, out = unknown[0], d.outlets[0]
-            r[s] = sum(r[x] for x in d.inlets) if s == out else r[out] - sum(r[x] for x in d.inlets if x != s)
+            r[s] = _positive(d, s, sum(r[x] for x in d.inlets) if s == out else
+                             r[out] - sum(r[x] for x in d.inlets if x != s))
+            progress = True
+    if d.kind == "splitter" and d.fractions and d.inlets[0] not in r:
+        known = next(((name, f) for name, f in zip(d.outlets, d.fractions) if name in r and f > 0), None)
+        if known is not None:  # a branch's rate and its share give the inlet's
+            r[d.inlets[0]] = r[known[0]] / known[1]
             progress = True
     if d.kind == "splitter" and d.inlets[0] in r and d.fractions:
         for name, f in zip(d.outlets, d.fractions):
@@ -294,9 +310,18 @@ def _rates(net: Network, d: DeviceSpec) -> bool:
             if s == d.inlets[0]:
                 r[s] = sum(r[x] for x in d.outlets)
             else:
-                r[s] = r[d.inlets[0]] - sum(r[x] for x in d.outlets if x != s)
+                r[s] = _positive(d, s, r[d.inlets[0]] - sum(r[x] for x in d.outlets if x != s))
             progress = True
     return progress
+
+
+def _positive(d: DeviceSpec, stream: str, n_dot: float) -> float:
+    """A rate the mass balance gives [mol/s], refused unless it is positive (a branch asked for all the
+    inlet brings, or more, has none left)."""
+    if not n_dot > 0:
+        raise SolveError(f"{d.where}: its mass balance leaves stream '{stream}' a rate of {n_dot:.6g} mol/s: "
+                         "the rates given take all that comes in, or more; check them")
+    return n_dot
 
 
 # -- the rules: what each kind works out --------------------------------------------------
@@ -312,8 +337,9 @@ def _valve(net: Network, d: DeviceSpec) -> bool:
     spec = net.streams[b]
     if spec.area is not None and b not in net.rates:
         return False
-    inlet = net.flow(a) if a in net.rates else Flow(a, net.streams[a].model, net.points[a], 1.0,
-                                                     net.streams[a].velocity, net.streams[a].z)
+    inlet = net.inlet(a)
+    if inlet is None:
+        return False
     point = _with_speed(net, b, lambda V: dv.throttle(inlet, P, b, V, spec.z, d.where).point)
     net.set_point(b, point)
     return True
@@ -412,10 +438,9 @@ def _nozzle(net: Network, d: DeviceSpec) -> bool:
     if spec.velocity or spec.area is not None:
         raise SpecificationError(f"{d.kind} {d.name}: the outlet speed of '{b}' follows from its energy balance; "
                                  "leave out its velocity and area")
-    if net.streams[a].area is not None and a not in net.rates:
-        return False  # the inlet's speed needs its rate
-    inlet = net.flow(a) if a in net.rates else Flow(a, net.streams[a].model, net.points[a], 1.0,
-                                                     net.streams[a].velocity, net.streams[a].z)
+    inlet = net.inlet(a)
+    if inlet is None:
+        return False
     out = dv.nozzle(inlet, P, b, eta=net.eta[d.name], field=d.where)
     net.set_point(b, out.point)
     net.speeds[b] = out.velocity
@@ -473,13 +498,21 @@ def _e(net: Network, name: str) -> float:
 
 
 def _splitter(net: Network, d: DeviceSpec) -> bool:
+    """Every outlet in the inlet's state and, unless it is given its own speed or area, at the inlet's speed
+    (so the energy per mole is the inlet's)."""
     a = d.inlets[0]
     if not net.known(a):
         return False
+    inlet = net.inlet(a)
+    if inlet is None:
+        return False
+    speed = inlet.velocity
     progress = False
     for b in d.outlets:
         if not net.known(b):
             net.set_point(b, net.points[a])
+            if not net.streams[b].velocity and net.streams[b].area is None:
+                net.speeds[b] = speed
             progress = True
     return progress
 
@@ -553,7 +586,13 @@ def _wants_one_in_one_out(net: Network, d: DeviceSpec) -> str:
             return "give a rate of its stream"
         return ""
     options = []
-    if net.P_of(b, d, a) is None:
+    heated = d.kind in ("heater", "cooler")
+    if heated and net.Q[d.name] is not None and a not in net.rates:
+        return "give a rate of its stream (the heat Q is given as a rate: the outlet follows once the rate is known)"
+    if d.kind in ("compressor", "pump", "turbine", "expander") and net.W[d.name] is not None \
+            and net.eta[d.name] is None and a not in net.rates:
+        return "give a rate of its stream (the power W is given: the outlet follows once the rate is known)"
+    if net.P_of(b, d, a) is None and not (heated and not d.dP):  # a heater without a drop keeps its inlet's P
         options.append(f"the outlet pressure (P of '{b}')" + (", or its pressure drop" if d.kind in ("heater", "cooler") else ""))
         return "give " + " ".join(options)
     if d.kind == "valve":
@@ -585,6 +624,8 @@ def _wants_mixer(net: Network, d: DeviceSpec) -> str:
 def _wants_splitter(net: Network, d: DeviceSpec) -> str:
     if all(s in net.rates for s in (*d.inlets, *d.outlets)):
         return ""
+    if d.fractions:
+        return "give the rate of its inlet or of one of its outlets"
     return "give its fractions, or the rates of all outlets but one"
 
 
