@@ -117,15 +117,21 @@ def rate_rows(data: dict) -> tuple[list[str], list[list[str]], str]:
     actual volume and speed (see :func:`rates_given` for how a given rate was read)."""
     rows = []
     for name, st in _table(data, "streams").items():
+        speed = _q(st, "velocity")
         rows.append([name, _scaled(_q(st, "m_dot"), 1.0), _scaled(_q(st, "n_dot"), 1.0),
-                     _scaled(_q(st, "V_dot"), 1.0), _scaled(_q(st, "velocity"), 1.0)])
+                     _scaled(_q(st, "V_dot"), 1.0), "—" if not speed else g(speed)])
     return ["stream", "ṁ kg/s", "ṅ mol/s", "V̇ m³/s", "speed m/s"], rows, "lrrrr"
 
 
 def rates_given(data: dict) -> list[str]:
-    """How each rate the worksheet gives was read (its standard conditions, for a standard volume)."""
-    return [f"stream '{name}': rate read as {st['rate_read_as']}"
-            for name, st in _table(data, "streams").items() if st.get("rate_read_as")]
+    """How each rate the worksheet gives was read (its standard conditions, for a standard volume),
+    and what a speed not given means."""
+    streams = _table(data, "streams")
+    out = [f"stream '{name}': rate read as {st['rate_read_as']}" for name, st in streams.items()
+           if st.get("rate_read_as")]
+    if any(not _q(st, "velocity") for st in streams.values()):
+        out.append("speed —: none given or found (no speed or flow area): the stream's kinetic energy is taken as zero")
+    return out
 
 
 def device_rows(data: dict) -> tuple[list[str], list[list[str]], str]:
@@ -161,7 +167,7 @@ def check_rows(data: dict) -> tuple[list[str], list[list[str]], str]:
         rows.append([name, "—" if mass is None else f"{mass:.1e}", "—" if energy is None else f"{energy:.1e}",
                      "yes" if closes else "NO",
                      _sign(S, carried), "; ".join(note)])
-    return ["device", "mass", "energy", "closes", "Ṡ_gen", ""], rows, "lrrlll"
+    return ["device", "mass", "energy", "closes", "Ṡ_gen", "note"], rows, "lrrlll"
 
 
 def _sign(S: float | None, carried: float) -> str:
@@ -183,10 +189,9 @@ def totals(data: dict) -> str:
         missing = [n for n, d in _table(data, "devices").items() if _q(d, "S_gen_dot") is None]
         return ("Ṡ_gen of the network: not evaluated, since heat crosses the boundary of " + ", ".join(missing)
                 + " at no stated temperature (give its T_boundary); each other device's exergy destroyed is "
-                f"T0·Ṡ_gen, {T0_words}")
+                f"T0·Ṡ_gen, with {T0_words} for the surroundings")
     ex = "—" if T0 is None else g(T0 * S / 1e3)
-    return (f"Ṡ_gen of the network: {g(S / 1e3)} kW/K; exergy destroyed T0·Ṡ_gen = {ex} kW, {T0_words} "
-            "(the surroundings exergy is reckoned against)")
+    return f"Ṡ_gen of the network: {g(S / 1e3)} kW/K; exergy destroyed T0·Ṡ_gen = {ex} kW, with {T0_words} for the surroundings"
 
 
 def solve_text(data: dict, basis: str, pins: str) -> str:
