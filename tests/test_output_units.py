@@ -195,12 +195,10 @@ def test_solve_on_the_command_line_in_the_units_typed(tmp_path):
 
 
 async def test_f2_reaches_the_units_as_typed(tmp_path, author):  # noqa: F811
-    path = tmp_path / "typed.toml"
-    path.write_text(TYPED)
-    from tui.session import open_target
     from tui.app import JoulebookApp
+    from tui.session import Session
 
-    app = JoulebookApp(open_target(str(path), must_exist=False))
+    app = JoulebookApp(Session.from_worksheet(sheet(TYPED), tmp_path / "typed.jbk"))
     app.session.step = "results"
     async with app.run_test(size=SIZE) as pilot:
         await ready(pilot)
