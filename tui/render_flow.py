@@ -38,16 +38,17 @@ class _Basis:
     def per_kg(self) -> bool:
         return self.stream is not None
 
-    def energy(self, W: float | None) -> tuple[str, str]:
+    def energy(self, W: float | None, digits: int = 5) -> tuple[str, str]:
         """A heat or power [W] as (text, unit): per second, or per kg of the basis stream."""
         if self.per_kg:
-            return show(None if W is None else W / self.m_dot, "h", self.units), unit_label("h", self.units)
-        return show(W, "Edot", self.units), unit_label("Edot", self.units)
+            return show(None if W is None else W / self.m_dot, "h", self.units, digits), unit_label("h", self.units)
+        return show(W, "Edot", self.units, digits), unit_label("Edot", self.units)
 
-    def entropy(self, S: float | None) -> tuple[str, str]:
+    def entropy(self, S: float | None, digits: int = 5) -> tuple[str, str]:
+        """An entropy rate [W/K] as (text, unit): per second, or per kg of the basis stream."""
         if self.per_kg:
-            return show(None if S is None else S / self.m_dot, "s", self.units), unit_label("s", self.units)
-        return show(S, "Sdot", self.units), unit_label("Sdot", self.units)
+            return show(None if S is None else S / self.m_dot, "s", self.units, digits), unit_label("s", self.units)
+        return show(S, "Sdot", self.units, digits), unit_label("Sdot", self.units)
 
     def energy_label(self) -> str:
         return unit_label("h", self.units) if self.per_kg else unit_label("Edot", self.units)
@@ -78,11 +79,23 @@ def _fluids(result) -> list[str]:
     return lines
 
 
-def streams_table(result, units: str) -> Table:
+#: Streams per table: five columns of numbers fit 80 columns; more go to a further table.
+STREAMS_PER_TABLE = 5
+
+
+def streams_tables(result, units: str) -> list[Table]:
+    """The streams, five to a table (so that each fits 80 columns)."""
+    names = list(result.flows)
+    chunks = [names[i:i + STREAMS_PER_TABLE] for i in range(0, len(names), STREAMS_PER_TABLE)]
+    return [streams_table(result, units, chunk, f"Streams ({k + 1} of {len(chunks)})" if len(chunks) > 1
+                          else "Streams") for k, chunk in enumerate(chunks)]
+
+
+def streams_table(result, units: str, names: list[str] | None = None, title: str = "Streams") -> Table:
     """Each stream a column: T, P, h, s, the quality or phase, the rates, the speed where known."""
     basis = _Basis(result, units)
-    flows = list(result.flows.values())
-    t = Table(title="Streams", box=box.SIMPLE_HEAD, title_justify="left")
+    flows = [result.flows[n] for n in (names or result.flows)]
+    t = Table(title=title, box=box.SIMPLE_HEAD, title_justify="left", pad_edge=False, padding=(0, 1, 0, 0))
     t.add_column("property")
     t.add_column("unit", style="dim")
     for f in flows:
@@ -130,14 +143,11 @@ def devices_table(result, units: str) -> Table:
     basis = _Basis(result, units)
     p = result.problem
     found = _found(result)
-    t = Table(title="Devices", box=box.SIMPLE_HEAD, title_justify="left",
-              caption=f"{FOUND} found by the balances; the rest given or fixed by the device. Ṡ_gen —: heat "
-                      "crosses at no stated temperature (give T_boundary)",
-              caption_justify="left")
-    for col, justify in (("device", "left"), ("kind", "left"), (f"Q̇ {basis.energy_label()}", "right"),
-                         (f"Ẇ {basis.energy_label()}", "right"), ("η", "right"),
-                         (f"Ṡ_gen {basis.entropy_label()}", "right"), (f"T0·Ṡ_gen {basis.energy_label()}", "right"),
-                         ("residual", "right")):
+    t = Table(title="Devices", box=box.SIMPLE_HEAD, title_justify="left", pad_edge=False, padding=(0, 1, 0, 0))
+    E, S = basis.energy_label(), basis.entropy_label()
+    for col, justify in (("device", "left"), ("kind", "left"), (f"Q̇\n{E}", "right"), (f"Ẇ\n{E}", "right"),
+                         ("η\n", "right"), (f"Ṡ_gen\n{S}", "right"), (f"T0·Ṡ_gen\n{E}", "right"),
+                         ("balance\nresidual", "right")):
         t.add_column(col, justify=justify)
 
     def mark(text: str, key: str, name: str) -> str:
@@ -220,11 +230,14 @@ def flow_result_renderable(result, units: str = "metric", with_headline: bool = 
     if basis.per_kg:
         meta.append(f"basis: no rate is given: every rate and power per kg of stream '{basis.stream}'")
     parts.append(Text("\n".join(meta), style="dim"))
-    parts.append(streams_table(result, units))
+    parts.extend(streams_tables(result, units))
     read_as = [f"{name}: rate read as {words}" for name, words in p.rate_words.items()]
     if read_as:
         parts.append(Text("\n".join(read_as), style="dim"))
     parts.append(devices_table(result, units))
+    parts.append(Text(f"{FOUND} found by the balances; the rest given or fixed by the device"
+                      + ("" if result.S_gen_dot is not None else
+                         "; Ṡ_gen —: heat crosses at no stated temperature (give T_boundary)"), style="dim"))
     iso = _isentropic_lines(result, units)
     if iso:
         parts.append(Text("\n".join(iso)))

@@ -1,0 +1,150 @@
+"""The command line on steady-flow worksheets: solve, solve --json, solve --units, check, bad input.
+
+Sources: "CoolProp 8.0 HEOS" computed in the test (the turbine's expansion by PSmass and
+HmassP flashes); the Btu as pint defines it (ISO 31-4: 1055.056 J; the IT Btu, 1055.05585262 J,
+differs by 1e-7); °F = °C × 1.8 + 32 and 1 lb = 0.45359237 kg exactly (NIST SP 811).
+"""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+
+import pytest
+
+from tests.helpers import ROOT, SAMPLES
+from tui.cli import main
+
+STEADY = ["gas-letdown-preheated.toml", "n2-two-stage-compressor.toml", "steam-backpressure-turbine.toml",
+          "feedwater-heater-steam-mix.toml", "r134a-chiller-evaporator-condenser.toml",
+          "steam-condensate-flash-drum.toml"]
+BTU = 1055.056  # J (pint's Btu, ISO 31-4)
+
+
+def run(capsys, *args) -> tuple[int, str, str]:
+    """The command's exit code, its output with lines joined (rich wraps at 80 columns) and stderr."""
+    code = main([*map(str, args)])
+    out = capsys.readouterr()
+    return code, " ".join(out.out.split()), " ".join(out.err.split())
+
+
+def as_json(capsys, name: str) -> dict:
+    code = main(["solve", "--json", str(SAMPLES / name)])
+    assert code == 0
+    return json.loads(capsys.readouterr().out)
+
+
+@pytest.mark.parametrize("name", STEADY)
+def test_each_steady_sample_solves_and_prints_its_tables(capsys, name):
+    code, out, err = run(capsys, "solve", SAMPLES / name)
+    assert code == 0, err
+    for part in ("Result: ", "Streams", "Devices", "Equations with numbers", "Cautions", "licensed engineer",
+                 "exergy destroyed at T0 = 25 °C"):
+        assert part in out, part
+    assert "Traceback" not in out + err
+
+
+@pytest.mark.parametrize("name", STEADY)
+def test_solve_json_gives_every_stream_and_device_with_pint_units(capsys, name):
+    from balance.units import Q_
+
+    data = as_json(capsys, name)
+    assert data["kind"] == "steady-flow"
+    assert data["streams"] and data["devices"]
+    for stream in data["streams"].values():
+        for key in ("T", "P", "h", "s", "m_dot", "n_dot", "V_dot"):
+            Q_(stream[key]["value"], stream[key]["unit"])  # a unit pint reads
+    for device in data["devices"].values():
+        assert abs(device["residual_mass"]) < 1e-9 and abs(device["residual_energy"]) < 1e-9
+
+
+def test_the_headline_gives_the_duty_and_the_header_temperature_as_the_json_does(capsys):
+    data = as_json(capsys, "gas-letdown-preheated.toml")
+    Q = data["devices"]["E-201"]["Q_dot"]["value"]
+    T = data["streams"]["header"]["T"]["value"]
+    code, out, _ = run(capsys, "solve", SAMPLES / "gas-letdown-preheated.toml")
+    head = out.split("Result: ", 1)[1]
+    assert head.startswith(f"E-201 Q̇ = {Q / 1e3:.5g} kW; header: T = {T - 273.15:.5g} °C")
+
+
+def test_us_units_show_powers_in_btu_per_hour_and_rates_in_pounds_per_hour(capsys):
+    data = as_json(capsys, "gas-letdown-preheated.toml")
+    Q = data["devices"]["E-201"]["Q_dot"]["value"]
+    T = data["streams"]["header"]["T"]["value"]
+    m = data["streams"]["pipeline"]["m_dot"]["value"]
+    code, out, _ = run(capsys, "solve", "--units", "us", SAMPLES / "gas-letdown-preheated.toml")
+    assert code == 0
+    flat = out
+    assert f"E-201 Q̇ = {Q * 3600 / BTU:.5g} Btu/h" in flat
+    assert f"T = {(T - 273.15) * 1.8 + 32:.5g} °F" in flat
+    assert "lb/h" in out and "psia" in out
+    assert f"{m * 3600 / 0.45359237:.6g}" in out  # the mass rate row, lb/h
+
+
+def test_typed_units_follow_the_rate_as_the_worksheet_gives_it(capsys):
+    code, out, _ = run(capsys, "solve", "--units", "typed", SAMPLES / "steam-condensate-flash-drum.toml")
+    assert code == 0
+    assert "t/h" in out
+
+
+def test_a_worksheet_without_a_rate_is_shown_per_kg_of_its_feed(capsys, tmp_path):
+    CP = pytest.importorskip("CoolProp.CoolProp")
+    text = (SAMPLES / "steam-backpressure-turbine.toml").read_text()
+    path = tmp_path / "per-kg.toml"
+    path.write_text(text.replace('rate = "4 t/h"\n', ""))
+    code, out, err = run(capsys, "solve", path)
+    assert code == 0, err
+    flat = out
+    assert "per kg of 'HP steam'" in flat
+    # CoolProp 8.0 HEOS: w = h1 - h2, h2 = h1 - 0.70 (h1 - h2s), per kg
+    h1, s1 = (CP.PropsSI(k, "T", 533.15, "P", 20e5 + 101325, "Water") for k in ("Hmass", "Smass"))
+    h2s = CP.PropsSI("Hmass", "P", 2e5 + 101325, "Smass", s1, "Water")
+    assert f"ST-501 Ẇ = {0.70 * (h1 - h2s) / 1e3:.5g} kJ/kg" in flat
+
+
+def test_check_says_what_each_device_joins_and_that_it_is_ready(capsys):
+    code, out, err = run(capsys, "check", SAMPLES / "n2-two-stage-compressor.toml")
+    assert code == 0, err
+    assert "K-301A (compressor)" in out and "suction → stage-1" in out
+    assert "4 devices, 5 streams: ready to solve" in out
+
+
+def test_check_says_per_device_what_is_missing(capsys, tmp_path):
+    text = (SAMPLES / "gas-letdown-preheated.toml").read_text()
+    path = tmp_path / "no-header-pressure.toml"
+    path.write_text(text.replace('P = "7 barg"\n', ""))
+    code, out, err = run(capsys, "check", path)
+    assert code == 2
+    assert "valve PCV-201: give the outlet pressure (P of 'header')" in out
+    code, out, err = run(capsys, "solve", path)
+    assert code == 2 and "PCV-201" in err and "outlet pressure" in err
+
+
+BAD = [
+    # (what is changed, into what, words the message must hold)
+    ('inlets = ["heated"]', 'inlets = ["heatd"]', ("device 'PCV-201'", "'heatd'")),
+    ('kind = "valve"', 'kind = "vlave"', ("device 'PCV-201'.kind", "'vlave'", "valve, heater")),
+    ('rate = "2500 Nm3/h"', 'rate = "abc"', ("stream 'pipeline'.rate", "'abc'", "Nm3/h")),
+]
+
+
+@pytest.mark.parametrize("old,new,words", BAD, ids=["unknown stream", "kind misspelled", "rate not a rate"])
+@pytest.mark.parametrize("command", [("solve",), ("solve", "--json"), ("check",)], ids=" ".join)
+def test_bad_input_exits_2_naming_the_field(capsys, tmp_path, old, new, words, command):
+    text = (SAMPLES / "gas-letdown-preheated.toml").read_text()
+    assert old in text
+    path = tmp_path / "bad.toml"
+    path.write_text(text.replace(old, new))
+    code, out, err = run(capsys, *command, path)
+    assert code == 2
+    for w in words:
+        assert w in err, (w, err)
+    assert "Traceback" not in out + err
+
+
+def test_the_installed_command_runs_a_steady_sample_in_its_own_process():
+    out = subprocess.run([sys.executable, "-m", "tui.cli", "solve", str(SAMPLES / "feedwater-heater-steam-mix.toml")],
+                         capture_output=True, text=True, cwd=ROOT, timeout=300)
+    assert out.returncode == 0, out.stderr
+    assert "heating steam: ṁ = " in out.stdout
