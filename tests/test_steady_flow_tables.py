@@ -221,7 +221,7 @@ def test_a_worksheet_says_which_standard_its_rate_was_read_at():
 
 # -- refusals -----------------------------------------------------------------------------------
 def test_an_outlet_colder_than_isentropic_is_refused_naming_the_compressor():
-    """Nitrogen from 300 K, 1 bar to 6 bar: the isentropic end is near 500 K (CoolProp 8.0 HEOS, 500.3 K),
+    """Nitrogen from 300 K, 1 bar to 6 bar: the isentropic end is near 500 K (CoolProp 8.0 HEOS, 499.4 K),
     so an outlet at 480 K would need an efficiency above 1 and negative entropy generation."""
     text = sheet("N2/reference", stream("a", T="300 K", P="1 bar", rate="1 kg/s") + stream("b", T="480 K", P="6 bar"),
                  device("K-7", "compressor", ["a"], ["b"], W="?", eta="?"))
@@ -291,3 +291,13 @@ def test_a_state_given_twice_is_refused_as_over_specified():
                  device("V", "valve", ["a"], ["b"]), IDEAL)
     with pytest.raises(SpecificationError):
         solve(text)
+
+
+def test_a_compressor_given_its_efficiency_and_its_outlet_temperature_is_over_specified():
+    """Regression: the given efficiency was reported beside an outlet state that implies another one
+    (here 0.764 by the published definition, CoolProp 8.0 HEOS: nitrogen 300 K, 1 bar to 6 bar, 560 K)."""
+    text = sheet("N2/reference", stream("a", T="300 K", P="1 bar", rate="1 kg/s") + stream("b", T="560 K", P="6 bar"),
+                 device("K-3", "compressor", ["a"], ["b"], W="?", eta="0.8"))
+    with pytest.raises(SpecificationError) as err:
+        solve(text)
+    assert "stream 'b'" in str(err.value) and "given" in str(err.value)

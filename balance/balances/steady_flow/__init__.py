@@ -23,7 +23,7 @@ from .result import Result, result_of
 
 def solve(problem: Problem) -> Result:
     """Solve a prepared network; raises SpecificationError or SolveError."""
-    return result_of(problem, problem.network().solve())
+    return result_of(problem, problem.solution())
 
 
 def as_json(result: Result) -> dict:

@@ -398,13 +398,19 @@ def _machine(net: Network, d: DeviceSpec) -> bool:
         return False
     inlet = Flow(a, net.streams[a].model, net.points[a], net.rates.get(a, 1.0))
     progress = False
+    forward = None
+    given_eta = d.eta is not None
+    if given_eta and d.name not in net.checked:
+        # the efficiency given: the outlet follows; an outlet given as well must be that one (set_point says
+        # which value is given twice)
+        net.checked.add(d.name)
+        forward = dv.machine(inlet, P, b, compresses=compresses, eta=d.eta, polytropic=d.polytropic, field=d.where)
+        net.set_point(b, forward.out.point)
+        progress = True
     if not net.known(b):
         second = net.second(b)
         if second:
             point = net.streams[b].model.flash({"P": P, **second}, field=f"stream '{b}'")
-        elif net.eta[d.name] is not None:
-            point = dv.machine(inlet, P, b, compresses=compresses, eta=net.eta[d.name], polytropic=d.polytropic,
-                               field=d.where).out.point
         elif net.W[d.name] is not None and a in net.rates:
             e = net.flow(a).e + net.W[d.name] / net.rates[a]
             spec = net.streams[b]
@@ -414,12 +420,11 @@ def _machine(net: Network, d: DeviceSpec) -> bool:
             return False
         net.set_point(b, point)
         progress = True
-    m = dv.machine(inlet, P, b, compresses=compresses, point=net.points[b], field=d.where)
     if d.name not in net.isentropic:
-        net.isentropic[d.name] = m.isentropic
-        progress = True
-    if net.eta[d.name] is None:
-        net.eta[d.name] = m.eta_isentropic
+        if forward is None:  # the outlet from its state or the power: the efficiency it implies
+            forward = dv.machine(inlet, P, b, compresses=compresses, point=net.points[b], field=d.where)
+            net.eta[d.name] = forward.eta_isentropic
+        net.isentropic[d.name] = forward.isentropic
         progress = True
     if net.W[d.name] is None and a in net.rates and b in net.rates:  # the energy carried: h, speed, height
         net.W[d.name] = net.rates[a] * (net.flow(b).e - net.flow(a).e)

@@ -19,7 +19,7 @@ from ...state import make_fluid, read_specs
 from ...units import P_ATM, parse, read_rate
 from ...worksheet import UNKNOWN, FieldProblem, Worksheet, place
 from ..control_volume import Dof, Unknown, read_atmosphere
-from .network import DeviceSpec, Network, StreamSpec
+from .network import DeviceSpec, Network, Solved, StreamSpec
 
 #: Devices that take heat (the others are adiabatic).
 HEATED = ("heater", "cooler")
@@ -42,16 +42,23 @@ class Problem:
     """for each stream with a rate: what was read ('mass rate', 'standard volume: ...')"""
     T0: float = T0_DEFAULT
     """the dead-state temperature exergy destroyed is counted at [K]"""
+    solved: Solved | None = field(default=None, repr=False, compare=False)
+    """the network as the count solved it (the same walk), which :meth:`solution` hands on"""
 
     def network(self) -> Network:
         return Network(self.streams, self.devices)
+
+    def solution(self) -> Solved:
+        """The solved network: the one the count found, else solved now; raises SpecificationError or
+        SolveError."""
+        return self.solved if self.solved is not None else self.network().solve()
 
     @cached_property
     def dof(self) -> Dof:
         """What the network lacks, in words: the propagation tried once (it is cheap, and the
         count and the solution are the same walk)."""
         try:
-            self.network().solve()
+            self.solved = self.network().solve()
         except SpecificationError as exc:
             return Dof((Unknown("state", "of the network"),), (), (), str(exc))
         except BalanceError:  # complete; the solve itself says what fails
