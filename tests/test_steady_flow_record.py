@@ -109,6 +109,8 @@ def test_each_section_of_the_kind_is_a_step_and_the_worksheet_comes_back_equal(l
 
 
 def test_the_record_verifies_intact_and_its_solve_reproduces(letdown):
+    raw = letdown.path.read_bytes()
+    assert parse(raw, "calc.jbk").entries == parse(raw, "calc.jbk", line_by_line=True).entries  # both readers
     v = Record.load(letdown.path).verify()
     assert v.chain_ok and not v.problems and v.lines()[-1] == "verdict: intact"
     report = letdown.replay()

@@ -26,13 +26,18 @@ preceded by one empty line::
 - ``entry N: KIND`` — the sequence number (1, 2, 3 … with no gaps) and the
   kind of step: ``opening``, ``purpose and basis``, ``system boundary``,
   ``fluid and model``, ``initial state``, ``final state``, ``heat terms``,
-  ``work terms``, ``constraints``, ``solve``, ``comment``, ``resolution``,
-  ``sign-off``, ``revision note``.
+  ``work terms``, ``constraints`` (a closed system), ``streams``, ``devices``
+  (a steady-flow network), ``solve``, ``comment``, ``resolution``,
+  ``sign-off``, ``revision note``. A record holds the sections its kind of
+  balance reads (``balance.kinds``).
 - ``at`` — when, in UTC to the second; ``by`` — the author.
 - ``| `` lines — the human-readable rendering (what changed, values with
   units as typed; for a solve: states, the energy balance term by term, the
   entropy balance, the ΔU split, equations with numbers, warnings and
-  cautions). A line of just ``|`` is an empty line.
+  cautions; for a steady-flow solve: the streams, the devices' heat, work,
+  efficiency, entropy generation and exergy destroyed, each device's
+  recomputed balances, equations, warnings and cautions). A line of just
+  ``|`` is an empty line.
 - ``: `` lines — the machine-readable part, a TOML fragment. A step entry
   holds the worksheet section exactly as in a worksheet file (``[final]``,
   ``[[heat]]`` …); a solve holds ``Result.as_json()`` (values that are None

@@ -160,7 +160,7 @@ class Record:
                clock: Clock | None = None, roles=None, solver: Callable[[dict], dict] | None = None,
                wait: float = store.WAIT) -> "Record":
         """A new record file: the opening entry, then (given a worksheet) one step entry per
-        section and a solve entry. Written in one atomic step; refuses an existing file.
+        section its kind of balance reads (:func:`.replay.sections_of`) and a solve entry. Written in one atomic step; refuses an existing file.
 
         ``roles`` overrides the sign-off roles and their order (pinned in the opening).
         ``solver`` works out the solve entry's data from the sections: :func:`solve_data`

@@ -1,5 +1,9 @@
 """The text of a solve entry: states, the energy and entropy balances, equations, warnings, cautions.
 
+A solve's data name their kind of balance (``kind``; a closed system's name none):
+:func:`solve_text` lays out a closed system's result here and a steady-flow
+network's in :mod:`.solve_text_flow`; the error of a failed solve is the same for both.
+
 Units: the rendering takes the molar SI values of ``Result.as_json()``
 (K, Pa, m**3/mol, J/mol, J/(mol*K), J, J/K) and shows them as engineers read
 them: T in K and °C, P in bar(a), intensive properties per kg (kJ/kg,
