@@ -148,3 +148,14 @@ def test_the_installed_command_runs_a_steady_sample_in_its_own_process():
                          capture_output=True, text=True, cwd=ROOT, timeout=300)
     assert out.returncode == 0, out.stderr
     assert "heating steam: ṁ = " in out.stdout
+
+
+def test_the_readme_excerpt_is_what_solve_prints(capsys):
+    """README, "Steady-flow worksheets": its excerpt of the turbine's output is the output."""
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    excerpt = readme.split("## Steady-flow worksheets", 1)[1].split("```text", 1)[1].split("```", 1)[0]
+    code, out, _ = run(capsys, "solve", SAMPLES / "steam-backpressure-turbine.toml")
+    assert code == 0
+    for line in excerpt.strip().splitlines():
+        if not set(line.strip()) <= {"─"}:  # the rules are as wide as the table
+            assert " ".join(line.split()) in out, line

@@ -210,7 +210,7 @@ def build_parser():
 
     parser = argparse.ArgumentParser(
         prog="joulebook",
-        description="Checked energy-balance calculations for closed systems.",
+        description="Checked energy-balance calculations for closed systems and steady-flow devices.",
     )
     parser.add_argument("--version", action="version", version=f"joulebook {__version__}")
     sub = parser.add_subparsers(dest="command")
