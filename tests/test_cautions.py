@@ -97,6 +97,13 @@ SAMPLES = {
     "n2-accumulator-polytropic.toml": {PRESSURE, ABOVE_INITIAL},      # 90 bar to 210 bar
     "n2-buffer-into-receiver.toml": {PRESSURE, LOW_TEMPERATURE},      # settles at -10.8 °C; V-101's gas -86 °C
     "steam-kettle-wet.toml": {PRESSURE, ABOVE_INITIAL},               # 1 atm heated rigid: 5.8 bar
+    # steady flow: the highest stream pressure above 0.5 bar gauge; no stream below -29 °C
+    "gas-letdown-preheated.toml": {PRESSURE},                         # 70 barg; the header at 17.7 °C
+    "n2-two-stage-compressor.toml": {PRESSURE},                       # to 20.2 barg; 20 °C and hotter
+    "steam-backpressure-turbine.toml": {PRESSURE},                    # 20 barg steam
+    "feedwater-heater-steam-mix.toml": {PRESSURE},                    # 3 barg
+    "r134a-chiller-evaporator-condenser.toml": {PRESSURE},            # 10.17 bar; coldest -5 °C
+    "steam-condensate-flash-drum.toml": {PRESSURE},                   # 10 barg condensate
 }
 
 
