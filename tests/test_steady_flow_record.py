@@ -19,7 +19,7 @@ import re
 import pytest
 
 from balance.errors import InputError
-from balance.record import Record, diff, export_html, export_markdown
+from balance.record import Record, diff, diff_records, export_html, export_markdown
 from balance.record.format import parse
 from balance.worksheet import Worksheet
 from tests.helpers import sample
@@ -216,6 +216,25 @@ def test_diff_names_the_device_whose_efficiency_changed(bench):
     # the published definition: W = ṅ (h_2s - h_1) / η_s, the isentropic end state unchanged
     W1, W2 = (_q(e.data["devices"]["K-1"], "W_dot") for e in (first, second))
     assert W2 / W1 == pytest.approx(0.75 / 0.8, rel=1e-9)
+
+
+def test_diff_between_a_record_and_its_variant_filed_apart(bench, tmp_path, capsys):
+    variant = Record.create(tmp_path / "variant.jbk", author="a.preparer",
+                            worksheet=Worksheet.from_toml(BENCH.replace('eta = "0.75"', 'eta = "0.8"')),
+                            clock=Clock())
+    d = diff_records(bench, variant)
+    assert d.from_solve == d.to_solve == 7  # one number, two solves: compared all the same
+    lines = d.lines()
+    assert lines[0] == "From bench.jbk, entry 7 (revision 1), to variant.jbk, entry 7 (revision 1)"
+    assert "  device 'K-1'.eta: was '0.75', now '0.8'" in lines
+    assert any(line.startswith("  devices.K-1.W_dot: was ") for line in lines)
+    assert main(["record", "diff", str(bench.path), "--against", str(variant.path)]) == 0
+    assert "device 'K-1'.eta: was '0.75', now '0.8'" in capsys.readouterr().out
+    assert main(["record", "diff", str(bench.path), "--against", str(bench.path)]) == 0
+    out = capsys.readouterr().out
+    assert "Inputs:\n  no change" in out and out.rstrip().endswith("no change")
+    assert main(["record", "diff", str(bench.path)]) == 2  # neither --from nor --against
+    assert "--from" in capsys.readouterr().err
 
 
 def test_the_report_holds_the_stream_and_device_tables(letdown):

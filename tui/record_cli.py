@@ -192,14 +192,27 @@ def _point(rec, text: str, flag: str) -> int:
 
 @_pipe_safe
 def cmd_diff(args) -> int:
-    from balance.record import diff
+    from balance.errors import InputError
+    from balance.record import diff, diff_records
 
     rec = _load(args.record)
-    to = _point(rec, args.to, "--to") if args.to else len(rec.entries)
-    d = diff(rec, _point(rec, args.from_, "--from"), to)
+    if args.against:  # --from in this record, --to in the other, each its last entry by default
+        other = _load(args.against)
+        d = diff_records(rec, other, _point(rec, args.from_, "--from") if args.from_ else None,
+                         _point(other, args.to, "--to") if args.to else None)
+    else:
+        if not args.from_:
+            raise InputError("--from", "give the entry to compare from (a number, or rN: the end of revision N), "
+                                       "or --against another record")
+        to = _point(rec, args.to, "--to") if args.to else len(rec.entries)
+        d = diff(rec, _point(rec, args.from_, "--from"), to)
+        other = None
     for line in d.lines():
         print(line)
-    return EXIT_FAILED if _broken(rec, args.record, "the entries compared are not the record as filed") else EXIT_OK
+    broken = _broken(rec, args.record, "the entries compared are not the record as filed")
+    if other is not None:
+        broken = _broken(other, args.against, "the entries compared are not the record as filed") or broken
+    return EXIT_FAILED if broken else EXIT_OK
 
 
 @_pipe_safe
@@ -345,10 +358,13 @@ def add_parser(subparsers) -> None:
     p.add_argument("note", help="how it was resolved")
     p.set_defaults(func=cmd_resolve)
 
-    p = sub.add_parser("diff", help="inputs and results that changed between two points of a record")
+    p = sub.add_parser("diff", help="inputs and results that changed between two points of a record, or two records")
     p.add_argument("record")
-    p.add_argument("--from", dest="from_", required=True, metavar="N", help="entry number, or rN: the end of revision N")
-    p.add_argument("--to", metavar="M", help="entry number or rN (default: the last entry)")
+    p.add_argument("--from", dest="from_", metavar="N", help="entry number, or rN: the end of revision N "
+                                                            "(needed unless --against; then default the last entry)")
+    p.add_argument("--to", metavar="M", help="entry number or rN (default: the last entry); of the other record "
+                                            "with --against")
+    p.add_argument("--against", metavar="OTHER", help="compare with another record (a variant of the calculation)")
     p.set_defaults(func=cmd_diff)
 
     p = sub.add_parser("replay", help="rebuild the worksheet, re-solve it and check every recorded result")

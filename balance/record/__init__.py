@@ -69,6 +69,7 @@ from .format import KINDS, SECTION_KINDS, Entry, parse
 from .record import Record
 from .replay import DEFAULT_TOLERANCE, Difference, ReplayReport, SolveReplay
 from .review import RecordDiff, diff_entries
+from .review import diff_records as review_diff_records
 from .signing import NAMESPACE, ROLES
 from .verify import SignoffStatus, Verification, inspect
 
@@ -78,8 +79,16 @@ def diff(record: Record, from_seq: int, to_seq: int) -> RecordDiff:
     return diff_entries(record.entries, from_seq, to_seq)
 
 
+def diff_records(first: Record, second: Record, from_seq: int | None = None, to_seq: int | None = None) -> RecordDiff:
+    """What inputs and results differ between ``first`` as of entry ``from_seq`` and ``second`` as of
+    ``to_seq`` (each by default as of its last entry): a calculation and its variant filed apart."""
+    return review_diff_records(first.entries, second.entries, (first.path.name, second.path.name),
+                               len(first.entries) if from_seq is None else from_seq,
+                               len(second.entries) if to_seq is None else to_seq)
+
+
 __all__ = [
     "DEFAULT_TOLERANCE", "Difference", "Entry", "KINDS", "NAMESPACE", "ROLES", "Record", "RecordDiff",
     "ReplayReport", "SECTION_KINDS", "SignoffStatus", "SolveReplay", "Verification", "default_allowed_signers",
-    "default_author", "diff", "export_html", "export_markdown", "inspect", "parse",
+    "default_author", "diff", "diff_records", "export_html", "export_markdown", "inspect", "parse",
 ]

@@ -126,14 +126,25 @@ class RecordDiff:
     to_revision: int
     broken: tuple[int, str] | None = None
     """where the record's chain breaks (entry, reason); None when intact"""
+    records: tuple[str, str] = ()
+    """the two records compared (from, to), when they are two (:func:`diff_records`); () for one"""
+    to_broken: tuple[int, str] | None = None
+    """where the second record's chain breaks, when there are two"""
 
     def lines(self) -> list[str]:
         out = []
-        if self.broken:
-            out.append(f"The chain is BROKEN at entry {self.broken[0]}: {self.broken[1]}; from there on the "
-                       "entries compared are shown as read, not as filed.")
-        out.append(f"From entry {self.from_seq} (revision {self.from_revision}) "
-                   f"to entry {self.to_seq} (revision {self.to_revision})")
+        names = self.records or ("the record", "the record")
+        for name, brk in ((names[0], self.broken), (names[1], self.to_broken)):
+            if brk:
+                whose = f"of {name} " if self.records else ""
+                out.append(f"The chain {whose}is BROKEN at entry {brk[0]}: {brk[1]}; from there on the "
+                           "entries compared are shown as read, not as filed.")
+        if self.records:
+            out.append(f"From {names[0]}, entry {self.from_seq} (revision {self.from_revision}), "
+                       f"to {names[1]}, entry {self.to_seq} (revision {self.to_revision})")
+        else:
+            out.append(f"From entry {self.from_seq} (revision {self.from_revision}) "
+                       f"to entry {self.to_seq} (revision {self.to_revision})")
         out.append("Inputs:")
         out += [f"  {d.line('was', 'now')}" for d in self.inputs] or ["  no change"]
         out.append("Results" + (f" (solve entry {self.from_solve} against entry {self.to_solve})"
@@ -143,7 +154,7 @@ class RecordDiff:
         elif self.from_solve is None or self.to_solve is None:
             which = self.from_seq if self.from_solve is None else self.to_seq
             out.append(f"  nothing solved as of entry {which}")
-        elif self.from_solve == self.to_solve:
+        elif self.from_solve == self.to_solve and not self.records:  # in two records, one number is two solves
             out.append(f"  the same solve (entry {self.from_solve}) stands at both points")
         else:
             out += [f"  {d.line('was', 'now')}" for d in self.results] or ["  no change"]
@@ -189,17 +200,42 @@ def input_changes(before: dict, after: dict) -> list[Difference]:
     return out
 
 
+def _check_point(name: str, seq, n: int) -> None:
+    if isinstance(seq, bool) or not isinstance(seq, int) or not 1 <= seq <= n:
+        raise InputError(name, f"expected an entry number from 1 to {n}; got {seq!r}")
+
+
 def diff_entries(entries: Sequence[Entry], from_seq: int, to_seq: int, tolerance: float = 1e-9) -> RecordDiff:
     n = len(entries)
     for name, seq in (("--from", from_seq), ("--to", to_seq)):
-        if isinstance(seq, bool) or not isinstance(seq, int) or not 1 <= seq <= n:
-            raise InputError(name, f"expected an entry number from 1 to {n}; got {seq!r}")
+        _check_point(name, seq, n)
     a, b = entries[:from_seq], entries[:to_seq]
-    inputs = input_changes(fold(a), fold(b))
+    results, sa, sb = _result_changes(a, b, tolerance)
+    revs = revisions(entries)
+    return RecordDiff(from_seq, to_seq, tuple(input_changes(fold(a), fold(b))), tuple(results),
+                      sa.seq if sa else None, sb.seq if sb else None, revs[from_seq - 1], revs[to_seq - 1],
+                      chain_break(entries))
+
+
+def diff_records(first: Sequence[Entry], second: Sequence[Entry], names: tuple[str, str], from_seq: int,
+                 to_seq: int, tolerance: float = 1e-9) -> RecordDiff:
+    """What inputs and results differ between one record as of entry ``from_seq`` and another as of
+    ``to_seq`` (two versions of a calculation filed apart, a case and its variant)."""
+    _check_point("--from", from_seq, len(first))
+    _check_point("--to", to_seq, len(second))
+    a, b = first[:from_seq], second[:to_seq]
+    results, sa, sb = _result_changes(a, b, tolerance)
+    return RecordDiff(from_seq, to_seq, tuple(input_changes(fold(a), fold(b))), tuple(results),
+                      sa.seq if sa else None, sb.seq if sb else None, revisions(first)[from_seq - 1],
+                      revisions(second)[to_seq - 1], chain_break(first), tuple(names), chain_break(second))
+
+
+def _result_changes(a: Sequence[Entry], b: Sequence[Entry], tolerance: float):
+    """The differences between the solves standing at the ends of ``a`` and ``b``, and those solves."""
     sa = next((e for e in reversed(a) if e.kind == SOLVE), None)
     sb = next((e for e in reversed(b) if e.kind == SOLVE), None)
     results: list[Difference] = []
-    if sa is not None and sb is not None and sa.seq != sb.seq:
+    if sa is not None and sb is not None and sa.hash != sb.hash:
         da, db = sa.data, sb.data
         if "error" in da or "error" in db:
             if da.get("error") != db.get("error"):
@@ -209,6 +245,4 @@ def diff_entries(entries: Sequence[Entry], from_seq: int, to_seq: int, tolerance
             # quantities first, then the text that carries them (equations, warnings, cautions)
             text_first = ("equations", "warnings", "cautions")
             results = sorted(failing, key=lambda d: d.path.startswith(text_first)) + info
-    revs = revisions(entries)
-    return RecordDiff(from_seq, to_seq, tuple(inputs), tuple(results), sa.seq if sa else None,
-                      sb.seq if sb else None, revs[from_seq - 1], revs[to_seq - 1], chain_break(entries))
+    return results, sa, sb
