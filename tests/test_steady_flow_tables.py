@@ -301,3 +301,31 @@ def test_a_compressor_given_its_efficiency_and_its_outlet_temperature_is_over_sp
     with pytest.raises(SpecificationError) as err:
         solve(text)
     assert "stream 'b'" in str(err.value) and "given" in str(err.value)
+
+
+def test_a_heater_given_its_duty_and_both_temperatures_gives_the_rate():
+    """Regression: the rate was asked for although Q = ṅ cp (T2 - T1) fixes it (closed form, constant cp)."""
+    text = sheet("N2/ideal-gas", stream("a", T="300 K", P="2 bar") + stream("b", T="360 K") + stream("c", P="1 bar"),
+                 device("E-1", "heater", ["a"], ["b"], Q="50 kW") + device("V-1", "valve", ["b"], ["c"]), IDEAL)
+    res = solve(text)
+    assert res.flows["a"].n_dot == pytest.approx(50e3 / (CP_CONST * 60.0), rel=1e-12)
+    assert res.flows["c"].n_dot == res.flows["a"].n_dot and not res.basis
+
+
+def test_a_turbine_given_its_power_and_its_exit_state_gives_the_steam_rate():
+    """The steam a 1 MW turbine needs from 40 bar, 400 °C to 3 bar, 160 °C: ṁ = W / (h1 - h2)
+    (CoolProp 8.0 HEOS)."""
+    text = sheet("H2O/reference", stream("a", T="400 degC", P="40 bar") + stream("b", T="160 degC", P="3 bar"),
+                 device("T-2", "turbine", ["a"], ["b"], W="-1 MW"))
+    res = solve(text)
+    dh = CP.PropsSI("Hmass", "T", 673.15, "P", 40e5, "Water") - CP.PropsSI("Hmass", "T", 433.15, "P", 3e5, "Water")
+    assert res.flows["a"].m_dot == pytest.approx(1e6 / dh, rel=1e-8)
+
+
+def test_a_heater_given_its_duty_its_rate_and_both_temperatures_is_over_specified():
+    text = sheet("N2/ideal-gas", stream("a", T="300 K", P="2 bar", rate="10 mol/s") + stream("b", T="360 K"),
+                 device("E-1", "heater", ["a"], ["b"], Q="50 kW"), IDEAL)
+    with pytest.raises(SpecificationError) as err:
+        solve(text)
+    assert str(err.value).startswith("heater E-1: the heat Q is given as 50 kW but its streams' states and rate "
+                                     "make it 17.46 kW")  # 10 × 29.1 × 60 W, closed form

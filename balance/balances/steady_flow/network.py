@@ -23,7 +23,7 @@ from dataclasses import dataclass, field
 from ...errors import InputError, SolveError, SpecificationError
 from ...models.base import Point, PropertyModel
 from . import devices as dv
-from .streams import Flow
+from .streams import G, Flow
 
 #: A device's balances must close below this once solved (relative).
 TOLERANCE = 1e-9
@@ -385,7 +385,35 @@ def _exchange(net: Network, d: DeviceSpec) -> bool:
     if net.Q[d.name] is None and a in net.rates and b in net.rates:
         net.Q[d.name] = net.rates[a] * (net.flow(b).e - net.flow(a).e)
         return True
+    if d.Q_dot is not None:
+        return _duty(net, d, a, b, d.Q_dot, "the heat Q")
     return False
+
+
+def _duty(net: Network, d: DeviceSpec, a: str, b: str, given: float, words: str) -> bool:
+    """A heat or power given [W] with both ends' states known: the rate follows where it is not known
+    (ṅ = given / (e_out - e_in)); where it is, the given value must be the one the streams carry."""
+    if a in net.rates or b in net.rates:
+        key = f"{d.name} (duty)"
+        if key in net.checked or a not in net.rates or b not in net.rates:
+            return False
+        net.checked.add(key)
+        ea, eb = net.flow(a).e, net.flow(b).e
+        implied = net.rates[a] * (eb - ea)
+        if not math.isclose(implied, given, rel_tol=1e-7, abs_tol=1e-9 * net.rates[a] * max(abs(ea), abs(eb), 1.0)):
+            raise SpecificationError(f"{d.kind} {d.name}: {words} is given as {given / 1e3:.6g} kW but its streams' "
+                                     f"states and rate make it {implied / 1e3:.6g} kW; leave one of them to be "
+                                     "found ('?')")
+        return False
+    ea, eb = _e(net, a), _e(net, b)
+    if eb == ea:
+        raise SolveError(f"{d.where}: its outlet carries its inlet's energy, so {words} cannot fix the rate")
+    n = given / (eb - ea)
+    if not n > 0:
+        raise SolveError(f"{d.where}: {words} of {given / 1e3:.6g} kW and the states of '{a}' and '{b}' would need "
+                         f"a rate of {n:.6g} mol/s; check the sign of {words} and the outlet's state")
+    net.rates[a] = net.rates[b] = n
+    return True
 
 
 def _machine(net: Network, d: DeviceSpec) -> bool:
@@ -429,6 +457,8 @@ def _machine(net: Network, d: DeviceSpec) -> bool:
     if net.W[d.name] is None and a in net.rates and b in net.rates:  # the energy carried: h, speed, height
         net.W[d.name] = net.rates[a] * (net.flow(b).e - net.flow(a).e)
         progress = True
+    if d.W_dot is not None:
+        progress |= _duty(net, d, a, b, d.W_dot, "the power W")
     return progress
 
 
@@ -496,10 +526,16 @@ def _rate_from_energy(net: Network, d: DeviceSpec) -> bool:
 
 
 def _e(net: Network, name: str) -> float:
-    from .streams import G
-
+    """The energy a stream carries per mole [J/mol], at its speed (its own, a device's, or through its
+    flow area once its rate is known)."""
+    if name in net.rates:
+        return net.flow(name).e
     spec = net.streams[name]
-    return net.points[name].h + spec.model.species.M * (0.5 * spec.velocity**2 + G * spec.z)
+    if spec.area is not None:
+        raise SpecificationError(f"stream '{name}': its rate is to be found, so its speed cannot follow from its "
+                                 "flow area; give its velocity instead")
+    V = net.speeds.get(name, spec.velocity)
+    return net.points[name].h + spec.model.species.M * (0.5 * V * V + G * spec.z)
 
 
 def _splitter(net: Network, d: DeviceSpec) -> bool:
