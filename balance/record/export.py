@@ -127,7 +127,7 @@ def _closed_results(d: dict, seq: int, rev: int, later: list[int]) -> list[Block
 def _flow_results(d: dict, seq: int, rev: int, later: list[int]) -> list[Block]:
     """A steady-flow network's results: the streams (states and rates), the devices (Q̇, Ẇ, η,
     Ṡ_gen, exergy destroyed), each device's recomputed balances, equations, warnings, cautions."""
-    fluids = "; ".join(flow.fluids(d["streams"])) or "no streams"
+    fluids = "; ".join(flow.fluids(d)) or "no streams"
     out: list[Block] = [("p", f"From the solve in entry {seq} (revision {rev}), "
                               f"with joulebook {d.get('joulebook', '?')}: {fluids}. {flow.UNITS}")]
     if d.get("basis"):

@@ -83,10 +83,10 @@ def _celsius(x) -> str:
     return "—" if x is None else g(x - 273.15)
 
 
-def fluids(streams: dict) -> list[str]:
-    """The species and models the streams are of, in order of first appearance."""
+def fluids(data: dict) -> list[str]:
+    """The species and models the solve's streams are of, in order of first appearance."""
     seen: list[str] = []
-    for st in streams.values():
+    for st in _table(data, "streams").values():
         f = f"{st.get('species', '?')}, {st.get('model', '?')}"
         if f not in seen:
             seen.append(f)
@@ -99,7 +99,7 @@ def stream_rows(data: dict) -> tuple[list[str], list[list[str]], str]:
     stream has one."""
     streams = _table(data, "streams")
     M = _molar_masses(streams)
-    several = len(fluids(streams)) > 1
+    several = len(fluids(data)) > 1
     wet = any(_q(st, "x") is not None for st in streams.values())
     headers = ["stream", *(["fluid"] if several else []), "T °C", "P bar(a)", "h kJ/kg", "s kJ/(kg·K)",
                *(["x"] if wet else []), "phase"]
@@ -201,7 +201,7 @@ def solve_text(data: dict, basis: str, pins: str) -> str:
     if pins:
         out.append(pins)
     streams = _table(data, "streams")
-    out.append("Species and model: " + "; ".join(fluids(streams)) if streams else "Species and model: none")
+    out.append("Species and model: " + ("; ".join(fluids(data)) or "none"))
     conv = str(data.get("convention", ""))
     out += wrap(f"Sign convention ({conv}): {SIGNS.get(conv, conv)}", "", "  ")
     out += wrap(UNITS, "", "  ")
