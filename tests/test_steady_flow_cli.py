@@ -159,3 +159,69 @@ def test_the_readme_excerpt_is_what_solve_prints(capsys):
     for line in excerpt.strip().splitlines():
         if not set(line.strip()) <= {"─"}:  # the rules are as wide as the table
             assert " ".join(line.split()) in out, line
+
+
+AFTERCOOLER = """
+[worksheet]
+title = "Aftercooler on cooling water, then a vent nozzle"
+[fluid]
+species = "N2"
+model = "reference"
+[system]
+kind = "steady-flow"
+[[stream]]
+name = "hot gas"
+T = "150 degC"
+P = "10 bar"
+rate = "500 kg/h"
+[[stream]]
+name = "cooled gas"
+T = "35 degC"
+[[stream]]
+name = "cw in"
+species = "H2O"
+T = "25 degC"
+P = "3 bar"
+rate = "?"
+[[stream]]
+name = "cw out"
+species = "H2O"
+T = "35 degC"
+[[stream]]
+name = "vent"
+P = "1.01325 bar"
+[[device]]
+name = "E-1"
+kind = "exchanger"
+inlets = ["hot gas", "cw in"]
+outlets = ["cooled gas", "cw out"]
+dP = "0.2 bar"
+[[device]]
+name = "N-1"
+kind = "nozzle"
+inlets = ["cooled gas"]
+outlets = ["vent"]
+eta = 0.95
+"""
+
+
+def test_an_exchanger_and_a_nozzle_show_their_duty_approach_and_speed(capsys, tmp_path):
+    CP = pytest.importorskip("CoolProp.CoolProp")
+    path = tmp_path / "aftercooler.toml"
+    path.write_text(AFTERCOOLER)
+    code, out, err = run(capsys, "solve", path)
+    assert code == 0, err
+    # CoolProp 8.0 HEOS: the water rate from the duty, m_w = m_g (h_g,in - h_g,out) / (h_w,out - h_w,in)
+    m_g = 500.0 / 3600.0
+    hg1 = CP.PropsSI("Hmass", "T", 423.15, "P", 10e5, "Nitrogen")
+    hg2, sg2 = (CP.PropsSI(k, "T", 308.15, "P", 9.8e5, "Nitrogen") for k in ("Hmass", "Smass"))
+    hw1 = CP.PropsSI("Hmass", "T", 298.15, "P", 3e5, "Water")
+    hw2 = CP.PropsSI("Hmass", "T", 308.15, "P", 3e5, "Water")
+    duty = m_g * (hg1 - hg2)
+    assert f"cw in: ṁ = {duty / (hw2 - hw1) * 3600:.5g} kg/h" in out
+    assert f"E-1: duty {duty / 1e3:.5g} kW from the hot side to the cold; minimum approach 10 K" in out
+    # the nozzle: h_out = h_in - eta (h_in - h(P2, s_in)); V = sqrt(2 (h_in - h_out)) from rest
+    h2 = hg2 - 0.95 * (hg2 - CP.PropsSI("Hmass", "P", 101325.0, "Smass", sg2, "Nitrogen"))
+    speed = (2 * (hg2 - h2)) ** 0.5
+    assert f"velocity m/s 0 0 0 0 {speed:.6g}" in out
+    assert "minimum design metal temperature" in out  # the vent is far below -29 °C

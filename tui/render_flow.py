@@ -16,7 +16,7 @@ from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
-from .display import caution_writer, show, unit_label
+from .display import UNIT_SETS, caution_writer, show, unit_label
 
 #: Device kinds that take work and carry an isentropic end state.
 MACHINES = ("compressor", "pump", "turbine", "expander")
@@ -168,6 +168,8 @@ def devices_table(result, units: str) -> Table:
 
 
 def _isentropic_lines(result, units: str) -> list[str]:
+    """Each machine's isentropic end state beside its actual one; each exchanger's duty and approach."""
+    basis = _Basis(result, units)
     out = []
     for d in result.devices:
         if d.kind in MACHINES and d.isentropic_T is not None:
@@ -175,8 +177,12 @@ def _isentropic_lines(result, units: str) -> list[str]:
             out.append(f"{d.name}: isentropic end state at {show(P2, 'P', units)} {unit_label('P', units)}: "
                        f"T_2s = {show(d.isentropic_T, 'T', units)} {unit_label('T', units)}"
                        f" (actual {show(result.flows[d.outlets[0]].point.T, 'T', units)} {unit_label('T', units)})")
-        if d.approach is not None:
-            out.append(f"{d.name}: minimum approach {d.approach:.4g} K")
+        if d.approach is not None:  # the duty from the hot side's flows (the explanation gives both sides)
+            hot_in, hot_out = result.flows[d.inlets[0]], result.flows[d.outlets[0]]
+            duty = basis.energy(hot_in.n_dot * (hot_in.e - hot_out.e))
+            out.append(f"{d.name}: duty {' '.join(duty)} from the hot side to the cold; minimum approach "
+                       f"{d.approach:.4g} K" + ("" if UNIT_SETS[units]["T"] not in ("degF", "degR")
+                                                else f" ({d.approach * 1.8:.4g} °F)"))
     return out
 
 
