@@ -231,8 +231,8 @@ def flow_result_renderable(result, units: str = "metric", with_headline: bool = 
     basis = _Basis(result, units)
     meta = [*_fluids(result),
             f"convention: {p.convention.words}; Q̇ is heat to the fluid",
-            f"gauge pressures read with atmosphere = {show(p.p_atm, 'P', units)} {unit_label('P', units)}; "
-            f"exergy destroyed at T0 = {show(p.T0, 'T', units)} {unit_label('T', units)}"]
+            (f"gauge pressures read with atmosphere = {show(p.p_atm, 'P', units)} {unit_label('P', units)}; "
+             f"exergy destroyed at T0 = {show(p.T0, 'T', units)} {unit_label('T', units)}")]
     if basis.per_kg:
         meta.append(f"basis: no rate is given: every rate and power per kg of stream '{basis.stream}'")
     parts.append(Text("\n".join(meta), style="dim"))
