@@ -179,7 +179,10 @@ def check_solution(streams: list[StreamSpec], devices: list[DeviceSpec], sol) ->
             a, b = ins[0].point, outs[0].point
             h2s = ins[0].model.flash({"P": b.P, "s": a.s}).h
             eta = (h2s - a.h) / (b.h - a.h) if d.kind in ("compressor", "pump") else (a.h - b.h) / (a.h - h2s)
-            assert eta == pytest.approx(d.eta, rel=1e-7)
+            # a pump's rise is small against h itself: the outlet's flash holds h to about 1e-9 of h (CoolProp's
+            # (P, h) flash, as measured here; no source), 1e-8 allowed, carried into the ratio
+            conditioning = 1e-8 * max(abs(a.h), abs(b.h), 8.314462618 * a.T) / abs(b.h - a.h)
+            assert eta == pytest.approx(d.eta, rel=1e-7, abs=conditioning)
     for s in streams:
         f = flows[s.name]
         if s.name not in leaving:
