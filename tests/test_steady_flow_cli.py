@@ -225,3 +225,15 @@ def test_an_exchanger_and_a_nozzle_show_their_duty_approach_and_speed(capsys, tm
     speed = (2 * (hg2 - h2)) ** 0.5
     assert f"velocity m/s 0 0 0 0 {speed:.6g}" in out
     assert "minimum design metal temperature" in out  # the vent is far below -29 °C
+
+
+def test_an_isentropic_nozzle_generates_no_entropy_and_shows_0_not_round_off(capsys, tmp_path):
+    # an isentropic device generates no entropy (the second law's equality; common practice,
+    # no source): its computed Ṡ_gen is round-off, shown as 0, and so is its exergy destroyed
+    path = tmp_path / "ideal-nozzle.toml"
+    path.write_text(AFTERCOOLER.replace("eta = 0.95", "eta = 1"))
+    code, out, err = run(capsys, "solve", path)
+    assert code == 0, err
+    assert "N-1 nozzle — — 1 0 0 " in out
+    data = as_json(capsys, path)
+    assert abs(data["devices"]["N-1"]["S_gen_dot"]["value"]) < 1e-9  # what the JSON keeps: the computed value

@@ -22,6 +22,11 @@ from .display import UNIT_SETS, caution_writer, show, unit_label
 MACHINES = ("compressor", "pump", "turbine", "expander")
 #: A found value is marked so in the device table (its legend says so).
 FOUND = "*"
+#: An entropy generation below this share of ṅ R is round-off and shown as 0 (the precision the
+#: devices' balances are solved to, as the closed balance's round-off rule).
+ROUND_OFF = 1e-9
+#: The molar gas constant [J/(mol K)] (CODATA 2018, exact), the entropy scale of a stream.
+R = 8.314462618
 #: Where a stream's rate, when found, is news (a feed's, or a device's that divides or joins).
 _RATE_FOUND = ("feed", "mixer", "splitter", "separator")
 
@@ -33,6 +38,7 @@ class _Basis:
         self.units = units
         self.stream = _basis_stream(result)
         self.m_dot = result.flows[self.stream].m_dot if self.stream else None
+        self.S_scale = R * max(f.n_dot for f in result.flows.values())
 
     @property
     def per_kg(self) -> bool:
@@ -45,10 +51,17 @@ class _Basis:
         return show(W, "Edot", self.units, digits), unit_label("Edot", self.units)
 
     def entropy(self, S: float | None, digits: int = 5) -> tuple[str, str]:
-        """An entropy rate [W/K] as (text, unit): per second, or per kg of the basis stream."""
+        """An entropy rate [W/K] as (text, unit): per second, or per kg of the basis stream; 0
+        where it is round-off (below 1e-9 of ṅ R, ṅ the largest stream's molar rate)."""
+        if self.round_off(S):
+            S = 0.0
         if self.per_kg:
             return show(None if S is None else S / self.m_dot, "s", self.units, digits), unit_label("s", self.units)
         return show(S, "Sdot", self.units, digits), unit_label("Sdot", self.units)
+
+    def round_off(self, S: float | None) -> bool:
+        """Whether an entropy rate [W/K] is round-off (then it and its exergy destroyed show 0)."""
+        return S is not None and abs(S) < ROUND_OFF * self.S_scale
 
     def energy_label(self) -> str:
         return unit_label("h", self.units) if self.per_kg else unit_label("Edot", self.units)
@@ -63,7 +76,9 @@ def _basis_stream(result) -> str | None:
     if not result.basis:
         return None
     leaving = {s for d in result.problem.devices for s in d.outlets}
-    return next((s for d in result.problem.devices for s in d.inlets if s not in leaving), None)
+    feeds = [s for d in result.problem.devices for s in d.inlets if s not in leaving]
+    named = [s for s in feeds if f"'{s}'" in result.basis]  # the one the basis names
+    return (named or feeds or [None])[0]
 
 
 def _fluids(result) -> list[str]:
@@ -159,11 +174,11 @@ def devices_table(result, units: str) -> Table:
         W = mark(basis.energy(p.convention.shown("work", d.W_dot))[0], "W", d.name) if d.kind in MACHINES else "—"
         eta = "—" if d.eta is None else mark(f"{d.eta:.4g}", "eta", d.name)
         S = basis.entropy(d.S_gen_dot)[0]
-        X = basis.energy(d.exergy_destroyed)[0] if d.exergy_destroyed is not None else "—"
+        X = basis.energy(0.0 if basis.round_off(d.S_gen_dot) else d.exergy_destroyed)[0]
         t.add_row(d.name, d.kind, Q, W, eta, S, X, f"{max(abs(d.mass), abs(d.energy)):.1e}")
     if result.S_gen_dot is not None:
-        t.add_row("network", "", "", "", "", basis.entropy(result.S_gen_dot)[0],
-                  basis.energy(p.T0 * result.S_gen_dot)[0], "")
+        X = 0.0 if basis.round_off(result.S_gen_dot) else p.T0 * result.S_gen_dot
+        t.add_row("network", "", "", "", "", basis.entropy(result.S_gen_dot)[0], basis.energy(X)[0], "")
     return t
 
 
