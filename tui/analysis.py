@@ -21,12 +21,14 @@ from dataclasses import dataclass, field, fields, replace
 
 from balance import api
 from balance.errors import InputError
-from balance.worksheet import UNKNOWN, Worksheet
+from balance.worksheet import DEVICE_KINDS, SECTIONS, UNKNOWN, Worksheet
 
 from . import fields as field_checks
-from .steps import BY_ID, SECTION_STEPS
+from .steps import steps_of
 
 COMPLETE, INCOMPLETE, INVALID = "complete", "incomplete", "invalid"
+#: The parts of a worksheet that are lists (a compartment, term, stream or device each).
+_LISTS = ("initial", "heat", "work", "stream", "device")
 
 
 @dataclass(frozen=True)
@@ -87,13 +89,16 @@ def implied(ticked) -> dict[str, str]:
 
 
 # -- where a domain error's field is typed -----------------------------------------------
-_LIST_PARTS = ("initial", "heat", "work")
+def _items(ws: Worksheet, part: str) -> tuple:
+    """The compartments, terms, streams or devices of a list part (() for the other parts)."""
+    return getattr(ws, SECTIONS[part]) if part in _LISTS else ()
 
 
 def locate(name: str, ws: Worksheet, message: str) -> FieldProblem | None:
     """The field a domain error names (``initial 'V-101'.T``, ``heat 'jacket'.T_boundary``,
-    ``final.T``, ``initial[2].P``, ``process.constraints``), placed in ``ws``; None when it
-    names no part of the worksheet (a problem of the whole sheet)."""
+    ``final.T``, ``initial[2].P``, ``process.constraints``, ``stream 'header'.rate``,
+    ``device 'PCV-201'``), placed in ``ws`` at the step of its kind where it is typed; None
+    when it names no part of the worksheet that its steps edit (a problem of the whole sheet)."""
     name = name.strip()
     if not name:
         return None
@@ -101,24 +106,19 @@ def locate(name: str, ws: Worksheet, message: str) -> FieldProblem | None:
     if " '" in name and name.rfind("'") > name.index(" '") + 1:
         head, rest = name.split(" '", 1)
         label, key = rest[:rest.rfind("'")], rest[rest.rfind("'") + 1:].lstrip(".")
-        index = _index_of(ws, head, label)
+        index = next((i for i, item in enumerate(_items(ws, head)) if item.name == label), None)
     else:
         head, _, key = name.partition(".")
         if "[" in head and head.endswith("]"):
             head, _, number = head[:-1].partition("[")
             index = int(number) - 1 if number.isdigit() else None
     key = key.split(".")[0].split("[")[0]
-    step = SECTION_STEPS.get(head)
+    step = steps_of(ws.system.kind).section_steps.get(head)
     if step is None:
         return None
-    if head in _LIST_PARTS and index is not None and not 0 <= index < len(getattr(ws, head)):
+    if index is not None and not 0 <= index < len(_items(ws, head)):
         index = None
     return FieldProblem(step.id, head, index, key, message)
-
-
-def _index_of(ws: Worksheet, part: str, label: str) -> int | None:
-    items = getattr(ws, part, ()) if part in _LIST_PARTS else ()
-    return next((i for i, item in enumerate(items) if item.name == label), None)
 
 
 # -- field problems, shared with the inline validators ------------------------------
@@ -173,48 +173,20 @@ def process_problems(ws: Worksheet) -> list[FieldProblem]:
             + _at("constraints", "process", None, "dPE", field_checks.problem("energy", pr.dPE, "ΔPE")))
 
 
-def field_problems(ws: Worksheet, counted: api.Check | None = None) -> tuple[FieldProblem, ...]:
-    """Every field at fault: each field's own check (what the inline validators say) and
-    what the domain's check found, placed at its field; in the order of the steps. What is
-    only not given yet is left out (:func:`missing_fields`)."""
-    return _sorted(p for p in _all_problems(ws, counted) if not _missing(ws, p))
+def _closed_problems(ws: Worksheet) -> list[FieldProblem]:
+    return (heading_problems(ws) + system_problems(ws) + fluid_problems(ws) + state_problems(ws)
+            + term_problems(ws) + process_problems(ws))
 
 
-def missing_fields(ws: Worksheet, counted: api.Check | None = None) -> tuple[FieldProblem, ...]:
-    """What the checks name that is only not given yet: a blank field, a state given in
-    part, no path ticked. Not a fault: the step is incomplete, not invalid."""
-    return _sorted(p for p in _all_problems(ws, counted) if _missing(ws, p))
+def _closed_domain(ws: Worksheet, counted: api.Check, found: list[FieldProblem]) -> list[FieldProblem]:
+    """What stopped the closed balance's count, at its field (unless a field's own check is there)."""
+    if not counted.error:
+        return []
+    at = locate(counted.error_field, ws, counted.error)
+    return [at] if at is not None and at.place not in {p.place for p in found} else []
 
 
-def _all_problems(ws: Worksheet, counted: api.Check | None) -> list[FieldProblem]:
-    found = (heading_problems(ws) + system_problems(ws) + fluid_problems(ws) + state_problems(ws) + term_problems(ws)
-             + process_problems(ws))
-    if counted is not None and counted.error:
-        at = locate(counted.error_field, ws, counted.error)
-        if at is not None and at.place not in {p.place for p in found}:
-            found.append(at)
-    return found
-
-
-def _sorted(problems) -> tuple[FieldProblem, ...]:
-    order = {step_id: i for i, step_id in enumerate(BY_ID)}
-    return tuple(sorted(problems, key=lambda p: order[p.step]))
-
-
-def _missing(ws: Worksheet, p: FieldProblem) -> bool:
-    """Whether a problem is only that something is not given yet."""
-    if p.key:
-        return _text_at(ws, p) == ""
-    if p.part == "initial":
-        states = ws.initial if p.index is None else ws.initial[p.index:p.index + 1]
-        return not states or not all(_state_complete(s, False) for s in states)
-    if p.part == "final":
-        return not _state_complete(ws.final, True)
-    return False
-
-
-def _text_at(ws: Worksheet, p: FieldProblem) -> str | None:
-    """The text typed at a problem's field ('' blank; None: not a text field of the worksheet)."""
+def _closed_text_at(ws: Worksheet, p: FieldProblem) -> str | None:
     part, i, key = p.place
     if part == "fluid" and key in ("species", "model"):
         return getattr(ws.fluid, key).strip()
@@ -246,6 +218,191 @@ def _state_complete(s, final: bool) -> bool:
     given = [k for k, t in s.props.items() if t.strip() and t.strip() != UNKNOWN]
     amounts = [k for k, t in s.amount.items() if t.strip()]
     return len(given) == 2 and len(amounts) >= 1
+
+
+def _closed_missing(ws: Worksheet, p: FieldProblem) -> bool:
+    if p.key:
+        return _closed_text_at(ws, p) == ""
+    if p.part == "initial":
+        states = ws.initial if p.index is None else ws.initial[p.index:p.index + 1]
+        return not states or not all(_state_complete(s, False) for s in states)
+    if p.part == "final":
+        return not _state_complete(ws.final, True)
+    return False
+
+
+def _closed_complete(ws: Worksheet, visited: frozenset[str]) -> dict[str, bool]:
+    boundary_work = any(w.kind == "boundary" for w in ws.work)
+    return {
+        "states": bool(ws.initial and all(_state_complete(s, False) for s in ws.initial)
+                       and _state_complete(ws.final, True)),
+        "terms": bool(ws.heat or ws.work or "terms" in visited),
+        "constraints": bool(ws.process.constraints or boundary_work),
+    }
+
+
+# -- the steady-flow worksheet's fields ----------------------------------------------------
+#: A stream's fields besides its state properties (text as typed).
+STREAM_FIELDS = ("name", "rate", "velocity", "area", "z", "species", "model")
+
+
+def stream_problems(ws: Worksheet) -> list[FieldProblem]:
+    """Each stream's name (given, its own) and state properties, by the rules the solve
+    reads them with; the rate and the rest are the domain's to judge (:func:`balance.api.problems`)."""
+    p_atm = field_checks.atmosphere(ws.heading.atmosphere)
+    names = [st.name.strip() for st in ws.streams]
+    out: list[FieldProblem] = []
+    for i, st in enumerate(ws.streams):
+        label = st.name.strip() or str(i + 1)
+        where = f"stream '{label}'"
+        if not st.name.strip():
+            out += _at("streams", "stream", i, "name",
+                       f"stream {i + 1}: give it a name (the devices join streams by name)")
+        elif names.index(st.name.strip()) != i:
+            out += _at("streams", "stream", i, "name",
+                       f"{where}: another stream has this name; give each its own")
+        for key, text in st.props.items():
+            out += _at("streams", "stream", i, key,
+                       field_checks.problem(key, text, f"{key} ({where})", allow_unknown=True, p_atm=p_atm))
+    return out
+
+
+def device_problems(ws: Worksheet) -> list[FieldProblem]:
+    """Each device's name, kind, and the streams it joins: every inlet and outlet names a
+    stream of step 4."""
+    streams = {st.name.strip() for st in ws.streams if st.name.strip()}
+    out: list[FieldProblem] = []
+    for i, d in enumerate(ws.devices):
+        where = f"device '{d.name.strip() or i + 1}'"
+        if not d.name.strip():
+            out += _at("devices", "device", i, "name", f"device {i + 1}: give it a name, e.g. 'PCV-101'")
+        if d.kind not in DEVICE_KINDS:
+            out += _at("devices", "device", i, "kind", f"{where}.kind: choose one of {', '.join(DEVICE_KINDS)}")
+        for key, names in (("inlets", d.inlets), ("outlets", d.outlets)):
+            unknown = [n for n in names if n.strip() and n.strip() not in streams]
+            if unknown:
+                out += _at("devices", "device", i, key,
+                           f"{key} of {d.name.strip() or f'device {i + 1}'}: {', '.join(repr(n) for n in unknown)} "
+                           f"{'is' if len(unknown) == 1 else 'are'} not a stream of step 4 "
+                           f"({', '.join(sorted(streams)) or 'none named yet'})")
+    return out
+
+
+def _flow_problems(ws: Worksheet) -> list[FieldProblem]:
+    return (heading_problems(ws) + system_problems(ws) + fluid_problems(ws) + stream_problems(ws)
+            + device_problems(ws))
+
+
+def _flow_domain(ws: Worksheet, counted: api.Check, found: list[FieldProblem]) -> list[FieldProblem]:
+    """The domain's fields at fault (:func:`balance.api.problems`), each at its field; one the
+    fields' own checks already show is left out, and so is a stream's or device's problem as a
+    whole where a field of it already says why (a device's inlet naming no stream)."""
+    if not counted.error:
+        return []
+    places = {p.place for p in found}
+    items = {(p.part, p.index) for p in found}
+    out = []
+    for problem in api.problems(ws):
+        at = locate(problem.field, ws, str(problem))
+        if at is None or at.place in places or (at.key == "" and (at.part, at.index) in items):
+            continue
+        out.append(at)
+        places.add(at.place)
+    return out
+
+
+def _flow_text_at(ws: Worksheet, p: FieldProblem) -> str | None:
+    part, i, key = p.place
+    if part in ("stream", "device") and i is not None and key:
+        item = _items(ws, part)[i]
+        if part == "stream":
+            return (getattr(item, key) if key in STREAM_FIELDS else item.props.get(key, "")).strip()
+        if key in ("name", "kind"):
+            return getattr(item, key).strip()
+        if key in ("inlets", "outlets", "fractions"):
+            return ", ".join(getattr(item, key)).strip()
+        return item.values.get(key, "").strip()
+    return _closed_text_at(ws, p)
+
+
+def _flow_missing(ws: Worksheet, p: FieldProblem) -> bool:
+    if p.key:
+        return _flow_text_at(ws, p) == ""
+    return p.part in ("stream", "device") and p.index is None and not _items(ws, p.part)
+
+
+def _flow_complete(ws: Worksheet, visited: frozenset[str]) -> dict[str, bool]:
+    return {
+        "streams": bool(ws.streams and all(st.name.strip() for st in ws.streams)),
+        "devices": bool(ws.devices and all(d.name.strip() and d.kind and d.inlets and d.outlets
+                                           for d in ws.devices)),
+    }
+
+
+def _device_named(ws: Worksheet, message: str) -> list[FieldProblem]:
+    """Where to go for what a counted network lacks: the device its words start with
+    (``valve PCV-201: give the outlet pressure``); not a fault."""
+    for i, d in enumerate(ws.devices):
+        if message.startswith(f"{d.kind} {d.name}:"):
+            return [FieldProblem("devices", "device", i, "", message)]
+    return []
+
+
+# -- one lookup by kind ---------------------------------------------------------------------
+@dataclass(frozen=True)
+class _Form:
+    """How the app checks the fields of one kind of worksheet (beyond what every kind shares)."""
+
+    own: object
+    """ws -> every field's own check (what the inline validators say)"""
+    domain: object
+    """(ws, counted, found) -> what the domain's check found, placed at its fields (less what
+    ``found``, the fields' own checks, already says)"""
+    missing: object
+    """(ws, problem) -> whether the problem is only that something is not given yet"""
+    complete: object
+    """(ws, visited) -> for each of the kind's own input steps, whether it is complete"""
+    lacking: object = None
+    """(ws, message) -> where to go for what a counted worksheet lacks (ctrl+r), or None"""
+
+
+_FORMS = {
+    "closed": _Form(_closed_problems, _closed_domain, _closed_missing, _closed_complete),
+    "steady-flow": _Form(_flow_problems, _flow_domain, _flow_missing, _flow_complete, _device_named),
+}
+
+
+def _form(ws: Worksheet) -> _Form:
+    return _FORMS[steps_of(ws.system.kind).kind]
+
+
+def field_problems(ws: Worksheet, counted: api.Check | None = None) -> tuple[FieldProblem, ...]:
+    """Every field at fault: each field's own check (what the inline validators say) and
+    what the domain's check found, placed at its field; in the order of the steps. What is
+    only not given yet is left out (:func:`missing_fields`)."""
+    return _split(ws, _all_problems(ws, counted))[0]
+
+
+def missing_fields(ws: Worksheet, counted: api.Check | None = None) -> tuple[FieldProblem, ...]:
+    """What the checks name that is only not given yet: a blank field, a state given in
+    part, no path ticked. Not a fault: the step is incomplete, not invalid."""
+    return _split(ws, _all_problems(ws, counted))[1]
+
+
+def _all_problems(ws: Worksheet, counted: api.Check | None) -> list[FieldProblem]:
+    form = _form(ws)
+    found = form.own(ws)
+    if counted is not None:
+        found += form.domain(ws, counted, found)
+    return found
+
+
+def _split(ws: Worksheet, problems) -> tuple[tuple[FieldProblem, ...], tuple[FieldProblem, ...]]:
+    """(the faults, what is only not given yet), each in the order of the steps."""
+    missing = _form(ws).missing
+    order = {step_id: i for i, step_id in enumerate(steps_of(ws.system.kind).order)}
+    ranked = sorted(problems, key=lambda p: order.get(p.step, len(order)))
+    return (tuple(p for p in ranked if not missing(ws, p)), tuple(p for p in ranked if missing(ws, p)))
 
 
 def system_problems(ws: Worksheet) -> list[FieldProblem]:
@@ -287,7 +444,8 @@ def fluid_problems(ws: Worksheet) -> list[FieldProblem]:
 
 def statuses(ws: Worksheet, visited: frozenset[str] = frozenset(),
              problems: tuple[FieldProblem, ...] | None = None) -> dict[str, str]:
-    """Each input step: complete, incomplete or invalid (solve and review are the app's).
+    """Each input step of the worksheet's kind: complete, incomplete or invalid (solve and
+    review are the app's).
 
     A step is invalid when one of its fields is at fault (``problems``, by default each
     field's own check: :func:`field_problems` without the domain's count).
@@ -297,24 +455,21 @@ def statuses(ws: Worksheet, visited: frozenset[str] = frozenset(),
     faulty = {p.step for p in problems}
     h = ws.heading
     f = ws.fluid
-    boundary_work = any(w.kind == "boundary" for w in ws.work)
     complete = {
         "purpose": bool(h.title.strip() and h.purpose.strip() and h.basis.strip()),
         "boundary": bool(ws.system.inside.strip()),
         "fluid": bool(f.species.strip() and f.model.strip()),
-        "states": bool(ws.initial and all(_state_complete(s, False) for s in ws.initial)
-                       and _state_complete(ws.final, True)),
-        "terms": bool(ws.heat or ws.work or "terms" in visited),
-        "constraints": bool(ws.process.constraints or boundary_work),
+        **_form(ws).complete(ws, visited),
     }
     return {step: INVALID if step in faulty else COMPLETE if done else INCOMPLETE
             for step, done in complete.items()}
 
 
-def step_of_field(name: str) -> str | None:
-    """The step where a domain error's field is typed (its first word is the section)."""
+def step_of_field(name: str, ws: Worksheet | None = None) -> str | None:
+    """The step where a domain error's field is typed (its first word is the section), in the
+    steps of ``ws``'s kind (the closed system's without one)."""
     head = name.replace("'", " ").replace(".", " ").replace("[", " ").split(" ")[0] if name else ""
-    step = SECTION_STEPS.get(head)
+    step = steps_of(ws.system.kind if ws is not None else "closed").section_steps.get(head)
     return step.id if step else None
 
 
@@ -322,14 +477,17 @@ def check(ws: Worksheet, visited: frozenset[str] = frozenset()) -> Check:
     """The degrees of freedom (:func:`balance.api.check`), every field at fault and the
     steps' statuses; never raises for bad input."""
     counted = api.check(ws)
-    problems = field_problems(ws, counted)
+    problems, missing = _split(ws, _all_problems(ws, counted))
+    lacking = _form(ws).lacking
+    if not counted.ready and not counted.error and lacking is not None:
+        missing += tuple(lacking(ws, counted.message))
     answer = Check(**{f.name: getattr(counted, f.name) for f in fields(api.Check) if f.name != "problem"},
                    statuses=statuses(ws, visited, problems), problems=problems,
-                   missing=missing_fields(ws, counted))  # no `problem`: the check crosses processes
+                   missing=missing)  # no `problem`: the check crosses processes
     if not counted.error:
         return answer
-    step = step_of_field(counted.error_field)
-    prefix = f"not ready (step {BY_ID[step].number}): " if step else "not ready: "
+    step = step_of_field(counted.error_field, ws)
+    prefix = f"not ready (step {steps_of(ws.system.kind)[step].number}): " if step else "not ready: "
     return replace(answer, message=prefix + counted.error)
 
 
@@ -352,6 +510,11 @@ class Comparison:
     rows: tuple[tuple[str, str, float | None, float | None], ...] = ()
     """(label, display kind, value on the first model, on the second); SI, per unit mass
     for the intensive ones (what :func:`tui.display.show` takes)"""
+
+
+#: The kinds whose results the compare screen lays side by side (its rows are a closed
+#: system's final state and terms).
+COMPARED = ("closed",)
 
 
 def with_model(ws: Worksheet, model: str) -> Worksheet:
@@ -419,12 +582,25 @@ def _round_off(rows: list[tuple], results: list) -> list[tuple]:
     return [(label, kind, zeroed(kind, a), zeroed(kind, b)) for label, kind, a, b in rows]
 
 
+#: The kinds whose results the app's P–v and T–s diagrams draw (a steady-flow network's
+#: device paths are not drawn in the app yet).
+DRAWN = ("closed",)
+
+
+def draws(result) -> bool:
+    """Whether the app draws diagrams of this result (its kind is in :data:`DRAWN`)."""
+    return result.problem.worksheet.system.kind in DRAWN
+
+
 def trace(result):
-    """The P-v and T-s diagrams' lines (:func:`balance.api.trace`); raises BalanceError.
+    """The P-v and T-s diagrams' lines (:func:`balance.api.trace`), or None for a result the
+    app draws no diagram of (:func:`draws`); raises BalanceError.
 
     numpy's floating-point warnings are off while the paths are sampled:
     the lines are a sketch, and a terminal app has nowhere to print them.
     """
+    if not draws(result):
+        return None
     import numpy as np
 
     with np.errstate(all="ignore"):

@@ -26,7 +26,7 @@ from balance.worksheet import Worksheet
 from . import offload
 from .background import BackgroundWork, Outcome
 from .session import Session
-from .steps import BY_ID, ORDER, SECTION_STEPS, STEP_SECTIONS, STEPS, neighbour, screen_class
+from .steps import Steps, screen_class, steps_of
 
 UNIT_SETS = ("si", "metric", "us", "typed")
 UNIT_NAMES = {"si": "SI", "metric": "metric engineering", "us": "US customary",
@@ -99,12 +99,20 @@ class JoulebookApp(BackgroundWork, App):
         if session.extras.get("theme"):
             self.theme = session.extras["theme"]
 
+    @property
+    def steps(self) -> Steps:
+        """The steps of the worksheet's kind (its ``[system] kind``): the step list, their
+        numbers, Next and Back, the sections each commits."""
+        return steps_of(self.session.worksheet.system.kind)
+
     # -- start ---------------------------------------------------------------
     def get_default_screen(self):
         # The first step is the bottom of the stack (no empty screen beneath it to build
         # and restyle first); steps replace each other there with switch_screen, which
         # pops a result callback from the screen it replaces, as any pushed screen has
         # (Textual 8.2). Give this one the same.
+        if self.session.step not in self.steps:  # a step of the other kind (a draft edited by hand)
+            self.session.step = self.steps.order[0]
         self._visit(self.session.step)
         screen = self.make_screen(self.session.step)
         screen._push_result_callback(self, None)
@@ -152,7 +160,10 @@ class JoulebookApp(BackgroundWork, App):
         error = self.session.take_write_error()
         if error:
             self.notify(f"draft not saved: {error}", severity="error", timeout=10)
+        kind_changed = ws.system.kind != self.worksheet.system.kind
         self.worksheet = ws
+        if kind_changed:
+            self._bindings_changed()  # Next and Back follow the kind's steps
         dirty = self.session.dirty()
         if dirty != self.dirty:
             self.dirty = dirty
@@ -200,6 +211,8 @@ class JoulebookApp(BackgroundWork, App):
 
     def goto(self, step: str) -> None:
         """Leave the current step (committing it, unless a field of it is at fault) and open ``step``."""
+        if step not in self.steps:
+            return  # a step of another kind (the palette listed it before the kind changed)
         self.commit_all(quiet=True, leaving=self.session.step)
         self._visit(step)
         self.session.set_step(step)
@@ -209,20 +222,20 @@ class JoulebookApp(BackgroundWork, App):
         self._bindings_changed()
 
     def action_next_step(self) -> None:
-        nxt = neighbour(self.session.step, 1)
+        nxt = self.steps.neighbour(self.session.step, 1)
         if nxt:
             self.goto(nxt)
 
     def action_previous_step(self) -> None:
-        prev = neighbour(self.session.step, -1)
+        prev = self.steps.neighbour(self.session.step, -1)
         if prev:
             self.goto(prev)
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
         if action == "next_step":
-            return True if neighbour(self.session.step, 1) else None
+            return True if self.steps.neighbour(self.session.step, 1) else None
         if action == "previous_step":
-            return True if neighbour(self.session.step, -1) else None
+            return True if self.steps.neighbour(self.session.step, -1) else None
         if action == "commit":
             return True if self.dirty else None
         return True
@@ -269,7 +282,7 @@ class JoulebookApp(BackgroundWork, App):
         """Set the session's hold: the sections of the steps with fields at fault, which no
         commit writes to the record. Returns those steps' counts."""
         faults = self.faults()
-        self.session.hold = tuple(section for step in faults for section in STEP_SECTIONS.get(step, ()))
+        self.session.hold = tuple(section for step in faults for section in self.steps.sections.get(step, ()))
         return faults
 
     def commit_all(self, quiet: bool = False, leaving: str | None = None, then=None) -> None:
@@ -304,13 +317,14 @@ class JoulebookApp(BackgroundWork, App):
         """What a commit saved, and what it left in the draft, in words."""
         parts = []
         if written:
-            steps = dict.fromkeys(SECTION_STEPS[s].title for s in sections if s in SECTION_STEPS)
+            at = self.steps.section_steps
+            steps = dict.fromkeys(at[s].title for s in sections if s in at)
             seqs = [e.seq for e in written]
             which = f"entry {seqs[0]}" if len(seqs) == 1 else f"entries {seqs[0]}–{seqs[-1]}"
             parts.append(f"committed {', '.join(steps)} to {self.session.path.name} ({which})")
         for step in held:
             n = faults.get(step, 0)
-            parts.append(f"step {BY_ID[step].number} {BY_ID[step].title} not committed: {n} field"
+            parts.append(f"step {self.steps[step].number} {self.steps[step].title} not committed: {n} field"
                          f"{'' if n == 1 else 's'} at fault (kept in the draft)")
         return "; ".join(parts) or "nothing to commit: the record holds every step as typed"
 
@@ -373,7 +387,7 @@ class JoulebookApp(BackgroundWork, App):
                 self.go_to_problem(first)
                 n = len({p.place for p in check.problems})
                 message = (f"not solved: {n} field{'' if n == 1 else 's'} at fault; the first, in step "
-                           f"{BY_ID[first.step].number}: {first.message}")
+                           f"{self.steps[first.step].number}: {first.message}")
             else:
                 message = f"not solved: {message}"
                 missing = check.missing if check is not None else ()
@@ -393,6 +407,12 @@ class JoulebookApp(BackgroundWork, App):
         from .screens.fluid import FluidScreen
 
         if isinstance(self.screen, CompareScreen):
+            return
+        from .analysis import COMPARED
+
+        if self.steps.kind not in COMPARED:
+            self.notify(f"compare: not for {self.steps.kind} worksheets yet (closed systems only)",
+                        severity="warning")
             return
         fluid = self.session.worksheet.fluid
         self.push_screen(CompareScreen(fluid.model, FluidScreen._disabled(fluid.species)))
@@ -421,7 +441,7 @@ class JoulebookApp(BackgroundWork, App):
                 f"revision {session.record.revision}.")
         if held:
             note += (" Not in it: the uncommitted edits to step"
-                     f"{'' if len(held) == 1 else 's'} {', '.join(str(BY_ID[s].number) for s in held)}.")
+                     f"{'' if len(held) == 1 else 's'} {', '.join(str(self.steps[s].number) for s in held)}.")
         paths = {f: str(session.report_path(f)) for f in ("md", "html")}
         self.push_screen(ExportScreen(paths, note),
                          lambda request: request and self._export(request.format, request.path))
@@ -446,7 +466,7 @@ class JoulebookApp(BackgroundWork, App):
         if isinstance(self.screen, HelpScreen):
             return
         step = self.session.step
-        self.push_screen(HelpScreen(BY_ID[step].title, screen_class(step).HELP))
+        self.push_screen(HelpScreen(self.steps[step].title, screen_class(step).HELP))
 
     def action_cycle_units(self) -> None:
         units = UNIT_SETS[(UNIT_SETS.index(self.units) + 1) % len(UNIT_SETS)]
@@ -467,7 +487,7 @@ class JoulebookApp(BackgroundWork, App):
 
     def get_system_commands(self, screen):
         yield from super().get_system_commands(screen)
-        for step in STEPS:
+        for step in self.steps:
             yield SystemCommand(f"Step {step.number}: {step.title}", f"Commit this step and open step {step.number}",
                                 lambda s=step.id: self.goto(s))
         yield SystemCommand("Commit", "Write the uncommitted edits to the record", self.action_commit)
@@ -498,4 +518,4 @@ def run(app: JoulebookApp) -> int:
     return 0
 
 
-__all__ = ["JoulebookApp", "Outcome", "run", "ORDER"]
+__all__ = ["JoulebookApp", "Outcome", "run"]

@@ -17,7 +17,18 @@ from dataclasses import asdict
 from pathlib import Path
 
 from balance.errors import InputError
-from balance.worksheet import Fluid, HeatTerm, Heading, Process, StateInput, System, Worksheet, WorkTerm
+from balance.worksheet import (
+    DeviceInput,
+    Fluid,
+    Heading,
+    HeatTerm,
+    Process,
+    StateInput,
+    StreamInput,
+    System,
+    Worksheet,
+    WorkTerm,
+)
 
 #: Appended to the record's path for the autosaved draft.
 DRAFT_SUFFIX = ".draft"
@@ -45,9 +56,19 @@ def worksheet_from_raw(raw: dict) -> Worksheet:
             heat=tuple(HeatTerm(**h) for h in raw["heat"]),
             work=tuple(WorkTerm(**w) for w in raw["work"]),
             process=Process(**proc),
+            # a draft saved before steady-flow worksheets has neither
+            streams=tuple(StreamInput(**st) for st in raw.get("streams", ())),
+            devices=tuple(_device(d) for d in raw.get("devices", ())),
         )
     except (KeyError, TypeError, ValueError) as exc:
         raise InputError("draft", f"is damaged and cannot be read ({exc})") from None
+
+
+def _device(raw: dict) -> DeviceInput:
+    d = dict(raw)
+    for key in ("inlets", "outlets", "fractions"):
+        d[key] = tuple(d.get(key, ()))
+    return DeviceInput(**d)
 
 
 def draft_path(record: Path) -> Path:

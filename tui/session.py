@@ -30,12 +30,12 @@ from balance.worksheet import SECTIONS, Worksheet
 
 from . import offload
 from .draft import DRAFT_FORMAT, DraftFile, draft_path, worksheet_to_raw
-from .steps import STEP_SECTIONS
+from .steps import steps_of
 
 #: The record file's extension.
 RECORD_SUFFIX = ".jbk"
 #: Sections whose value is a list of tables ([[initial]]); the rest are one table.
-_LISTS = ("initial", "heat", "work")
+_LISTS = ("initial", "heat", "work", "stream", "device")
 
 
 def solve_sections(sections: dict) -> api.Attempt:
@@ -54,6 +54,12 @@ def _entry_data(sections: dict) -> dict:
 def section_data(ws: Worksheet, section: str):
     """One section of ``ws.to_dict()`` as the record stores it."""
     return ws.to_dict().get(section, [] if section in _LISTS else {})
+
+
+def of_its_kind(ws: Worksheet) -> dict:
+    """The sections of ``ws`` that its kind reads and its steps commit, as the record stores
+    them: what a solve depends on (what was typed for another kind is left out)."""
+    return {s: section_data(ws, s) for s in steps_of(ws.system.kind).committed()}
 
 
 def overlay(base: Worksheet, top: Worksheet, sections) -> Worksheet:
@@ -120,7 +126,7 @@ class Session:
         from balance.record import Record
 
         # every input step arrives filled in: count them as visited
-        session = cls(path=Path(path), worksheet=ws, extras={"visited": list(STEP_SECTIONS)})
+        session = cls(path=Path(path), worksheet=ws, extras={"visited": list(steps_of(ws.system.kind).sections)})
         # the reference model solves in its own process (started here, warm for the app)
         session.record = Record.create(str(path), author=session.author, worksheet=ws, solver=_entry_data)
         session.committed = session.record.worksheet()
@@ -180,15 +186,24 @@ class Session:
             self.extras = {**self.extras, key: value}
             self.save_draft()
 
-    def dirty(self) -> tuple[str, ...]:
-        """Sections whose text differs from the committed worksheet."""
+    def changed(self) -> tuple[str, ...]:
+        """Every section whose text differs from the committed worksheet, of any kind (what
+        the draft keeps over the record)."""
         now, then = self.worksheet.to_dict(), self.committed.to_dict()
         empty = lambda s: [] if s in _LISTS else {}  # noqa: E731
         return tuple(s for s in SECTIONS if now.get(s, empty(s)) != then.get(s, empty(s)))
 
+    def dirty(self) -> tuple[str, ...]:
+        """The sections a commit writes: those of the worksheet's kind whose text differs from
+        the committed worksheet. What was typed for another kind (the boundary's kind changed
+        in step 2) stays in the draft, uncommitted, until that kind is chosen again."""
+        ours = steps_of(self.worksheet.system.kind).committed()
+        return tuple(s for s in self.changed() if s in ours)
+
     def dirty_steps(self) -> tuple[str, ...]:
         dirty = set(self.dirty())
-        return tuple(step for step, secs in STEP_SECTIONS.items() if dirty & set(secs))
+        return tuple(step for step, secs in steps_of(self.worksheet.system.kind).sections.items()
+                     if dirty & set(secs))
 
     def held(self) -> tuple[str, ...]:
         """The uncommitted sections that a commit leaves in the draft (:attr:`hold`)."""
@@ -249,7 +264,10 @@ class Session:
             solved = solve_sections(sections)
         with self._lock:
             sections = self.solve_due()
-            if sections is None or solved.worksheet is None or api.read(sections) != solved.worksheet:
+            # the record holds what was solved: the sections the kind reads are the same (what
+            # was typed for another kind does not enter the solve)
+            if (sections is None or solved.worksheet is None
+                    or of_its_kind(api.read(sections)) != of_its_kind(solved.worksheet)):
                 return None
             entry = self.record.append_solve(author=self.author, data=api.entry_data(solved))
             self.save_draft()
@@ -347,7 +365,7 @@ class Session:
                 "step": self.step,
                 "units": self.units,
                 "extras": self.extras,
-                "dirty": list(self.dirty()),
+                "dirty": list(self.changed()),
                 "worksheet": worksheet_to_raw(self.worksheet),
                 "committed": worksheet_to_raw(self.committed),
             })

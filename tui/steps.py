@@ -53,25 +53,66 @@ STEPS_BY_KIND = {
     ),
 }
 
-#: The app's steps. Only closed systems can be balanced today; a worksheet of another
-#: kind is kept as typed in these steps (the boundary step marks the kind invalid).
+class Steps:
+    """One kind's steps and what the app looks up in them: by id, in order, the sections
+    each commits and the step where each section is typed (:func:`steps_of`)."""
+
+    def __init__(self, kind: str, steps: tuple[Step, ...]) -> None:
+        self.kind = kind
+        self.steps = steps
+        self.by_id = {s.id: s for s in steps}
+        self.order = tuple(s.id for s in steps)
+        #: the sections each input step commits
+        self.sections = {s.id: s.sections for s in steps if s.sections}
+        #: the step where each worksheet section is typed
+        self.section_steps = {section: s for s in steps for section in s.sections}
+
+    def __iter__(self):
+        return iter(self.steps)
+
+    def __len__(self) -> int:
+        return len(self.steps)
+
+    def __contains__(self, step: str) -> bool:
+        return step in self.by_id
+
+    def __getitem__(self, step: str) -> Step:
+        return self.by_id[step]
+
+    def neighbour(self, step: str, offset: int) -> str | None:
+        """The step ``offset`` places from ``step`` (None past either end, or for a step
+        this kind does not have)."""
+        if step not in self.by_id:
+            return None
+        i = self.order.index(step) + offset
+        return self.order[i] if 0 <= i < len(self.order) else None
+
+    def committed(self) -> tuple[str, ...]:
+        """Every section these steps commit (the kind's sections)."""
+        return tuple(self.section_steps)
+
+
+_BY_KIND = {kind: Steps(kind, steps) for kind, steps in STEPS_BY_KIND.items()}
+
+
+def steps_of(kind: str) -> Steps:
+    """The steps of a worksheet of ``kind`` (its ``[system] kind``). A kind that cannot be
+    balanced (a reserved or mistyped one) is kept as typed in the closed system's steps,
+    where the boundary step marks it invalid."""
+    return _BY_KIND.get(kind, _BY_KIND["closed"])
+
+
+#: The closed system's steps: what a new worksheet starts with.
 STEPS = STEPS_BY_KIND["closed"]
-BY_ID = {s.id: s for s in STEPS}
-ORDER = tuple(s.id for s in STEPS)
-#: The sections each input step commits.
-STEP_SECTIONS = {s.id: s.sections for s in STEPS if s.sections}
-#: The step where each worksheet section is typed.
-SECTION_STEPS = {section: s for s in STEPS for section in s.sections}
-
-
-def neighbour(step: str, offset: int) -> str | None:
-    i = ORDER.index(step) + offset
-    return ORDER[i] if 0 <= i < len(ORDER) else None
+#: The most steps a kind has (the step list's digit keys).
+MOST = max(len(steps) for steps in STEPS_BY_KIND.values())
 
 
 def screen_class(step: str):
-    """The screen class of a step (its module imported on first use)."""
+    """The screen class of a step (its module imported on first use). A step id names the
+    same screen in every kind that has it."""
     from importlib import import_module
 
-    module, name = BY_ID[step].screen.split(":")
+    found = next(s for steps in STEPS_BY_KIND.values() for s in steps if s.id == step)
+    module, name = found.screen.split(":")
     return getattr(import_module(module), name)

@@ -8,8 +8,6 @@ from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
 from textual.widgets import Button, Static
 
-from ..steps import BY_ID
-
 
 class ConfirmQuitScreen(ModalScreen[str | None]):
     """Commit and quit, quit keeping the draft, or stay. Returns 'commit', 'keep' or None."""
@@ -42,13 +40,14 @@ class ConfirmQuitScreen(ModalScreen[str | None]):
         """the steps with fields at fault: committing leaves them in the draft"""
 
     def compose(self) -> ComposeResult:
-        names = ", ".join(f"{BY_ID[s].number} {BY_ID[s].title}" for s in self.steps) or "the worksheet"
+        by_id = self.app.steps.by_id
+        names = ", ".join(f"{by_id[s].number} {by_id[s].title}" for s in self.steps) or "the worksheet"
         with Vertical() as box:
             box.border_title = "Uncommitted edits"
             yield Static(f"Edits to {names} are not committed to the record. They are kept in "
                          f"{self.draft_name} either way and come back when you reopen it.", markup=False)
             if self.held:
-                faulty = ", ".join(f"{BY_ID[s].number} {BY_ID[s].title}" for s in self.held)
+                faulty = ", ".join(f"{by_id[s].number} {by_id[s].title}" for s in self.held)
                 yield Static(f"Fields of {faulty} are at fault: committing leaves "
                              f"{'it' if len(self.held) == 1 else 'them'} in the draft only.",
                              classes="confirm-quit--held", markup=False)

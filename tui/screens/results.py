@@ -1,14 +1,55 @@
-"""Step 7: solve, and the results — states, balances, equations, diagrams."""
+"""Solve, and the results — states or streams, balances, equations, diagrams.
+
+What a result looks like is its kind's (one lookup, :data:`SHOWN`): a closed
+system's states, terms and P–v and T–s diagrams; a steady-flow network's
+streams and devices (no diagrams in the app yet: their tabs are hidden and
+the balance says so).
+"""
 
 from __future__ import annotations
+
+from dataclasses import dataclass
+from importlib import import_module
 
 from textual.app import ComposeResult
 from textual.containers import VerticalScroll
 from textual.content import Content
 from textual.widgets import Static, TabbedContent, TabPane
 
+from ..analysis import draws
 from ..widgets.process_diagram import ProcessDiagram
 from .step import StepScreen
+
+
+@dataclass(frozen=True)
+class Shown:
+    """How the results step shows one kind's result."""
+
+    module: str
+    """the rich renderings' module"""
+    renderable: str
+    """``(result, units, with_headline=False) -> Group``: the tables, equations, cautions"""
+    headline: str
+    """``(result, units) -> str``: the result in one line, above the tabs"""
+    no_diagram: str = ""
+    """what the balance says where the P–v and T–s tabs draw no diagram of it
+    (:func:`tui.analysis.draws`)"""
+
+    def render(self, name: str):
+        return getattr(import_module(self.module), getattr(self, name))
+
+
+#: Each kind's result, as the results step shows it (a kind not listed: as a closed one).
+SHOWN = {
+    "closed": Shown("tui.render", "result_renderable", "headline"),
+    "steady-flow": Shown("tui.render_flow", "flow_result_renderable", "flow_headline",
+                         no_diagram="No diagram for steady-flow worksheets in the app yet: the streams and "
+                                    "devices are in the tables above."),
+}
+
+
+def shown_for(result) -> Shown:
+    return SHOWN.get(result.problem.worksheet.system.kind, SHOWN["closed"])
 
 
 class ResultsScreen(StepScreen):
@@ -29,6 +70,9 @@ equation with its numbers.
 - The tabs show the balance, a P–v and a T–s diagram (←/→ on the tab bar).
   Quasi-static paths are drawn through the model; a rupture or a free
   expansion has none, so its end states are joined by a dotted line.
+- A steady-flow worksheet shows its streams (state, rates, speed) and its
+  devices (heat, power, efficiency, entropy generated, exergy destroyed,
+  each one's balances recomputed); the app draws no diagram for it yet.
 - `f2` switches the display units (SI, metric, US).
 - `f4` solves the worksheet on another model as well (the reference model
   in its own process) and shows the two side by side, with the difference;
@@ -86,19 +130,34 @@ on pressure equipment without the cautions.
         else:
             status.update(self._summary(outcome.result, stale=not current))
         if outcome is not None and outcome.result is not None:
-            from ..render import result_renderable
+            how = shown_for(outcome.result)
+            drawn = draws(outcome.result)
+            body = how.render("renderable")(outcome.result, app.units, with_headline=False)
+            if not drawn and how.no_diagram:
+                from rich.console import Group
+                from rich.text import Text
 
-            balance.update(result_renderable(outcome.result, app.units, with_headline=False))
-            for diagram in self.query(ProcessDiagram):
-                diagram.show_trace(outcome.trace, app.units)
+                body = Group(body, Text(how.no_diagram, style="dim italic"))
+            balance.update(body)
+            self._show_diagram_tabs(drawn)
+            if drawn:
+                for diagram in self.query(ProcessDiagram):
+                    diagram.show_trace(outcome.trace, app.units)
         elif outcome is not None and outcome.error:
             balance.update(Content.styled(outcome.error, "$text-error"))
         else:
             balance.update("")
 
-    def _summary(self, r, stale: bool) -> Content:
-        from ..render import headline
+    def _show_diagram_tabs(self, shown: bool) -> None:
+        """The P–v and T–s tabs only for a result they draw (hidden, ←/→ pass them by)."""
+        if getattr(self, "_diagram_tabs", True) == shown:
+            return
+        self._diagram_tabs = shown
+        tabs = self.query_one("#tabs", TabbedContent)
+        for pane in ("tab-pv", "tab-ts"):
+            (tabs.show_tab if shown else tabs.hide_tab)(pane)
 
-        text = headline(r, self.app.units)
+    def _summary(self, r, stale: bool) -> Content:
+        text = shown_for(r).render("headline")(r, self.app.units)
         head = ("changed since this solve (ctrl+r): ", "bold $text-warning") if stale else ("solved: ", "bold $text-success")
         return Content.assemble(head, text)

@@ -10,7 +10,6 @@ from textual.widgets import Button, DataTable, Static
 
 from balance.errors import BalanceError
 
-from ..steps import BY_ID, ORDER
 from .sign import SignRequest, SignScreen
 from .step import StepScreen
 from .text_prompt import TextPromptScreen
@@ -187,8 +186,9 @@ that starts a new revision, which needs signing again.
             return  # the commit said why
         faults = self.app.faults()
         if faults:
-            step = next(s for s in ORDER if s in faults)
-            self.notify(f"not signed off: fields of step {BY_ID[step].number} {BY_ID[step].title} are at fault "
+            steps = self.app.steps
+            step = next(s for s in steps.order if s in faults)
+            self.notify(f"not signed off: fields of step {steps[step].number} {steps[step].title} are at fault "
                         f"({faults[step]}); a sign-off covers a worksheet the record holds whole",
                         severity="error", timeout=10)
             return

@@ -19,7 +19,6 @@ from textual.widgets import Input, Static, TextArea
 
 from balance.worksheet import Worksheet
 
-from ..steps import BY_ID
 from ..widgets.choice_list import ChoiceList
 from ..widgets.dof_line import DofLine
 from ..widgets.field_row import FieldRow
@@ -56,7 +55,7 @@ class StepScreen(Screen):
         return self.app.session.worksheet
 
     def compose(self) -> ComposeResult:
-        step = BY_ID[self.STEP]
+        step = self.app.steps[self.STEP]
         # laid out by the screen's grid (app.tcss): no containers for the frame
         yield TitleBar()
         yield StepList(self.STEP, self.app.statuses, id="steps")

@@ -112,7 +112,10 @@ class SpeciesPicker(Widget):
     def _show_results(self) -> None:
         """The matches while the species is being chosen (its field or the list focused);
         otherwise they give their lines to the model and its adequacy hint."""
-        results = self.query_one("#species-results", OptionList)
+        found = self.query("#species-results")
+        if not found:
+            return  # the step was left before this ran (a blur is answered after a refresh)
+        results = found.first(OptionList)
         results.display = bool(results.option_count) and self.has_focus_within
 
     def on_descendant_focus(self, event) -> None:

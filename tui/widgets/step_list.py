@@ -6,7 +6,7 @@ from textual.binding import Binding
 from textual.content import Content
 from textual.message import Message
 
-from ..steps import STEPS
+from ..steps import MOST
 from .line_list import LineList
 
 #: marker and style of each status (the style names are theme variables)
@@ -18,7 +18,8 @@ MARKS = {
 
 
 class StepList(LineList):
-    """The eight steps with a status mark each (``✗2``: two fields at fault); Enter (or a digit) opens one."""
+    """The worksheet's steps (its kind's: :attr:`tui.app.JoulebookApp.steps`) with a status mark
+    each (``✗2``: two fields at fault); Enter (or a digit) opens one."""
 
     DEFAULT_CSS = """
     StepList {
@@ -31,9 +32,9 @@ class StepList(LineList):
     """
 
     BINDINGS = [
-        Binding(str(s.number), f"choose_number({s.number})", f"step {s.number}", show=False,
-                id=f"steps.{s.number}", tooltip=f"Open step {s.number}: {s.title}")
-        for s in STEPS
+        Binding(str(n), f"choose_number({n})", f"step {n}", show=False, id=f"steps.{n}",
+                tooltip=f"Open step {n}")
+        for n in range(1, MOST + 1)
     ]
 
     class Chosen(Message):
@@ -47,13 +48,19 @@ class StepList(LineList):
         super().__init__(id=id)
         self.current = current
         self._statuses = dict(statuses or {})
-        self.set_reactive(StepList.cursor, [s.id for s in STEPS].index(current))
+        order = self.app.steps.order
+        self.set_reactive(StepList.cursor, order.index(current) if current in order else 0)
+
+    @property
+    def steps(self) -> tuple:
+        """The steps shown: the worksheet's kind's (they change with the kind, in step 2)."""
+        return self.app.steps.steps
 
     def line_count(self) -> int:
-        return len(STEPS)
+        return len(self.steps)
 
     def line(self, index: int) -> Content:
-        step = STEPS[index]
+        step = self.steps[index]
         status = self.status_of(step.id)
         mark, style = MARKS[status]
         faults = self.faults_of(step.id) if status == "invalid" else 0
@@ -65,6 +72,17 @@ class StepList(LineList):
     def on_mount(self) -> None:
         self.watch(self.app, "statuses", self.show_statuses, init=False)  # built with them
         self.watch(self.app, "check", lambda _: self.refresh(), init=False)  # the counts, status unchanged
+        self._shown_kind = self.app.steps.kind
+        self.watch(self.app, "worksheet", self._kind_changed, init=False)
+
+    def _kind_changed(self, _ws) -> None:
+        """Another kind chosen in step 2: its steps, in as many lines."""
+        kind = self.app.steps.kind
+        if kind != self._shown_kind:
+            self._shown_kind = kind
+            order = self.app.steps.order
+            self.set_reactive(StepList.cursor, order.index(self.current) if self.current in order else 0)
+            self.refresh(layout=True)
 
     def show_statuses(self, statuses: dict[str, str]) -> None:
         self._statuses = dict(statuses)
@@ -79,7 +97,8 @@ class StepList(LineList):
         return self._statuses.get(step, "incomplete")
 
     def chosen(self, index: int) -> None:
-        self.post_message(self.Chosen(STEPS[index].id))
+        self.post_message(self.Chosen(self.steps[index].id))
 
     def action_choose_number(self, number: int) -> None:
-        self.post_message(self.Chosen(STEPS[number - 1].id))
+        if 1 <= number <= len(self.steps):
+            self.post_message(self.Chosen(self.steps[number - 1].id))
