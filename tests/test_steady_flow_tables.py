@@ -239,11 +239,11 @@ def test_heat_from_a_colder_boundary_is_refused_naming_the_heater():
 
 
 # -- an exchanger: a condensing side stepped along its enthalpy -----------------------------------
-def _coolprop_approach(hot, cold, P_hot, P_cold, h_hot, h_cold, steps=dv.EXCHANGER_STEPS):
-    """CoolProp 8.0 HEOS along each side's molar enthalpy, counter-flow (hot inlet at the cold outlet)."""
+def _coolprop_approach(hot, cold, P_hot, P_cold, h_hot, h_cold, steps=dv.EXCHANGER_STEPS, extra=()):
+    """CoolProp 8.0 HEOS along each side's molar enthalpy, counter-flow (hot inlet at the cold outlet), at
+    even steps of the duty and at the fractions ``extra``."""
     worst = math.inf
-    for k in range(steps + 1):
-        f = k / steps
+    for f in sorted({k / steps for k in range(steps + 1)} | set(extra)):
         T_h = CP.PropsSI("T", "P", P_hot, "Hmolar", h_hot[0] + f * (h_hot[1] - h_hot[0]), hot)
         g = 1 - f
         T_c = CP.PropsSI("T", "P", P_cold, "Hmolar", h_cold[0] + g * (h_cold[1] - h_cold[0]), cold)
@@ -274,8 +274,10 @@ def test_the_minimum_approach_reported_is_the_one_stepped_through_coolprop():
     res = solve(_exchanger_sheet("100 degC"))
     fl = res.flows
     got = row(res, "E-5").approach
-    want = _coolprop_approach("Water", "Nitrogen", 1.5e5, 3e5, (fl["steam"].point.h, fl["condensate"].point.h),
-                              (fl["gas"].point.h, fl["gas out"].point.h))
+    h_steam = (fl["steam"].point.h, fl["condensate"].point.h)
+    f_dew = (h_steam[0] - CP.PropsSI("Hmolar", "P", 1.5e5, "Q", 1, "Water")) / (h_steam[0] - h_steam[1])
+    want = _coolprop_approach("Water", "Nitrogen", 1.5e5, 3e5, h_steam, (fl["gas"].point.h, fl["gas out"].point.h),
+                              extra=(f_dew,))  # the steam's dew point, where it pinches
     assert got == pytest.approx(want, abs=1e-6)
     # the pinch is inside, at the dew point, well below either end's difference (CoolProp 8.0 HEOS)
     T_sat = CP.PropsSI("T", "P", 1.5e5, "Q", 1, "Water")
@@ -329,3 +331,28 @@ def test_a_heater_given_its_duty_its_rate_and_both_temperatures_is_over_specifie
         solve(text)
     assert str(err.value).startswith("heater E-1: the heat Q is given as 50 kW but its streams' states and rate "
                                      "make it 17.46 kW")  # 10 × 29.1 × 60 W, closed form
+
+
+def test_a_pinch_at_the_dew_point_between_the_steps_is_found():
+    """Regression: stepping at 40 even fractions of the duty only, a cross of 0.5 K where superheated steam
+    starts to condense was missed (the gas's temperature changes some 2.5 K a step). The case is built with
+    CoolProp 8.0 HEOS: steam at 1.5 bar from 220 °C to saturated liquid, nitrogen at 3 bar from 20 °C to the
+    outlet that puts it 0.5 K above the steam's dew point where the steam reaches it."""
+    steam, n2 = make_model("reference", lookup("H2O")), make_model("reference", lookup("N2"))
+    hot_in = Flow("steam", steam, steam.flash({"T": 493.15, "P": 1.5e5}), 1.0)
+    hot_out = Flow("condensate", steam, steam.flash({"P": 1.5e5, "x": 0.0}), 1.0)
+    h_in, h_out = (CP.PropsSI("Hmolar", "T", 493.15, "P", 1.5e5, "Water"), CP.PropsSI("Hmolar", "P", 1.5e5, "Q", 0, "Water"))
+    h_dew, T_dew = CP.PropsSI("Hmolar", "P", 1.5e5, "Q", 1, "Water"), CP.PropsSI("T", "P", 1.5e5, "Q", 1, "Water")
+    f_dew = (h_in - h_dew) / (h_in - h_out)
+    steps = dv.EXCHANGER_STEPS
+    assert abs(f_dew * steps - round(f_dew * steps)) > 0.2  # between two steps, so the steps alone miss it
+    duty = h_in - h_out  # per mole of steam
+    h_ci = CP.PropsSI("Hmolar", "T", 293.15, "P", 3e5, "Nitrogen")
+    h_pinch = CP.PropsSI("Hmolar", "T", T_dew + 0.5, "P", 3e5, "Nitrogen")
+    n_gas = duty * (1 - f_dew) / (h_pinch - h_ci)  # the gas takes (1 - f_dew) of the duty up to the pinch
+    cold_in = Flow("gas", n2, n2.flash({"T": 293.15, "P": 3e5}), n_gas)
+    cold_out = Flow("gas out", n2, n2.flash({"P": 3e5, "h": h_ci + duty / n_gas}), n_gas)
+    ap = dv.approach(hot_in, hot_out, cold_in, cold_out)
+    assert ap.minimum == pytest.approx(-0.5, abs=1e-5) and ap.where == pytest.approx(f_dew, rel=1e-6)
+    # the even steps alone (CoolProp 8.0 HEOS along both sides) see no cross
+    assert _coolprop_approach("Water", "Nitrogen", 1.5e5, 3e5, (h_in, h_out), (h_ci, h_ci + duty / n_gas)) > 0

@@ -261,11 +261,17 @@ def approach(hot_in: Flow, hot_out: Flow, cold_in: Flow, cold_out: Flow, *, coun
     each step the temperature of each side is its state at (P, h), with the
     pressure taken linear between its ends, so a condensing or boiling side
     (h changing at constant T) shows where it pinches. Counter-flow: the hot
-    inlet faces the cold outlet.
+    inlet faces the cold outlet. Where a side's model has two phases, the points
+    where that side meets its bubble or dew point are stepped to as well: a
+    pinch sits there (a superheated vapour starting to condense), and between
+    the regular steps it would be missed by up to a step's change of the other
+    side's temperature.
     """
     worst, where = math.inf, 0.0
-    for k in range(steps + 1):
-        f = k / steps
+    fractions = {k / steps for k in range(steps + 1)}
+    fractions.update(_phase_breaks(hot_in, hot_out, field))
+    fractions.update((1.0 - g if counter else g) for g in _phase_breaks(cold_in, cold_out, field))
+    for f in sorted(fractions):
         hot = _along(hot_in, hot_out, f, field)
         g = 1.0 - f if counter else f
         cold = _along(cold_in, cold_out, g, field)
@@ -273,6 +279,29 @@ def approach(hot_in: Flow, hot_out: Flow, cold_in: Flow, cold_out: Flow, *, coun
         if dT < worst:
             worst, where = dT, f
     return Approach(worst, where)
+
+
+def _phase_breaks(a: Flow, b: Flow, field: str) -> list[float]:
+    """The fractions of the way from a to b (by enthalpy, the pressure linear) where the side reaches its
+    saturated liquid or vapour; none for a model without two phases."""
+    model = a.model
+    dh = b.point.h - a.point.h
+    if not model.two_phase or dh == 0.0:
+        return []
+    out = []
+    for x in (0.0, 1.0):
+        f = 0.0
+        try:
+            for _ in range(3):  # the saturation enthalpy at the pressure where it is met (P changes little)
+                P = a.point.P + f * (b.point.P - a.point.P)
+                f = (model.flash({"P": P, "x": x}, field=field).h - a.point.h) / dh
+                if not 0.0 < f < 1.0:
+                    break
+        except InputError:  # above the critical pressure or outside the model's range: no phase change
+            continue
+        if 0.0 < f < 1.0:
+            out.append(f)
+    return out
 
 
 def _along(a: Flow, b: Flow, f: float, field: str) -> Point:
