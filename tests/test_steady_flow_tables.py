@@ -356,3 +356,16 @@ def test_a_pinch_at_the_dew_point_between_the_steps_is_found():
     assert ap.minimum == pytest.approx(-0.5, abs=1e-5) and ap.where == pytest.approx(f_dew, rel=1e-6)
     # the even steps alone (CoolProp 8.0 HEOS along both sides) see no cross
     assert _coolprop_approach("Water", "Nitrogen", 1.5e5, 3e5, (h_in, h_out), (h_ci, h_ci + duty / n_gas)) > 0
+
+
+def test_a_flash_drum_holds_what_is_given_of_its_outlets():
+    """Regression: a separator's outlets were set without checking what the worksheet gives of them
+    (a drain said to be at 100 °C was reported at the saturation temperature of 2 bar, 120.2 °C, CoolProp 8.0)."""
+    streams = (stream("condensate", T="180 degC", P="12 bar", rate="2 kg/s") + stream("drain", P="2 bar", T="100 degC")
+               + stream("flash steam", P="2 bar"))
+    text = sheet("H2O/reference", streams, device("D-1", "separator", ["condensate"], ["drain", "flash steam"]))
+    with pytest.raises(SpecificationError) as err:
+        solve(text)
+    assert "stream 'drain'" in str(err.value)
+    good = solve(text.replace('T = "100 degC"\n', "", 1))
+    assert good.flows["drain"].point.T == pytest.approx(CP.PropsSI("T", "P", 2e5, "Q", 0, "Water"), rel=1e-9)

@@ -565,7 +565,8 @@ def _separator(net: Network, d: DeviceSpec) -> bool:
         return False
     P = net.streams[liquid].given.get("P", net.streams[vapour].given.get("P"))
     lq, vp = dv.separate(net.flow(a), (liquid, vapour), P, d.where)
-    net.points[liquid], net.points[vapour] = lq.point, vp.point
+    net.set_point(liquid, lq.point)  # what is given of either outlet must hold
+    net.set_point(vapour, vp.point)
     net.rates[liquid], net.rates[vapour] = lq.n_dot, vp.n_dot
     return True
 
