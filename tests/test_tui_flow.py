@@ -260,3 +260,35 @@ async def test_the_draft_keeps_streams_and_devices_exactly(tmp_path, author):
     again = Session.open(tmp_path / "gas-letdown-preheated.jbk")
     assert again.worksheet.devices[0].values["Q"] == "5" and again.step == "devices"
     assert again.committed.devices[0].values["Q"] == "?"
+
+
+# -- the check by kind, without the screens -------------------------------------------------------
+def test_the_check_places_each_steady_flow_problem_at_its_field():
+    from dataclasses import replace
+
+    from tui import analysis
+
+    ws = api.read(SAMPLES / LETDOWN)
+    streams, devices = list(ws.streams), list(ws.devices)
+
+    def at(sheet):
+        c = analysis.check(sheet)
+        return c, [(p.step, p.part, p.index, p.key) for p in c.problems]
+
+    # the domain's reading of a field (balance.api.problems), at that field of that stream
+    c, found = at(ws.with_(streams=(streams[0], replace(streams[1], velocity="fast"), streams[2])))
+    assert found == [("streams", "stream", 1, "velocity")] and c.statuses["streams"] == "invalid"
+    assert "velocity" in c.problems[0].message and "'fast'" in c.problems[0].message
+    # three properties of one stream: a fault of the stream as a whole (two fix a state)
+    c, found = at(ws.with_(streams=(replace(streams[0], props={**streams[0].props, "h": "5 kJ/kg"}),
+                                    *streams[1:])))
+    assert found == [("streams", "stream", 0, "")] and "T, P, h" in c.problems[0].message
+    # a device's outlet naming no stream: at the outlets, once (not again for the device as a whole)
+    c, found = at(ws.with_(devices=(devices[0], replace(devices[1], outlets=("plant",)))))
+    assert found == [("devices", "device", 1, "outlets")] and c.faults("devices") == 1
+    # what the network lacks is not a fault: ctrl+r goes to the device its words name
+    c, found = at(ws.with_(streams=(*streams[:2], replace(streams[2], props={}))))
+    assert found == [] and not c.ready and c.message.startswith("valve PCV-201:")
+    assert [(p.step, p.index) for p in c.missing] == [("devices", 1)]
+    assert c.statuses == {"purpose": "complete", "boundary": "complete", "fluid": "complete",
+                          "streams": "complete", "devices": "complete"}

@@ -264,6 +264,10 @@ def stream_problems(ws: Worksheet) -> list[FieldProblem]:
         for key, text in st.props.items():
             out += _at("streams", "stream", i, key,
                        field_checks.problem(key, text, f"{key} ({where})", allow_unknown=True, p_atm=p_atm))
+        given = [k for k, text in st.props.items() if text.strip() and text.strip() != UNKNOWN]
+        if len(given) > 2:
+            out += _at("streams", "stream", i, "",
+                       f"{where}: {', '.join(given)} are given, but two properties fix a state; leave the others blank")
     return out
 
 
@@ -340,11 +344,14 @@ def _flow_complete(ws: Worksheet, visited: frozenset[str]) -> dict[str, bool]:
 
 
 def _device_named(ws: Worksheet, message: str) -> list[FieldProblem]:
-    """Where to go for what a counted network lacks: the device its words start with
-    (``valve PCV-201: give the outlet pressure``); not a fault."""
+    """Where to go for what a counted network lacks: the device or stream its words start with
+    (``valve PCV-201: give the outlet pressure``, ``stream 'feed': ...``); not a fault."""
     for i, d in enumerate(ws.devices):
         if message.startswith(f"{d.kind} {d.name}:"):
             return [FieldProblem("devices", "device", i, "", message)]
+    for i, st in enumerate(ws.streams):
+        if message.startswith(f"stream '{st.name}'"):
+            return [FieldProblem("streams", "stream", i, "", message)]
     return []
 
 
