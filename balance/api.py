@@ -274,6 +274,14 @@ def trace(result: Result) -> Trace:
     return trace_diagrams(result)
 
 
+def flow_trace(result, plane: str = "T-s"):
+    """A steady-flow result drawn on the 'T-s', 'h-s' or 'P-h' plane: each device's path
+    through its model's states and each model's dome (:func:`balance.diagrams.flow_trace`)."""
+    from .diagrams import flow_trace as trace_flow
+
+    return trace_flow(result, plane)
+
+
 def advise(ws: Worksheet) -> Advice:
     """How well the worksheet's property model fits its states, and what to use instead."""
     from .adequacy import advise as advise_model
@@ -282,4 +290,4 @@ def advise(ws: Worksheet) -> Advice:
 
 
 __all__ = ["Attempt", "Check", "FieldProblem", "Source", "advise", "as_json", "attempt", "check", "entry_data",
-           "explain", "fluid", "kind", "pins", "prepare", "problems", "read", "read_field", "solve", "trace"]
+           "explain", "flow_trace", "fluid", "kind", "pins", "prepare", "problems", "read", "read_field", "solve", "trace"]

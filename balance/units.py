@@ -344,7 +344,7 @@ class Standard:
 STANDARDS = {
     "Nm3": Standard("Nm3", 273.15, 101325.0, "normal m3 at 0 °C and 1.01325 bar (DIN 1343)"),
     "Sm3": Standard("Sm3", 288.15, 101325.0, "standard m3 at 15 °C and 1.01325 bar (ISO 13443)"),
-    "scf": Standard("scf", 288.705556, 14.696 * 6894.757293168, "standard ft3 at 60 °F and 14.696 psia"),
+    "scf": Standard("scf", (60.0 - 32.0) / 1.8 + 273.15, 14.696 * 6894.757293168, "standard ft3 at 60 °F and 14.696 psia"),
 }
 _STANDARD = re.compile(r"^(MM|M)?(Nm3|Nm\^3|Nm³|Sm3|Sm\^3|Sm³|scf)(.*)$")
 

@@ -16,6 +16,8 @@ from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
+from balance.balances.steady_flow.result import phase_words
+
 from .display import UNIT_SETS, caution_writer, show, unit_label
 
 #: Device kinds that take work and carry an isentropic end state.
@@ -121,7 +123,7 @@ def streams_table(result, units: str, names: list[str] | None = None, title: str
     t.add_row("s", unit_label("s", units), *(show(f.point.s / f.M, "s", units) for f in flows))
     if any(f.point.x is not None for f in flows):
         t.add_row("x", "", *("—" if f.point.x is None else f"{f.point.x:.6g}" for f in flows))
-    t.add_row("phase", "", *(f.point.phase for f in flows))
+    t.add_row("phase", "", *(phase_words(f.point) for f in flows))
     if basis.per_kg:
         t.add_row("ṁ", f"kg/kg '{basis.stream}'", *(f"{f.m_dot / basis.m_dot:.6g}" for f in flows))
         t.add_row("V̇", unit_label("v", units) + f" of '{basis.stream}'",

@@ -126,9 +126,11 @@ class Network:
             if (n_out and len(d.outlets) != n_out) or (not n_out and len(d.outlets) < 2):
                 raise InputError(f"{d.where}.outlets", f"a {d.kind} takes {n_out or 'two or more'} outlet"
                                                        f"{'' if n_out == 1 else 's'}; got {len(d.outlets)}")
-            for s in (*d.inlets, *d.outlets):
-                if s not in self.streams:
-                    raise InputError(f"{d.where}", f"names a stream {s!r} that no [[stream]] defines")
+            for side, names in (("inlets", d.inlets), ("outlets", d.outlets)):
+                for s in names:
+                    if s not in self.streams:
+                        raise InputError(f"{d.where}.{side}", f"names a stream {s!r} that no [[stream]] defines")
+            self._check_species(d)
             for s in d.inlets:
                 if s in seen_in:
                     raise InputError(f"{d.where}.inlets", f"stream {s!r} already enters device '{seen_in[s]}'")
@@ -142,6 +144,21 @@ class Network:
                 raise SpecificationError(f"stream '{name}': {', '.join(spec.given)} are given but a state takes two")
             if len(spec.given) == 2 and name not in self.points:
                 self.points[name] = spec.model.flash(dict(spec.given), field=f"stream '{name}'")
+
+    def _check_species(self, d: DeviceSpec) -> None:
+        """The streams a device joins carry one fluid (each side of an exchanger its own): a
+        stream given another species is named, not left to fail the mass balance."""
+        sides = ([(d.inlets[0], d.outlets[0]), (d.inlets[1], d.outlets[1])] if d.kind == "exchanger"
+                 else [(*d.inlets, *d.outlets)])
+        for side in sides:
+            first = self.streams[side[0]].model.species
+            for s in side[1:]:
+                other = self.streams[s].model.species
+                if other.id != first.id:
+                    raise InputError(f"stream '{s}'.species",
+                                     f"is {other.id} but {d.where} takes it with stream '{side[0]}' of "
+                                     f"{first.id}: the streams a device joins carry one fluid (give the "
+                                     f"stream's species and model as its partner's)")
 
     # -- what each rule may use ----------------------------------------------------------
     def known(self, name: str) -> bool:

@@ -25,6 +25,8 @@ from .network import DeviceSpec, Network, Solved, StreamSpec
 HEATED = ("heater", "cooler")
 #: Devices that take work.
 WORKED = ("compressor", "pump", "turbine", "expander")
+#: Devices that take an isentropic efficiency.
+EFFICIENT = (*WORKED, "nozzle", "diffuser")
 #: The dead state exergy is counted against, unless the worksheet sets one [K].
 T0_DEFAULT = 298.15
 
@@ -146,6 +148,13 @@ def _device(d, convention: Convention, p_atm: float) -> DeviceSpec:
     W = value("W", "power") if d.kind in WORKED else 0.0
     if W is not None and d.kind in WORKED:
         W = convention.work_on(W)
+    if v.get("eta", "").strip() and d.kind not in EFFICIENT:
+        raise InputError(f"{where}.eta", f"a {d.kind} has no efficiency; an isentropic efficiency is a "
+                                         "compressor's, pump's, turbine's, expander's, nozzle's or diffuser's")
+    for key, kinds in (("fractions", ("splitter",)), ("dP_cold", ("exchanger",)), ("arrangement", ("exchanger",))):
+        if (d.fractions if key == "fractions" else v.get(key, "").strip()) and d.kind not in kinds:
+            owner = f"{'an' if kinds[0][0] in 'aeiou' else 'a'} {kinds[0]}'s"
+            raise InputError(f"{where}.{key}", f"is {owner}; a {d.kind} takes none")
     eta = value("eta", "dimensionless")
     poly = value("eta_poly", "dimensionless")
     if eta is not None and poly is not None:

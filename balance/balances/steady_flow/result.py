@@ -76,7 +76,7 @@ class Result:
                 "species": f.model.species.id, "model": f.model.name,
                 **{k: quantity(getattr(pt, k), u) for k, u in (("T", "K"), ("P", "Pa"), ("v", "m**3/mol"),
                                                               ("h", "J/mol"), ("s", "J/(mol*K)"))},
-                "x": quantity(pt.x, "dimensionless"), "phase": pt.phase,
+                "x": quantity(pt.x, "dimensionless"), "phase": phase_words(pt),
                 "m_dot": quantity(f.m_dot, "kg/s"), "n_dot": quantity(f.n_dot, "mol/s"),
                 "V_dot": quantity(f.V_dot, "m**3/s"), "velocity": quantity(f.velocity, "m/s"),
                 "rate_read_as": p.rate_words.get(name, ""),
@@ -99,6 +99,16 @@ class Result:
             "equations": list(self.equations), "warnings": list(self.warnings),
             "cautions": [c.text() for c in self.cautions],
         }
+
+
+def phase_words(point) -> str:
+    """A stream's phase in words: a saturated liquid or vapour (x = 0 or 1, a separator's
+    outlets) is said to be one, not 'two-phase'."""
+    if point.x == 0.0:
+        return "saturated liquid"
+    if point.x == 1.0:
+        return "saturated vapour"
+    return point.phase
 
 
 def result_of(problem: Problem, solved: Solved) -> Result:
@@ -190,14 +200,16 @@ def _warnings(problem: Problem, solved: Solved) -> list[str]:
             if b.point.T < LOW_TEMPERATURE_K:
                 out.append(f"valve {spec.name}: the outlet is at {b.point.T - 273.15:.1f} °C, below "
                            f"{LOW_TEMPERATURE_K - 273.15:.0f} °C: see the low-temperature caution")
-            elif b.point.T < 273.15:
-                out.append(f"valve {spec.name}: the outlet is below 0 °C ({b.point.T - 273.15:.1f} °C): water in "
-                           "the gas can freeze or form hydrates; check the dew point")
+            elif b.point.T < 273.15 and b.point.x is None:  # a gas (a refrigerant flashing is meant to be cold)
+                out.append(f"valve {spec.name}: the outlet is below 0 °C ({b.point.T - 273.15:.1f} °C): water the "
+                           "gas carries can freeze or form hydrates; check its water dew point")
         if spec.kind in ("compressor", "turbine", "expander") and outs[0].point.x is not None:
             x = outs[0].point.x
             if x < 1.0:
                 out.append(f"{spec.kind} {spec.name}: the exit is wet (x = {x:.4g}): liquid in a "
                            f"{'compressor damages it' if spec.kind == 'compressor' else 'turbine erodes its last stages'}")
+        if spec.kind == "nozzle" and flows[spec.inlets[0]].point.x is None:
+            out += _choked(spec.name, flows[spec.inlets[0]].point, outs[0].point)
         if spec.kind == "pump":
             a = flows[spec.inlets[0]]
             sat = _vapour_pressure(a)
@@ -205,6 +217,20 @@ def _warnings(problem: Problem, solved: Solved) -> list[str]:
                 out.append(f"pump {spec.name}: the inlet is {(a.point.P - sat) / 1e5:.3g} bar above its vapour "
                            f"pressure ({sat / 1e5:.4g} bar): check the pump's NPSH")
     return out
+
+
+def _choked(name: str, inlet, outlet) -> list[str]:
+    """A gas nozzle expanding past its critical pressure ratio (2/(k+1))^(k/(k-1)), k = cp/cv at
+    the inlet (the ideal-gas estimate, common practice): a converging nozzle chokes there."""
+    k = inlet.cp / inlet.cv if inlet.cv and math.isfinite(inlet.cp) else None
+    if k is None or not k > 1.0:
+        return []
+    critical = (2.0 / (k + 1.0)) ** (k / (k - 1.0))
+    if outlet.P >= critical * inlet.P:
+        return []
+    return [f"nozzle {name}: the outlet pressure is {outlet.P / inlet.P:.3g} of the inlet's, below the critical "
+            f"ratio (about {critical:.3g} for k = cp/cv = {k:.3g}): a converging nozzle chokes at about "
+            f"{critical * inlet.P / 1e5:.4g} bar; the exit speed shown takes a converging-diverging nozzle"]
 
 
 def _vapour_pressure(f: Flow) -> float | None:
