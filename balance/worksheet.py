@@ -363,14 +363,15 @@ class Worksheet:
 
 def place(ws: "Worksheet", field: str, message: str) -> FieldProblem:
     """The problem a message names ``field`` for, placed in ``ws`` (``initial 'tank'.T`` is the
-    compartment named 'tank', key T; ``heat[2]`` the second heat term; ``final.P``)."""
-    for part in ("initial", "heat", "work"):
-        items = getattr(ws, part)
+    compartment named 'tank', key T; ``heat[2]`` the second heat term; ``final.P``; ``stream
+    'feed'.rate`` and ``device 'K-1'.eta`` the stream and the device of those names)."""
+    for part in ("initial", "heat", "work", "stream", "device"):
+        items = getattr(ws, SECTIONS[part])
         for i, item in enumerate(items):
             for prefix in (f"{part} '{item.name}'", f"{part}[{i + 1}]"):
                 if field == prefix or field.startswith(prefix + "."):
                     return FieldProblem(field, message, part, i, field[len(prefix) + 1:])
-    m = re.match(r"(initial|heat|work)\[(\d+)\](?:\.(.*))?$", field)
+    m = re.match(r"(initial|heat|work|stream|device)\[(\d+)\](?:\.(.*))?$", field)
     if m:  # a compartment or term the worksheet could not be read far enough to hold
         return FieldProblem(field, message, m.group(1), int(m.group(2)) - 1, m.group(3) or "")
     head, _, key = field.partition(".")

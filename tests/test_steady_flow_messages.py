@@ -154,3 +154,17 @@ def test_a_gas_letdown_below_zero_is_warned_of_hydrates():
 
 def test_standard_cubic_feet_are_at_sixty_fahrenheit_exactly():
     assert STANDARDS["scf"].T == (60 - 32) / 1.8 + 273.15  # 288.705555... K
+
+
+def test_every_field_at_fault_is_named_at_once_and_placed_at_its_stream_or_device():
+    text = (SAMPLES / "gas-letdown-preheated.toml").read_text()
+    bad = (text.replace('rate = "2500 Nm3/h"', 'rate = "abc"').replace('T = "45 degC"', 'T = "warm"')
+           .replace('kind = "valve"', 'kind = "valve"\neta = "0.5"'))
+    found = api.problems(sheet(bad))
+    assert [(p.field, p.part, p.index, p.key) for p in found] == [
+        ("stream 'pipeline'.rate", "stream", 0, "rate"),
+        ("stream 'heated'.T", "stream", 1, "T"),
+        ("device 'PCV-201'.eta", "device", 1, "eta"),
+    ]
+    assert api.problems(sheet(text)) == ()  # none: and prepare succeeds
+    api.prepare(sheet(text))

@@ -84,34 +84,64 @@ def prepare(ws: Worksheet) -> Problem:
     twice = sorted({n for n in names if names.count(n) > 1})
     if twice:
         raise InputError("stream", f"two streams are named {twice[0]!r}: give each its own name")
-    streams, words = [], {}
-    for st in ws.streams:
-        where = f"stream '{st.name}'"
-        if st.species or st.model:
-            species = st.species or ws.fluid.species
-            model_name = st.model or ws.fluid.model
-            _, model = make_fluid(species, model_name, dict(ws.fluid.overrides) if species == ws.fluid.species else {},
-                                  fields=(f"{where}.species", f"{where}.model", "fluid.overrides"))
-        elif default is not None:
-            model = default[1]
-        else:
-            raise InputError("fluid.species", "give the species and model (for every stream, or each its own)")
-        M = model.species.M
-        given = read_specs(st.props, M, where, p_atm)
-        rate = None
-        if st.rate.strip() and st.rate.strip() != UNKNOWN:
-            rate, words[st.name] = read_rate(st.rate, M, f"{where}.rate")
-        velocity = _optional(st.velocity, "velocity", f"{where}.velocity")
-        area = _optional(st.area, "area", f"{where}.area", positive=True)
-        if velocity and area:
-            raise InputError(f"{where}.area", "give the velocity or the flow area, not both")
-        z = _optional(st.z, "length", f"{where}.z", allow_negative=True) or 0.0
-        streams.append(StreamSpec(st.name, model, given, rate, velocity or 0.0, area, z))
+    words: dict[str, str] = {}
+    streams = [_stream(st, ws, default, p_atm, words) for st in ws.streams]
     convention = Convention(ws.heading.convention)
     devices = [_device(d, convention, p_atm) for d in ws.devices]
     problem = Problem(ws, streams, devices, convention, p_atm, words)
     problem.network()  # the graph itself: streams named, arity, each stream in at most one device's inlets
     return problem
+
+
+def _model_of(st, ws: Worksheet, default):
+    """The property model a stream is balanced on: its own species and model, else the worksheet's."""
+    where = f"stream '{st.name}'"
+    if st.species or st.model:
+        species = st.species or ws.fluid.species
+        _, model = make_fluid(species, st.model or ws.fluid.model,
+                              dict(ws.fluid.overrides) if species == ws.fluid.species else {},
+                              fields=(f"{where}.species", f"{where}.model", "fluid.overrides"))
+        return model
+    if default is None:
+        raise InputError("fluid.species", "give the species and model (for every stream, or each its own)")
+    return default[1]
+
+
+def _stream(st, ws: Worksheet, default, p_atm: float, words: dict[str, str], *, each=None) -> StreamSpec:
+    """One stream in SI; raises InputError naming the field. With ``each`` (a list), every field at
+    fault is appended to it instead (the first of them is still raised at the end)."""
+    where = f"stream '{st.name}'"
+
+    def read(fn, *args, **kwargs):
+        try:
+            return fn(*args, **kwargs)
+        except InputError as exc:
+            if each is None:
+                raise
+            each.append(exc)
+            return None
+
+    model = _model_of(st, ws, default)
+    M = model.species.M
+    if each is not None:  # each property on its own, so every one at fault is named
+        for key, text in st.props.items():
+            read(read_specs, {key: text}, M, where, p_atm)
+    given = read(read_specs, st.props, M, where, p_atm) if not each else None
+    rate = None
+    if st.rate.strip() and st.rate.strip() != UNKNOWN:
+        rate, words[st.name] = read(read_rate, st.rate, M, f"{where}.rate") or (None, "")
+    velocity = read(_optional, st.velocity, "velocity", f"{where}.velocity")
+    area = read(_optional, st.area, "area", f"{where}.area", positive=True)
+    if velocity and area:
+        read(_refuse, f"{where}.area", "give the velocity or the flow area, not both")
+    z = read(_optional, st.z, "length", f"{where}.z", allow_negative=True) or 0.0
+    if each:
+        raise each[0]
+    return StreamSpec(st.name, model, given, rate, velocity or 0.0, area, z)
+
+
+def _refuse(field: str, message: str):
+    raise InputError(field, message)
 
 
 def _optional(text: str, dimension: str, field: str, *, positive: bool = False,
@@ -188,13 +218,35 @@ def _drop(text: str, field: str) -> float:
 def problems(ws: Worksheet) -> list[FieldProblem]:
     """Every field at fault (the first each part reaches, read as :func:`prepare` reads it), then
     what stops the network; empty exactly when :func:`prepare` succeeds."""
+    found: list[InputError] = []
     try:
-        prepare(ws)
-    except InputError as exc:
-        return [place(ws, exc.field, exc.message)]
-    except SpecificationError as exc:
-        return [FieldProblem("", str(exc), "")]
-    return []
+        p_atm = read_atmosphere(ws.heading.atmosphere)
+        default = make_fluid(ws.fluid.species, ws.fluid.model, dict(ws.fluid.overrides)) \
+            if ws.fluid.species or ws.fluid.model else None
+    except InputError:
+        p_atm = default = None  # prepare names it, below
+    if p_atm is not None:
+        convention = Convention(ws.heading.convention)
+        for st in ws.streams:
+            each: list[InputError] = []
+            try:
+                _stream(st, ws, default, p_atm, {}, each=each)
+            except InputError as exc:
+                found += each or [exc]
+        for d in ws.devices:
+            try:
+                _device(d, convention, p_atm)
+            except InputError as exc:
+                found.append(exc)
+    out = [place(ws, exc.field, exc.message) for exc in found]
+    if not out:  # no field of its own at fault: what stops the whole (a name twice, the graph, ...)
+        try:
+            prepare(ws)
+        except InputError as exc:
+            out.append(place(ws, exc.field, exc.message))
+        except SpecificationError as exc:
+            out.append(FieldProblem("", str(exc), ""))
+    return out
 
 
 __all__ = ["P_ATM", "Problem", "prepare", "problems"]
