@@ -61,7 +61,14 @@ def _atmosphere(text: str) -> float:
 
 
 def _given_states(ws: Worksheet):
+    """Each state the worksheet gives (label, properties, atmosphere): a closed system's
+    compartments and final state, a steady-flow worksheet's streams on the worksheet's fluid."""
     p_atm = _atmosphere(ws.heading.atmosphere)
+    if ws.system.kind == "steady-flow":
+        for i, st in enumerate(ws.streams):
+            if not (st.species or st.model):  # a stream of its own fluid is not judged by this one
+                yield f"stream '{st.name or i + 1}'", st.props, p_atm
+        return
     for i, s in enumerate(ws.initial):
         if s.empty:
             continue
@@ -115,14 +122,16 @@ def advise(ws: Worksheet) -> Advice:
         near_critical |= abs(Tr - 1.0) < NEAR_CRITICAL_TR and Pr > NEAR_CRITICAL_PR
         z = Z_real if Z_real is not None else point.Z
         real_gas |= not (Pr < IDEAL_PR or (Tr > IDEAL_TR and abs(z - 1.0) < IDEAL_DZ))
-    text, ok = _recommend(name, species, wet, liquid, near_critical, real_gas, bool(hints))
+    where = "a stream (step 4)" if ws.system.kind == "steady-flow" else "a state (step 4)"
+    text, ok = _recommend(name, species, wet, liquid, near_critical, real_gas, bool(hints), where)
     return Advice(name, tuple(hints), tuple(problems), text, ok)
 
 
-def _recommend(name, species, wet, liquid, near_critical, real_gas, any_state) -> tuple[str, bool]:
+def _recommend(name, species, wet, liquid, near_critical, real_gas, any_state,
+               where: str = "a state (step 4)") -> tuple[str, bool]:
     reference = "the reference model" if species.coolprop else "a model with two phases (none for this species)"
     if not any_state and not wet:
-        return "give two properties of a state (step 4) to see how well the model fits", True
+        return f"give two properties of {where} to see how well the model fits", True
     if wet:
         if name == "reference":
             return "wet states: the reference model handles them", True

@@ -168,3 +168,25 @@ def test_every_field_at_fault_is_named_at_once_and_placed_at_its_stream_or_devic
     ]
     assert api.problems(sheet(text)) == ()  # none: and prepare succeeds
     api.prepare(sheet(text))
+
+
+def test_step_3s_advice_judges_the_streams_of_a_steady_flow_worksheet():
+    advice = api.advise(sample("gas-letdown-preheated.toml"))
+    (pipeline,) = advice.states  # the only stream given two properties
+    assert pipeline.name == "stream 'pipeline'"
+    # CoolProp 8.0 HEOS: methane at 8 °C and 71.01325 bar has Z = P / (rho R T) near 0.85; PR about 0.83
+    rho = CP.PropsSI("Dmolar", "T", 281.15, "P", 7101325.0, "Methane")
+    assert pipeline.Z == pytest.approx(7101325.0 / (rho * 8.314462618 * 281.15), rel=0.03)
+    blank = api.advise(sheet(HEAD + '[[stream]]\nname = "a"\nT = "300 K"\n'))
+    assert blank.recommendation == "give two properties of a stream (step 4) to see how well the model fits"
+
+
+def test_a_device_without_a_kind_is_asked_for_one():
+    from dataclasses import replace
+
+    ws = sheet(HEAD + '[[stream]]\nname = "a"\n[[stream]]\nname = "b"\n'
+               '[[device]]\nname = "X-1"\nkind = "heater"\ninlets = ["a"]\noutlets = ["b"]\nQ = "?"\n')
+    ws = replace(ws, devices=(replace(ws.devices[0], kind=""),))  # as the app holds a kind not chosen yet
+    (problem,) = api.problems(ws)
+    assert problem.field == "device 'X-1'.kind" and problem.message.startswith("expected one of valve, heater")
+    assert "got" not in problem.message  # not "a  here is adiabatic"

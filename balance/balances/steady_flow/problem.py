@@ -17,7 +17,7 @@ from ...convention import Convention
 from ...errors import BalanceError, InputError, SpecificationError
 from ...state import make_fluid, read_specs
 from ...units import P_ATM, parse, read_rate
-from ...worksheet import UNKNOWN, FieldProblem, Worksheet, place
+from ...worksheet import DEVICE_KINDS, UNKNOWN, FieldProblem, Worksheet, place
 from ..control_volume import Dof, Unknown, read_atmosphere
 from .network import DeviceSpec, Network, Solved, StreamSpec
 
@@ -157,6 +157,9 @@ def _optional(text: str, dimension: str, field: str, *, positive: bool = False,
 def _device(d, convention: Convention, p_atm: float) -> DeviceSpec:
     where = f"device '{d.name}'"
     v = d.values
+    if d.kind not in DEVICE_KINDS:
+        got = f"; got {d.kind!r}" if d.kind.strip() else ""
+        raise InputError(f"{where}.kind", f"expected one of {', '.join(DEVICE_KINDS)}{got}")
 
     def value(key: str, dimension: str, default=None, *, unknown_ok: bool = True):
         text = v.get(key, "").strip()
