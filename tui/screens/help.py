@@ -14,7 +14,7 @@ KEYS = """\
 | key | does |
 |---|---|
 | `ctrl+n` / `ctrl+o` | next / previous step (commits this one) |
-| `esc` | the step list: ↑/↓ and Enter, or a digit 1–8 |
+| `esc` | the step list: ↑/↓ and Enter, or the step's number (1–8 closed, 1–7 steady-flow) |
 | `tab` / `shift+tab` | next / previous field (buttons are passed by: use their keys) |
 | `↑` / `↓` | move in a list (choices, constraints, species found, entries) |
 | `space` / `enter` | in a list: choose the line, or tick and untick it |
