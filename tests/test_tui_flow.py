@@ -105,13 +105,14 @@ async def test_the_letdown_sample_walked_and_solved_shows_the_heater_duty(tmp_pa
         assert abs(pr.hmass() - h_heated) < 100.0
         T_header = props("T", "Hmass", props("Hmass", "T", 318.15, "P", P1), "P", 7e5 + 101325.0)
         assert 0 < T_header - r.flows["header"].point.T < 4.0
-        # what the screen says: the duty in its headline, no diagram tabs for this kind
+        # what the screen says: the duty in its headline, and this kind's diagram tabs
         from textual.widgets import Static, TabbedContent
 
         shown = str(app.screen.query_one("#outcome", Static).render())
         assert "E-201 Q̇ = 50.88" in shown and "kW" in shown
         tabs = app.screen.query_one("#tabs", TabbedContent)
-        assert [t.id for t in tabs.query("ContentTab") if t.display] == ["--content-tab-tab-balance"]
+        assert [t.id for t in tabs.query("ContentTab") if t.display] == [
+            "--content-tab-tab-balance", "--content-tab-tab-flow-ts", "--content-tab-tab-flow-hs", "--content-tab-tab-flow-ph"]
         assert app.statuses["results"] == "complete"
         assert kinds(session).count("solve") == 1  # the record's own solve stands: nothing changed
 

@@ -17,7 +17,7 @@ def test_letdown_step(snap_compare, tmp_path, step):
     assert snap_compare(app_at(tmp_path, LETDOWN, step), terminal_size=SIZE, run_before=steady)
 
 
-def test_letdown_results_without_diagram_tabs(snap_compare, tmp_path):
+def test_letdown_results(snap_compare, tmp_path):
     async def run_before(pilot):
         await ready(pilot)
         app = pilot.app

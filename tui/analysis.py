@@ -589,19 +589,42 @@ def _round_off(rows: list[tuple], results: list) -> list[tuple]:
     return [(label, kind, zeroed(kind, a), zeroed(kind, b)) for label, kind, a, b in rows]
 
 
-#: The kinds whose results the app's P–v and T–s diagrams draw (a steady-flow network's
-#: device paths are not drawn in the app yet).
-DRAWN = ("closed",)
+#: The kinds whose results the app draws, and on which planes: a closed system's process on
+#: the P–v and T–s planes (:func:`balance.api.trace`), a steady-flow network's devices on the
+#: T–s, h–s and P–h planes (:func:`balance.api.flow_trace`).
+DRAWN = {"closed": ("P-v", "T-s"), "steady-flow": ("T-s", "h-s", "P-h")}
+
+
+@dataclass(frozen=True)
+class FlowTraces:
+    """A steady-flow result's diagrams, one :class:`balance.diagrams.FlowTrace` a plane."""
+
+    traces: tuple = ()
+    """(FlowTrace, ...) in the order of ``DRAWN["steady-flow"]``"""
+
+    def on(self, plane: str):
+        """The trace drawn on ``plane`` ('T-s', 'h-s' or 'P-h')."""
+        return next(t for t in self.traces if t.plane == plane)
+
+
+def planes(result) -> tuple[str, ...]:
+    """The planes the app draws this result on (none for a kind not in :data:`DRAWN`)."""
+    return DRAWN.get(result.problem.worksheet.system.kind, ())
 
 
 def draws(result) -> bool:
     """Whether the app draws diagrams of this result (its kind is in :data:`DRAWN`)."""
-    return result.problem.worksheet.system.kind in DRAWN
+    return bool(planes(result))
 
 
 def trace(result):
-    """The P-v and T-s diagrams' lines (:func:`balance.api.trace`), or None for a result the
-    app draws no diagram of (:func:`draws`); raises BalanceError.
+    """The diagrams' lines: a closed system's :class:`balance.diagrams.Trace`, a steady-flow
+    network's :class:`FlowTraces`, or None for a result the app draws no diagram of
+    (:func:`draws`); raises BalanceError.
+
+    A steady-flow network's paths are followed through its models once: a flow trace's
+    curves hold every property of each point (T, P, v, h, s), and its plane only says which
+    two are drawn, so the other planes are the same trace named for them.
 
     numpy's floating-point warnings are off while the paths are sampled:
     the lines are a sketch, and a terminal app has nowhere to print them.
@@ -611,7 +634,17 @@ def trace(result):
     import numpy as np
 
     with np.errstate(all="ignore"):
-        return api.trace(result)
+        return _TRACERS[result.problem.worksheet.system.kind](result)
+
+
+def _flow_traces(result) -> FlowTraces:
+    first, *others = DRAWN["steady-flow"]
+    traced = api.flow_trace(result, first)
+    return FlowTraces((traced, *(replace(traced, plane=plane) for plane in others)))
+
+
+#: How each kind in :data:`DRAWN` is traced.
+_TRACERS = {"closed": api.trace, "steady-flow": _flow_traces}
 
 
 def sig(x: float, digits: int = 4) -> str:

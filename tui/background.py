@@ -33,10 +33,11 @@ class Outcome:
 
     worksheet: Worksheet
     result: object | None = None
-    """the solved balance (balance.balances.closed.Result)"""
+    """the solved balance (a result of its kind: balance.balances.closed.Result, ...)"""
     error: str = ""
     trace: object | None = None
-    """balance.diagrams.Trace once the diagrams are computed"""
+    """once the diagrams are computed (:func:`tui.analysis.trace`): a closed system's
+    balance.diagrams.Trace, a steady-flow network's tui.analysis.FlowTraces"""
     seconds: float = 0.0
 
 

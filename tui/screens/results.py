@@ -2,8 +2,9 @@
 
 What a result looks like is its kind's (one lookup, :data:`SHOWN`): a closed
 system's states, terms and P–v and T–s diagrams; a steady-flow network's
-streams and devices (no diagrams in the app yet: their tabs are hidden and
-the balance says so).
+streams and devices and its T–s, h–s and P–h diagrams. Each kind's diagram
+tabs (:data:`DIAGRAM_TABS`; their planes are :data:`tui.analysis.DRAWN`) are
+shown for a result of that kind, the others' hidden.
 """
 
 from __future__ import annotations
@@ -16,7 +17,8 @@ from textual.containers import VerticalScroll
 from textual.content import Content
 from textual.widgets import Static, TabbedContent, TabPane
 
-from ..analysis import draws
+from ..analysis import planes
+from ..widgets.flow_diagram import FlowDiagram
 from ..widgets.process_diagram import ProcessDiagram
 from .step import StepScreen
 
@@ -31,9 +33,6 @@ class Shown:
     """``(result, units, with_headline=False) -> Group``: the tables, equations, cautions"""
     headline: str
     """``(result, units) -> str``: the result in one line, above the tabs"""
-    no_diagram: str = ""
-    """what the balance says where the P–v and T–s tabs draw no diagram of it
-    (:func:`tui.analysis.draws`)"""
 
     def render(self, name: str):
         return getattr(import_module(self.module), getattr(self, name))
@@ -42,9 +41,14 @@ class Shown:
 #: Each kind's result, as the results step shows it (a kind not listed: as a closed one).
 SHOWN = {
     "closed": Shown("tui.render", "result_renderable", "headline"),
-    "steady-flow": Shown("tui.render_flow", "flow_result_renderable", "flow_headline",
-                         no_diagram="No diagram for steady-flow worksheets in the app yet: the streams and "
-                                    "devices are in the tables above."),
+    "steady-flow": Shown("tui.render_flow", "flow_result_renderable", "flow_headline"),
+}
+
+#: Each kind's diagram tabs: (pane id, tab label, the widget's class and what it draws).
+DIAGRAM_TABS = {
+    "closed": (("tab-pv", "P–v", ProcessDiagram, "Pv"), ("tab-ts", "T–s", ProcessDiagram, "Ts")),
+    "steady-flow": (("tab-flow-ts", "T–s", FlowDiagram, "T-s"), ("tab-flow-hs", "h–s", FlowDiagram, "h-s"),
+                    ("tab-flow-ph", "P–h", FlowDiagram, "P-h")),
 }
 
 
@@ -72,7 +76,12 @@ equation with its numbers.
   expansion has none, so its end states are joined by a dotted line.
 - A steady-flow worksheet shows its streams (state, rates, speed) and its
   devices (heat, power, efficiency, entropy generated, exergy destroyed,
-  each one's balances recomputed); the app draws no diagram for it yet.
+  each one's balances recomputed), and T–s, h–s and P–h diagrams (P on a
+  log scale): each device's path in its own colour with its name beside it,
+  a valve's isenthalpic line and a heater's or cooler's isobar solid, a
+  machine's isentropic line from its inlet dotted and its inlet joined to
+  its actual outlet dashed (the path between is not known), each stream's
+  state marked and named, the saturation dome grey where it is in view.
 - `f2` switches the display units (SI, metric, US).
 - `f4` solves the worksheet on another model as well (the reference model
   in its own process) and shows the two side by side, with the difference;
@@ -90,10 +99,10 @@ on pressure equipment without the cautions.
             with TabPane("Balance", id="tab-balance"):
                 with VerticalScroll(id="balance-scroll", can_focus=True):
                     yield Static("", id="balance")
-            with TabPane("P–v", id="tab-pv"):
-                yield ProcessDiagram("Pv", id="pv")
-            with TabPane("T–s", id="tab-ts"):
-                yield ProcessDiagram("Ts", id="ts")
+            for tabs in DIAGRAM_TABS.values():
+                for pane, label, widget, plane in tabs:
+                    with TabPane(label, id=pane):
+                        yield widget(plane, id=pane.removeprefix("tab-"))
 
     def on_mount(self) -> None:
         super().on_mount()
@@ -131,31 +140,26 @@ on pressure equipment without the cautions.
             status.update(self._summary(outcome.result, stale=not current))
         if outcome is not None and outcome.result is not None:
             how = shown_for(outcome.result)
-            drawn = draws(outcome.result)
-            body = how.render("renderable")(outcome.result, app.units, with_headline=False)
-            if not drawn and how.no_diagram:
-                from rich.console import Group
-                from rich.text import Text
-
-                body = Group(body, Text(how.no_diagram, style="dim italic"))
-            balance.update(body)
-            self._show_diagram_tabs(drawn)
-            if drawn:
-                for diagram in self.query(ProcessDiagram):
-                    diagram.show_trace(outcome.trace, app.units)
-        elif outcome is not None and outcome.error:
-            balance.update(Content.styled(outcome.error, "$text-error"))
+            balance.update(how.render("renderable")(outcome.result, app.units, with_headline=False))
+            kind = outcome.result.problem.worksheet.system.kind
+            self._show_diagram_tabs(kind if planes(outcome.result) else None)
+            for pane, *_ in DIAGRAM_TABS.get(kind, ()):
+                self.query_one(f"#{pane.removeprefix('tab-')}").show_trace(outcome.trace, app.units)
         else:
-            balance.update("")
+            balance.update(Content.styled(outcome.error, "$text-error") if outcome is not None and outcome.error
+                           else "")
+            self._show_diagram_tabs(app.session.worksheet.system.kind)
 
-    def _show_diagram_tabs(self, shown: bool) -> None:
-        """The P–v and T–s tabs only for a result they draw (hidden, ←/→ pass them by)."""
-        if getattr(self, "_diagram_tabs", True) == shown:
+    def _show_diagram_tabs(self, kind: str | None) -> None:
+        """The diagram tabs of one kind (:data:`DIAGRAM_TABS`), the others hidden (←/→ pass
+        them by); none for a result the app draws no diagram of (``kind`` None)."""
+        if getattr(self, "_diagram_kind", "") == kind:
             return
-        self._diagram_tabs = shown
+        self._diagram_kind = kind
         tabs = self.query_one("#tabs", TabbedContent)
-        for pane in ("tab-pv", "tab-ts"):
-            (tabs.show_tab if shown else tabs.hide_tab)(pane)
+        for of_kind, panes in DIAGRAM_TABS.items():
+            for pane, *_ in panes:
+                (tabs.show_tab if of_kind == kind else tabs.hide_tab)(pane)
 
     def _summary(self, r, stale: bool) -> Content:
         text = shown_for(r).render("headline")(r, self.app.units)

@@ -71,21 +71,21 @@ class ProcessDiagram(PlotextPlot):
         process = [xy(c) for c in tr.curves if c.style != "dome"]
         process.append(([X(v, M) if pv else X(s, M) for _, T, P, v, s in tr.states],
                         [Y(P) if pv else Y(T) for _, T, P, v, s in tr.states]))
-        x_lo, x_hi = _window([x for xs, _ in process for x in xs], pv)
-        y_lo, y_hi = _window([y for _, ys in process for y in ys], pv)
+        x_lo, x_hi = window([x for xs, _ in process for x in xs], pv)
+        y_lo, y_hi = window([y for _, ys in process for y in ys], pv)
         self.dome_shown = False
         for curve in tr.curves:
             xs, ys = xy(curve)
             if curve.style == "dome":
-                for run in _inside(xs, ys, (x_lo, x_hi), (y_lo, y_hi)):
+                for run in inside(xs, ys, (x_lo, x_hi), (y_lo, y_hi)):
                     plt.plot(*run, marker="braille", color=COLOURS["dome"])
                     self.dome_shown = True
                 continue
             if curve.style == "jump":
                 # no quasi-static path: a dotted straight line (in the plotted axes)
                 n = JUMP_POINTS
-                xs = [xs[0] + (xs[1] - xs[0]) * i / (n - 1) for i in range(n)] if not pv else _geom(xs[0], xs[1], n)
-                ys = [ys[0] + (ys[1] - ys[0]) * i / (n - 1) for i in range(n)] if not pv else _geom(ys[0], ys[1], n)
+                xs = [xs[0] + (xs[1] - xs[0]) * i / (n - 1) for i in range(n)] if not pv else geom(xs[0], xs[1], n)
+                ys = [ys[0] + (ys[1] - ys[0]) * i / (n - 1) for i in range(n)] if not pv else geom(ys[0], ys[1], n)
                 plt.scatter(xs, ys, marker="dot", color=COLOURS["jump"])
             else:
                 plt.plot(xs, ys, marker="braille", color=COLOURS[curve.style])
@@ -134,7 +134,7 @@ class ProcessDiagram(PlotextPlot):
 MARGIN, LOG_MARGIN = 0.25, 1.6
 
 
-def _window(values: list[float], log: bool) -> tuple[float, float]:
+def window(values: list[float], log: bool) -> tuple[float, float]:
     """The range of an axis: the process's values with a margin (never empty)."""
     lo, hi = min(values), max(values)
     if log and lo > 0:
@@ -144,7 +144,7 @@ def _window(values: list[float], log: bool) -> tuple[float, float]:
     return lo - pad, hi + pad
 
 
-def _inside(xs, ys, x_range, y_range) -> list[tuple[list[float], list[float]]]:
+def inside(xs, ys, x_range, y_range) -> list[tuple[list[float], list[float]]]:
     """The runs of a curve's points inside the view, each drawn on its own (a gap is not a chord)."""
     runs, run = [], ([], [])
     for x, y in zip(xs, ys):
@@ -159,7 +159,7 @@ def _inside(xs, ys, x_range, y_range) -> list[tuple[list[float], list[float]]]:
     return [r for r in runs if len(r[0]) >= 2]
 
 
-def _geom(a: float, b: float, n: int) -> list[float]:
+def geom(a: float, b: float, n: int) -> list[float]:
     if a > 0 and b > 0:
         return [a * (b / a) ** (i / (n - 1)) for i in range(n)]
     return [a + (b - a) * i / (n - 1) for i in range(n)]
