@@ -241,8 +241,11 @@ class Worksheet:
             fluid["overrides"] = dict(self.fluid.overrides)
         out["fluid"] = {k: v for k, v in fluid.items() if v not in ("", {})}
         out["system"] = {k: v for k, v in asdict(self.system).items() if v != ""}
-        out["initial"] = [_state_dict(s) for s in self.initial]
-        out["final"] = _state_dict(self.final)
+        flow = self.system.kind == "steady-flow"  # no compartments unless some were typed
+        if self.initial or not flow:
+            out["initial"] = [_state_dict(s) for s in self.initial]
+        if self.final != StateInput(name="final") or not flow:
+            out["final"] = _state_dict(self.final)
         if self.heat:
             # Q stays even when blank: dropped, it would come back as the default '?'
             out["heat"] = [{k: v for k, v in asdict(h).items() if v != "" or k == "Q"} for h in self.heat]

@@ -190,3 +190,13 @@ def test_a_device_without_a_kind_is_asked_for_one():
     (problem,) = api.problems(ws)
     assert problem.field == "device 'X-1'.kind" and problem.message.startswith("expected one of valve, heater")
     assert "got" not in problem.message  # not "a  here is adiabatic"
+
+
+def test_a_steady_flow_worksheet_is_written_without_compartments_it_does_not_have():
+    from balance.worksheet import Worksheet
+
+    ws = sample("gas-letdown-preheated.toml")
+    data = ws.to_dict()
+    assert "initial" not in data and "final" not in data  # it had none; closed worksheets keep both
+    assert Worksheet.from_toml(ws.to_toml()) == ws
+    assert {"initial", "final"} <= set(sample("n2-buffer-into-receiver.toml").to_dict())
