@@ -44,6 +44,10 @@ VALUES = {
     "fractions": ("fractions", "each outlet's share of the inlet rate, in order: 0.6, 0.4"),
     "arrangement": ("arrange.", "counter (the default) or co-current"),
 }
+#: What an empty value shows: an example of it.
+EXAMPLES = {"Q": "e.g. 50 kW or ?", "W": "e.g. 120 kW or ?", "eta": "e.g. 0.78 or ?", "eta_poly": "e.g. 0.8",
+            "dP": "e.g. 0.3 bar", "dP_cold": "e.g. 0.2 bar", "T_boundary": "e.g. 90 degC",
+            "fractions": "e.g. 0.6, 0.4", "arrangement": "counter"}
 #: What the inlets and outlets are, per kind, where the order matters.
 ORDER_NOTE = {"exchanger": "hot side first", "separator": "outlets: liquid, then vapour"}
 
@@ -109,7 +113,8 @@ class DeviceForm(Widget):
                            placeholder="stream names, a, b", tooltip="The streams out, by name (step 4)")
             for key, (label, tip) in VALUES.items():
                 text = ", ".join(d.fractions) if key == "fractions" else d.values.get(key, "")
-                yield FieldRow(label, text, id=f"value-{key}", label_width=10, placeholder="", tooltip=tip)
+                yield FieldRow(label, text, id=f"value-{key}", label_width=10, placeholder=EXAMPLES[key],
+                               tooltip=tip)
         yield ProblemLine(about="#inlets Input", classes="device-form--problem")
 
     def _show_taken(self, kind: str) -> None:

@@ -17,6 +17,9 @@ from .field_row import FieldRow
 from .problem_line import ProblemLine
 from .state_form import LABELS, TIPS, out_of_tab_order
 
+#: What an empty field shows, for the fields besides the state (an example of each).
+EXAMPLES = {"rate": "e.g. 2500 Nm3/h, 3 kg/s or ?", "velocity": "e.g. 15 m/s", "area": "e.g. 0.01 m2",
+            "z": "e.g. 3 m", "species": "the worksheet's", "model": "the worksheet's"}
 #: The stream's fields besides its state, in the order of the form: (key, label, tooltip).
 OTHERS = (
     ("rate", "Rate", "mass, molar or standard-volume rate: 3 kg/s, 12 t/h, 30 mol/s, 2500 Nm3/h; ? to find it"),
@@ -75,7 +78,7 @@ class StreamForm(Widget):
         with Grid():
             for key, label, tip in OTHERS:
                 yield FieldRow(label, getattr(s, key), id=key, label_width=9,
-                               placeholder="the worksheet's" if key in ("species", "model") else "",
+                               placeholder=EXAMPLES[key],
                                tooltip=tip)
         yield ProblemLine(about="#prop-T Input", classes="stream-form--problem")
 
