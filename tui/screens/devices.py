@@ -3,7 +3,7 @@ and what is known of it."""
 
 from __future__ import annotations
 
-from textual.app import ComposeResult, SystemCommand
+from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
 from textual.widgets import Button, Static
@@ -13,10 +13,10 @@ from balance.worksheet import DeviceInput, Worksheet
 from ..widgets.device_form import DeviceForm
 from ..widgets.problem_line import ProblemLine
 from ..widgets.state_form import out_of_tab_order
-from .step import StepScreen
+from .form_list import FormListScreen
 
 
-class DevicesScreen(StepScreen):
+class DevicesScreen(FormListScreen):
     STEP = "devices"
     HELP = """\
 ## Devices
@@ -46,6 +46,8 @@ typed with the compressor's sign; an efficiency in percent (`78` for
 `0.78`).
 """
 
+    NOUN, SECTION, PART, TAG, FORM = "device", "devices", "device", "D", DeviceForm
+
     BINDINGS = [
         Binding("ctrl+t", "add_device", "+Device", id="devices.add", tooltip="Add a device"),
         Binding("ctrl+g", "remove_device", "Remove", id="devices.remove",
@@ -64,66 +66,17 @@ typed with the compressor's sign; an efficiency in percent (`78` for
         names = [st.name for st in ws.streams if st.name.strip()]
         return f"streams (step 4): {', '.join(names)}" if names else "no streams yet: name them in step 4"
 
-    def _forms(self, ws: Worksheet):
-        devices = ws.devices or (DeviceInput(name="D1", kind="valve"),)
-        for i, d in enumerate(devices):
-            yield DeviceForm(d, i, id=f"device-{i}")
+    def new_item(self, name: str):
+        return DeviceInput(name=name, kind="valve")
 
-    def problem_targets(self) -> dict:
-        targets: dict = {("device", None, ""): self.query_one("#devices-problem", ProblemLine)}
-        for form in self.query(DeviceForm):
-            targets.update(form.problem_targets())
-        return targets
-
-    def collect(self, ws: Worksheet) -> Worksheet:
-        forms = self.query_one("#device-forms").query_children(DeviceForm)
-        return ws.with_(devices=tuple(f.collect() for f in forms))
-
-    async def _rebuild(self, ws: Worksheet, focus_index: int | None) -> None:
-        box = self.query_one("#device-forms")
-        self._ready = False
-        await box.remove_children()
-        await box.mount_all(list(self._forms(ws)))
-        self.app.edit(ws)
-        self._ready = True
-        self._place_problems(self.app.check)
-        forms = list(box.query_children(DeviceForm))
-        if forms and focus_index is not None:
-            target = forms[min(focus_index, len(forms) - 1)]
-            target.query_one("#name").input.focus()
-            target.scroll_visible()
+    def make_form(self, item, index: int):
+        return DeviceForm(item, index, id=f"device-{index}")
 
     async def action_add_device(self) -> None:
-        ws = self.collect(self.worksheet)
-        taken = {d.name for d in ws.devices}
-        n = len(ws.devices) + 1
-        while f"D{n}" in taken:
-            n += 1
-        ws = ws.with_(devices=ws.devices + (DeviceInput(name=f"D{n}", kind="valve"),))
-        await self._rebuild(ws, len(ws.devices) - 1)
+        await self.add_item()
 
     async def action_remove_device(self, index: int | None = None) -> None:
-        forms = list(self.query_one("#device-forms").query_children(DeviceForm))
-        if index is None:
-            focused = self.focused
-            index = next((f.index for f in forms if focused is not None and f in focused.ancestors), None)
-        if index is None:
-            self.notify("move into the device to remove first", severity="warning")
-            return
-        ws = self.collect(self.worksheet)
-        await self._rebuild(ws.with_(devices=ws.devices[:index] + ws.devices[index + 1:]), index)
-
-    async def on_button_pressed(self, event: Button.Pressed) -> None:
-        event.stop()
-        if event.button.id == "add":
-            await self.action_add_device()
-        elif event.button.id == "remove":
-            form = next(a for a in event.button.ancestors if isinstance(a, DeviceForm))
-            await self.action_remove_device(form.index)
-
-    def step_commands(self):
-        yield SystemCommand("Add a device", "Another device (ctrl+t)", self.action_add_device)
-        yield SystemCommand("Remove this device", "The device with the focus (ctrl+g)", self.action_remove_device)
+        await self.remove_item(index)
 
 
 __all__ = ["DevicesScreen"]

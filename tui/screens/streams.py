@@ -3,21 +3,21 @@ flows between the devices."""
 
 from __future__ import annotations
 
-from textual.app import ComposeResult, SystemCommand
+from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
 from textual.widgets import Button
 
-from balance.worksheet import StreamInput, Worksheet
+from balance.worksheet import StreamInput
 
 from .. import fields
 from ..widgets.problem_line import ProblemLine
 from ..widgets.state_form import out_of_tab_order
 from ..widgets.stream_form import StreamForm
-from .step import StepScreen
+from .form_list import FormListScreen
 
 
-class StreamsScreen(StepScreen):
+class StreamsScreen(FormListScreen):
     STEP = "streams"
     HELP = """\
 ## Streams
@@ -44,6 +44,8 @@ only its pressure: the valve keeps the enthalpy).
 actual volume; the same stream named as the outlet of two devices.
 """
 
+    NOUN, SECTION, PART, TAG, FORM = "stream", "streams", "stream", "S", StreamForm
+
     BINDINGS = [
         Binding("ctrl+t", "add_stream", "+Stream", id="streams.add", tooltip="Add a stream"),
         Binding("ctrl+g", "remove_stream", "Remove", id="streams.remove",
@@ -56,69 +58,20 @@ actual volume; the same stream named as the outlet of two devices.
             yield from self._forms(self.worksheet)
         yield out_of_tab_order(Button("+ stream (ctrl+t)", id="add", compact=True))
 
-    def _forms(self, ws: Worksheet):
-        streams = ws.streams or (StreamInput(name="S1"),)
-        for i, st in enumerate(streams):
-            yield StreamForm(st, i, p_atm=self._p_atm, id=f"stream-{i}")
+    def new_item(self, name: str):
+        return StreamInput(name=name)
+
+    def make_form(self, item, index: int):
+        return StreamForm(item, index, p_atm=self._p_atm, id=f"stream-{index}")
 
     def _p_atm(self) -> float:
         return fields.atmosphere(self.worksheet.heading.atmosphere)
 
-    def problem_targets(self) -> dict:
-        targets: dict = {("stream", None, ""): self.query_one("#streams-problem", ProblemLine)}
-        for form in self.query(StreamForm):
-            targets.update(form.problem_targets())
-        return targets
-
-    def collect(self, ws: Worksheet) -> Worksheet:
-        forms = self.query_one("#stream-forms").query_children(StreamForm)
-        return ws.with_(streams=tuple(f.collect() for f in forms))
-
-    async def _rebuild(self, ws: Worksheet, focus_index: int | None) -> None:
-        box = self.query_one("#stream-forms")
-        self._ready = False
-        await box.remove_children()
-        await box.mount_all(list(self._forms(ws)))
-        self.app.edit(ws)
-        self._ready = True
-        self._place_problems(self.app.check)
-        forms = list(box.query_children(StreamForm))
-        if forms and focus_index is not None:
-            target = forms[min(focus_index, len(forms) - 1)]
-            target.query_one("#name").input.focus()
-            target.scroll_visible()
-
     async def action_add_stream(self) -> None:
-        ws = self.collect(self.worksheet)
-        taken = {st.name for st in ws.streams}
-        n = len(ws.streams) + 1
-        while f"S{n}" in taken:
-            n += 1
-        ws = ws.with_(streams=ws.streams + (StreamInput(name=f"S{n}"),))
-        await self._rebuild(ws, len(ws.streams) - 1)
+        await self.add_item()
 
     async def action_remove_stream(self, index: int | None = None) -> None:
-        forms = list(self.query_one("#stream-forms").query_children(StreamForm))
-        if index is None:
-            focused = self.focused
-            index = next((f.index for f in forms if focused is not None and f in focused.ancestors), None)
-        if index is None:
-            self.notify("move into the stream to remove first", severity="warning")
-            return
-        ws = self.collect(self.worksheet)
-        await self._rebuild(ws.with_(streams=ws.streams[:index] + ws.streams[index + 1:]), index)
-
-    async def on_button_pressed(self, event: Button.Pressed) -> None:
-        event.stop()
-        if event.button.id == "add":
-            await self.action_add_stream()
-        elif event.button.id == "remove":
-            form = next(a for a in event.button.ancestors if isinstance(a, StreamForm))
-            await self.action_remove_stream(form.index)
-
-    def step_commands(self):
-        yield SystemCommand("Add a stream", "Another stream (ctrl+t)", self.action_add_stream)
-        yield SystemCommand("Remove this stream", "The stream with the focus (ctrl+g)", self.action_remove_stream)
+        await self.remove_item(index)
 
 
 __all__ = ["StreamsScreen"]
