@@ -54,3 +54,22 @@ def g(x) -> str:
         return str(x)
     s = f"{x:.6g}"
     return "0" if s in ("-0", "0") else s
+
+
+def listed(data: dict, key: str) -> list:
+    """``data[key]`` as a list (a lone value as a list of one; missing: empty)."""
+    v = data.get(key, [])
+    return v if isinstance(v, list) else [v]
+
+
+def closing(data: dict) -> list[str]:
+    """What ends every solve's text: its equations with numbers, warnings and cautions."""
+    out = ["", "Equations with numbers"]
+    out += ["  " + str(e) for e in listed(data, "equations")]
+    out += ["", "Warnings"]
+    for w in listed(data, "warnings") or ["none"]:
+        out += wrap(str(w))
+    out += ["", "Cautions"]
+    for c in listed(data, "cautions") or ["none"]:
+        out += wrap(str(c))
+    return out

@@ -14,9 +14,8 @@ also what the exported reports (:mod:`.export`) show.
 from __future__ import annotations
 
 from ..worksheet import CONVENTIONS
-from .plain import g, table, wrap
+from .plain import closing, g, listed, table, wrap
 from .solve_text_flow import solve_text as flow_text
-
 
 #: The units of a solve's text in the record, whatever units the app or the command line showed.
 UNITS = ("Units (fixed, whatever the display): T in K and °C, P in bar(a), properties per kg, energies in "
@@ -31,9 +30,7 @@ def _q(d, key):
     return x if isinstance(x, (int, float)) and not isinstance(x, bool) else None
 
 
-def _list(data: dict, key: str) -> list:
-    v = data.get(key, [])
-    return v if isinstance(v, list) else [v]
+_list = listed
 
 
 def _kJ(x, zero: bool = False) -> str:
@@ -109,14 +106,7 @@ def _closed_text(data: dict, basis: str, pins: str) -> str:
     out += table(*energy_rows(data), "llrl")
     out += ["", "Entropy balance"]
     out += table(*entropy_rows(data), "lrl")
-    out += ["", "Equations with numbers"]
-    out += ["  " + str(e) for e in _list(data, "equations")]
-    out += ["", "Warnings"]
-    for w in _list(data, "warnings") or ["none"]:
-        out += wrap(str(w))
-    out += ["", "Cautions"]
-    for c in _list(data, "cautions") or ["none"]:
-        out += wrap(str(c))
+    out += closing(data)
     return "\n".join(out)
 
 

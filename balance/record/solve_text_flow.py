@@ -18,7 +18,7 @@ propagation that found them.
 
 from __future__ import annotations
 
-from .plain import g, table, wrap
+from .plain import closing, g, listed, table, wrap
 
 #: The units of a steady-flow solve's text in the record.
 UNITS = ("Units (fixed, whatever the display): T in °C, P in bar(a), h and s per kg, rates in kg/s, mol/s "
@@ -54,9 +54,7 @@ def _table(data: dict, key: str) -> dict:
     return {str(k): (x if isinstance(x, dict) else {}) for k, x in v.items()} if isinstance(v, dict) else {}
 
 
-def _list(data: dict, key: str) -> list:
-    v = data.get(key, [])
-    return v if isinstance(v, list) else [v]
+_list = listed
 
 
 def _molar_masses(streams: dict) -> dict[str, float]:
@@ -223,12 +221,5 @@ def solve_text(data: dict, basis: str, pins: str) -> str:
     out += [""] + wrap(f"Each device's balances, recomputed from its flows after the solve (relative residuals; "
                        f"a balance closes at {CLOSES:g} or less)", "", "  ")
     out += table(*check_rows(data)) if devices else ["  (none)"]
-    out += ["", "Equations with numbers"]
-    out += ["  " + str(e) for e in _list(data, "equations")]
-    out += ["", "Warnings"]
-    for w in _list(data, "warnings") or ["none"]:
-        out += wrap(str(w))
-    out += ["", "Cautions"]
-    for c in _list(data, "cautions") or ["none"]:
-        out += wrap(str(c))
+    out += closing(data)
     return "\n".join(out)
