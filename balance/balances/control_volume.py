@@ -24,6 +24,24 @@ RESIDUAL_LIMIT = 1e-7
 #: S_gen below -this × n R is an impossible process rather than round-off.
 SGEN_TOLERANCE = 1e-7
 
+
+# -- numbers in the equations, as engineers write them --------------------------------------
+def number(x: float) -> str:
+    """A number to six digits ("0" for a negative zero)."""
+    t = f"{x:.6g}"
+    return "0" if t == "-0" else t
+
+
+def factor(x: float) -> str:
+    """A number as a factor after ×: a negative one in parentheses, as engineers write it."""
+    return f"({number(x)})" if x < 0 else number(x)
+
+
+def minus(x: float) -> str:
+    """`` - x`` written as an engineer would: `` + 5`` for x = -5."""
+    return f" + {number(-x)}" if x < 0 else f" - {number(x)}"
+
+
 #: The kinds of value a balance may solve for, and how a message names each.
 _WORDS = {
     "heat": lambda name: f"Q '{name}'",

@@ -11,6 +11,9 @@ from dataclasses import dataclass
 
 from ...units import R
 from ..control_volume import TOLERANCE
+from ..control_volume import factor as _factor
+from ..control_volume import minus as _minus
+from ..control_volume import number as _n
 
 #: The edition of the words of a solve's texts (the explanation and the cautions, which a
 #: record's solve entry holds): raise it when they change, so that replay lists an older
@@ -69,10 +72,6 @@ def _JK(x: float, ro: RoundOff | None = None) -> str:
     return f"{x:.6g} J/K"
 
 
-def _n(x: float) -> str:
-    """A number to six digits ("0" for a negative zero)."""
-    t = f"{x:.6g}"
-    return "0" if t == "-0" else t
 
 
 def _P(P: float) -> str:
@@ -81,14 +80,8 @@ def _P(P: float) -> str:
     return f"P = {_n(P)} Pa" if math.isfinite(P) else "P not determined by the model (it fixes v, not P)"
 
 
-def _factor(x: float) -> str:
-    """A number as a factor after ×: a negative one in parentheses, as engineers write it."""
-    return f"({_n(x)})" if x < 0 else _n(x)
 
 
-def _minus(x: float) -> str:
-    """`` - x`` written as an engineer would: `` + 5`` for x = -5."""
-    return f" + {_n(-x)}" if x < 0 else f" - {_n(x)}"
 
 
 def explain(r) -> list[str]:

@@ -17,6 +17,7 @@ from dataclasses import dataclass
 from ...errors import InputError
 from ...state import quantity
 from ..cautions import DISCLAIMER, LOW_TEMPERATURE_K, Caution
+from ..control_volume import factor, minus, number
 from .network import Solved
 from .problem import Problem
 from .streams import Flow
@@ -147,29 +148,31 @@ def explain(problem: Problem, solved: Solved, rows: list[Device]) -> list[str]:
                        f"{b.point.P / 1e5:.6g} bar: T = {b.point.T - 273.15:.6g} °C")
         elif d.kind in ("heater", "cooler"):
             a, b = ins[0], outs[0]
-            out.append(f"{head} Q = ṅ (h_out - h_in) = {a.n_dot:.6g} × ({b.point.h:.6g} - ({a.point.h:.6g})) "
+            out.append(f"{head} Q = ṅ (h_out - h_in) = {number(a.n_dot)} × ({number(b.point.h)}{minus(a.point.h)}) "
                        f"= {d.Q_dot / 1e3:.6g} kW")
         elif d.kind in ("compressor", "pump", "turbine", "expander"):
             a, b = ins[0], outs[0]
             iso = solved.isentropic.get(spec.name)
             h2s = iso.h if iso else math.nan
             if d.kind in ("compressor", "pump"):
-                definition = f"η_s = (h_2s - h_1)/(h_2 - h_1) = ({h2s:.6g} - ({a.point.h:.6g}))/({b.point.h:.6g} - ({a.point.h:.6g}))"
+                definition = (f"η_s = (h_2s - h_1)/(h_2 - h_1) = ({number(h2s)}{minus(a.point.h)})"
+                              f"/({number(b.point.h)}{minus(a.point.h)})")
             else:
-                definition = f"η_s = (h_1 - h_2)/(h_1 - h_2s) = ({a.point.h:.6g} - ({b.point.h:.6g}))/({a.point.h:.6g} - ({h2s:.6g}))"
+                definition = (f"η_s = (h_1 - h_2)/(h_1 - h_2s) = ({number(a.point.h)}{minus(b.point.h)})"
+                              f"/({number(a.point.h)}{minus(h2s)})")
             eta_s = (h2s - a.point.h) / (b.point.h - a.point.h) if d.kind in ("compressor", "pump") else \
                 (a.point.h - b.point.h) / (a.point.h - h2s)
             out.append(f"{head} h_2s = h(P2 = {b.point.P / 1e5:.6g} bar, s1 = {a.point.s:.6g} J/(mol K)) = "
                        f"{h2s:.6g} J/mol (T_2s = {iso.T - 273.15:.6g} °C); {definition} = {eta_s:.6g}"
                        + (" (the polytropic efficiency given: η_p = " + f"{spec.eta:.6g})" if spec.polytropic else ""))
-            out.append(f"{head} W = ṅ (h_2 - h_1) = {a.n_dot:.6g} × ({b.point.h:.6g} - ({a.point.h:.6g})) "
+            out.append(f"{head} W = ṅ (h_2 - h_1) = {number(a.n_dot)} × ({number(b.point.h)}{minus(a.point.h)}) "
                        f"= {d.W_dot / 1e3:.6g} kW (work done on the fluid)")
         elif d.kind in ("nozzle", "diffuser"):
             a, b = ins[0], outs[0]
             out.append(f"{head} V_out² = V_in² + 2 (h_in - h_out)/M: V_out = {b.velocity:.6g} m/s")
         elif d.kind == "mixer":
-            terms = " + ".join(f"{f.n_dot:.6g} × ({f.point.h:.6g})" for f in ins)
-            out.append(f"{head} ṅ_out h_out = Σ ṅ_in h_in: {outs[0].n_dot:.6g} × ({outs[0].point.h:.6g}) = {terms}")
+            terms = " + ".join(f"{number(f.n_dot)} × {factor(f.point.h)}" for f in ins)
+            out.append(f"{head} ṅ_out h_out = Σ ṅ_in h_in: {number(outs[0].n_dot)} × {factor(outs[0].point.h)} = {terms}")
         elif d.kind == "splitter":
             out.append(f"{head} every outlet in the inlet's state; rates "
                        + ", ".join(f"{f.name} {f.n_dot:.6g} mol/s" for f in outs))
@@ -228,9 +231,9 @@ def _choked(name: str, inlet, outlet) -> list[str]:
     critical = (2.0 / (k + 1.0)) ** (k / (k - 1.0))
     if outlet.P >= critical * inlet.P:
         return []
-    return [f"nozzle {name}: the outlet pressure is {outlet.P / inlet.P:.3g} of the inlet's, below the critical "
-            f"ratio (about {critical:.3g} for k = cp/cv = {k:.3g}): a converging nozzle chokes at about "
-            f"{critical * inlet.P / 1e5:.4g} bar; the exit speed shown takes a converging-diverging nozzle"]
+    return [(f"nozzle {name}: the outlet pressure is {outlet.P / inlet.P:.3g} of the inlet's, below the critical "
+             f"ratio (about {critical:.3g} for k = cp/cv = {k:.3g}): a converging nozzle chokes at about "
+             f"{critical * inlet.P / 1e5:.4g} bar; the exit speed shown takes a converging-diverging nozzle")]
 
 
 def _vapour_pressure(f: Flow) -> float | None:
