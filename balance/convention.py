@@ -41,6 +41,13 @@ class Convention:
         return CONVENTIONS[self.key]
 
     @property
+    def flow_words(self) -> str:
+        """The convention as a steady-flow balance states it (rates, no ΔU)."""
+        sign, by = ("+", "on") if self.on_system else ("-", "by")
+        return (f"heat to the fluid and work done {by} the fluid are positive: "
+                f"0 = Σ ṁ_in e_in - Σ ṁ_out e_out + Q̇ {sign} Ẇ")
+
+    @property
     def on_system(self) -> bool:
         """Whether work done on the system is the positive direction."""
         return self.key == "work-on-system"

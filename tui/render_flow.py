@@ -247,7 +247,7 @@ def flow_result_renderable(result, units: str = "metric", with_headline: bool = 
     parts: list = [title, Text("Result: " + flow_headline(result, units))] if with_headline else [title]
     basis = _Basis(result, units)
     meta = [*_fluids(result),
-            f"convention: {p.convention.words}; Q̇ is heat to the fluid",
+            f"convention: {p.convention.flow_words}, e = h + V²/2 + g z",
             (f"gauge pressures read with atmosphere = {show(p.p_atm, 'P', units)} {unit_label('P', units)}; "
              f"exergy destroyed at T0 = {show(p.T0, 'T', units)} {unit_label('T', units)}")]
     if basis.per_kg:
