@@ -9,7 +9,9 @@ efficiency from both ends — until nothing more follows. Every device is
 then checked by its three balances recomputed from the flows
 (:func:`.devices.balance_of`). What is still unknown is said per device
 ("compressor K-1: give one of the outlet pressure, the efficiency, the
-power"), as is what is given twice.
+power"), as is what is given twice. Where propagation stalls but a tear
+stream makes the worksheet square (a loop, or two devices that only their
+balances together fix), :mod:`.together` solves the rest at once.
 
 Every value in SI: rates molar [mol/s], states molar (:class:`Point`), heat
 to and work on the fluid [W].
@@ -230,7 +232,11 @@ class Network:
                 return self.solve()
         missing = self.missing()
         if missing:
-            raise SpecificationError("; ".join(missing))
+            # only where propagation stalls: a loop, or devices fixed only together
+            from . import together
+
+            if not together.solve(self):
+                raise SpecificationError("; ".join(missing))
         return self._checked()
 
     def _feeds(self):
