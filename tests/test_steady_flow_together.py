@@ -13,7 +13,7 @@ import pytest
 from scipy.optimize import root
 
 from balance.balances.steady_flow.network import DeviceSpec, Network, StreamSpec
-from balance.errors import SpecificationError
+from balance.errors import SolveError, SpecificationError
 from balance.models import make_model
 from balance.species import lookup
 
@@ -143,3 +143,12 @@ def test_a_recycle_loop_finds_its_rate_and_state_together(n2):
     for b in sol.balances.values():
         assert abs(b.mass) <= 1e-9 and abs(b.energy) <= 1e-9
         assert b.S_gen_dot is None or b.S_gen_dot > -1e-9  # a splitter makes none: zero to round-off (common practice, no source)
+
+
+def test_a_loop_closed_together_is_still_refused_where_the_exchanger_crosses(n2):
+    """An effluent asked to leave at 290 K, colder than the 300 K feed it meets at that end: the loop
+    closes, but the exchanger's temperatures cross, and that is refused as for any other result (a
+    counter-flow exchanger's hot outlet can be no colder than the cold inlet: common practice, no
+    source)."""
+    with pytest.raises(SolveError, match="E-1.*cross"):
+        feed_effluent(n2, 290.0).solve()
