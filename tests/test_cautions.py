@@ -104,6 +104,7 @@ SAMPLES = {
     "feedwater-heater-steam-mix.toml": {PRESSURE},                    # 3 barg
     "r134a-chiller-evaporator-condenser.toml": {PRESSURE},            # 10.17 bar; coldest -5 °C
     "steam-condensate-flash-drum.toml": {PRESSURE},                   # 10 barg condensate
+    "n2-feed-effluent-preheater.toml": {PRESSURE},                    # 9 barg; the loop solved together
 }
 
 

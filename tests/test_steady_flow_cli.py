@@ -18,7 +18,7 @@ from tui.cli import main
 
 STEADY = ["gas-letdown-preheated.toml", "n2-two-stage-compressor.toml", "steam-backpressure-turbine.toml",
           "feedwater-heater-steam-mix.toml", "r134a-chiller-evaporator-condenser.toml",
-          "steam-condensate-flash-drum.toml"]
+          "steam-condensate-flash-drum.toml", "n2-feed-effluent-preheater.toml"]
 BTU = 1055.056  # J (pint's Btu, ISO 31-4)
 
 

@@ -127,7 +127,9 @@ def show(value: float | None, kind: str, units: str, digits: int = 6) -> str:
     target = UNIT_SETS[units][kind]
     if value in (math.inf, -math.inf):  # a wet state's cp (the warnings say why)
         return "∞" if value > 0 else "-∞"
-    return f"{to_unit(value, SI[kind], target):.{digits}g}"
+    # to 12 digits first: the same pressure reached by two paths (9 barg read, and the flash of a
+    # stream at it) differs in its last bits, and at a half-way digit would show as 10.0132 and 10.0133
+    return f"{float(f'{to_unit(value, SI[kind], target):.12g}'):.{digits}g}"
 
 
 #: Pressure labels that say "absolute" where a caution or a headline names a pressure.
