@@ -78,12 +78,15 @@ KINDS = MappingProxyType({k.name: k for k in (
     Kind("steady-flow", "steady-flow devices",
          ("worksheet", "system", "fluid", "stream", "device"),
          "balance.balances.steady_flow"),
+    Kind("transient", "transient vessels",
+         ("worksheet", "system", "fluid", "vessel", "line", "end", "history"),
+         "balance.balances.transient"),
 )})
 
 #: Kinds a worksheet may already name, and why they cannot be balanced yet.
 RESERVED = MappingProxyType({
-    "open": "say which open system: 'steady-flow' for streams through devices at steady state "
-            "(a vessel filled or emptied over time is not available yet)",
+    "open": "say which open system: 'steady-flow' for streams through devices at steady state, "
+            "'transient' for a vessel filled, vented or equalised over time",
 })
 
 
@@ -98,7 +101,7 @@ def kind_of(name: str, field: str = "system.kind") -> Kind:
     if name in RESERVED:
         raise InputError(field, RESERVED[name])
     got = repr(name) if len(name) <= 60 else f"{name[:60]!r}... ({len(name)} characters)"
-    raise InputError(field, f"expected {' or '.join(repr(k) for k in KINDS)}; got {got}")
+    raise InputError(field, f"expected one of {', '.join(repr(k) for k in KINDS)}; got {got}")
 
 
 def known(name: str) -> bool:

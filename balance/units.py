@@ -96,6 +96,9 @@ DIMENSIONS: dict[str, Dimension] = {
         Dimension("velocity", "m/s", "a velocity"),
         Dimension("area", "m**2", "an area"),
         Dimension("length", "m", "a length"),
+        Dimension("time", "s", "a time"),
+        Dimension("heat_transfer_coefficient", "W/(m**2*K)", "a heat-transfer coefficient"),
+        Dimension("heat_flux", "W/m**2", "a heat flux"),
     )
 }
 
@@ -324,6 +327,9 @@ def _example(dimension: str) -> str:
         "velocity": "20 m/s",
         "area": "0.05 m2",
         "length": "3 m",
+        "time": "15 min",
+        "heat_transfer_coefficient": "10 W/(m2 K)",
+        "heat_flux": "50 kW/m2",
     }.get(dimension, "1")
 
 

@@ -26,6 +26,18 @@ compartments, terms and process:
 ``[[device]]``   name, kind, inlets, outlets, and what the kind takes: Q, W, eta, eta_poly, dP,
                  dP_cold, T_boundary, fractions, arrangement
 
+and for a transient worksheet (``[system] kind = "transient"``), a vessel filled, vented,
+blown down or equalised over time:
+
+``[[vessel]]``   name, V, its state at the start (two of T, P, v, rho, or ``empty = true``),
+                 heat (adiabatic, isothermal, given, wall) and what that takes (Q; wall_mass,
+                 wall_cp, wall_area, h_inside, height, h_outside, T_ambient, fire_flux)
+``[[line]]``     name, from (``supply`` or a vessel), to (a vessel or ``outside``), the supply's
+                 T and P, back (the pressure outside), a restriction (orifice with Cd, or a
+                 valve's Cv or Kv) or a given mass rate
+``[end]``        what ends it: one of P, m, t, ``balanced = true``; the vessel it watches
+``[history]``    the integrator's settings: method, rtol, points, t_max
+
 A value of ``"?"`` marks an unknown to be solved for.
 """
 
@@ -52,6 +64,10 @@ SECTIONS = {
     "process": "process",
     "stream": "streams",
     "device": "devices",
+    "vessel": "vessels",
+    "line": "lines",
+    "end": "end",
+    "history": "history",
 }
 
 #: Properties a state may be given by (and their accepted spellings).
@@ -73,6 +89,17 @@ DEVICE_KINDS = ("valve", "heater", "cooler", "compressor", "pump", "turbine", "e
                 "mixer", "splitter", "exchanger", "separator")
 #: A device's own values (text as typed), besides its name, kind, inlets and outlets.
 DEVICE_VALUES = ("Q", "W", "eta", "eta_poly", "dP", "dP_cold", "T_boundary", "arrangement")
+#: How a transient vessel's gas exchanges heat.
+VESSEL_HEAT = ("adiabatic", "isothermal", "given", "wall")
+#: A vessel's own values (text as typed), besides its name, volume, starting state and heat.
+VESSEL_VALUES = ("Q", "wall_mass", "wall_cp", "wall_area", "h_inside", "height", "h_outside", "T_ambient",
+                 "fire_flux")
+#: A line's own values (text as typed), besides its name, ends and the supply's state.
+LINE_VALUES = ("back", "orifice", "Cd", "Cv", "Kv", "rate")
+#: What may end a transient: a pressure, a mass, a time, or the flow stopping.
+END_KEYS = ("P", "m", "t")
+#: The integrator's settings a worksheet may set.
+HISTORY_KEYS = ("method", "rtol", "points", "t_max")
 
 
 @dataclass(frozen=True)
@@ -214,6 +241,51 @@ class DeviceInput:
 
 
 @dataclass(frozen=True)
+class VesselInput:
+    """One vessel of a transient worksheet, as typed."""
+
+    name: str = ""
+    V: str = ""
+    props: dict[str, str] = field(default_factory=dict)
+    """its state at the start: T, P, v, rho -> text"""
+    empty: bool = False
+    """evacuated at the start"""
+    heat: str = "adiabatic"
+    """one of VESSEL_HEAT"""
+    values: dict[str, str] = field(default_factory=dict)
+    """Q (heat = 'given'), the wall's keys (heat = 'wall') -> text"""
+    Q_points: tuple[str, ...] = ()
+    """a given heat rate in time, as 'time: rate' texts (in place of one Q)"""
+
+
+@dataclass(frozen=True)
+class LineInput:
+    """One line of a transient worksheet: where gas comes from and goes to, and what restricts it."""
+
+    name: str = ""
+    source: str = ""
+    """'supply' or a vessel's name (the TOML key is ``from``)"""
+    target: str = ""
+    """a vessel's name or 'outside' (the TOML key is ``to``)"""
+    props: dict[str, str] = field(default_factory=dict)
+    """the supply's state: T, P (from = 'supply')"""
+    values: dict[str, str] = field(default_factory=dict)
+    """back, orifice, Cd, Cv, Kv, rate -> text"""
+
+
+@dataclass(frozen=True)
+class EndInput:
+    """What ends a transient, as typed."""
+
+    values: dict[str, str] = field(default_factory=dict)
+    """one of P, m, t -> text"""
+    balanced: bool = False
+    """until the flow stops (the pressures across the line meet)"""
+    vessel: str = ""
+    """the vessel the end condition watches (blank: the first)"""
+
+
+@dataclass(frozen=True)
 class Worksheet:
     """A whole worksheet, as typed (a closed system's sections, or a steady-flow one's)."""
 
@@ -227,6 +299,11 @@ class Worksheet:
     process: Process = field(default_factory=Process)
     streams: tuple[StreamInput, ...] = ()
     devices: tuple[DeviceInput, ...] = ()
+    vessels: tuple[VesselInput, ...] = ()
+    lines: tuple[LineInput, ...] = ()
+    end: EndInput = field(default_factory=EndInput)
+    history: dict[str, str] = field(default_factory=dict)
+    """the integrator's settings (HISTORY_KEYS -> text)"""
 
     # -- conversion -----------------------------------------------------------
     def to_dict(self) -> dict:
@@ -241,7 +318,7 @@ class Worksheet:
             fluid["overrides"] = dict(self.fluid.overrides)
         out["fluid"] = {k: v for k, v in fluid.items() if v not in ("", {})}
         out["system"] = {k: v for k, v in asdict(self.system).items() if v != ""}
-        flow = self.system.kind == "steady-flow"  # no compartments unless some were typed
+        flow = self.system.kind != "closed"  # no compartments unless some were typed
         if self.initial or not flow:
             out["initial"] = [_state_dict(s) for s in self.initial]
         if self.final != StateInput(name="final") or not flow:
@@ -260,6 +337,15 @@ class Worksheet:
             out["stream"] = [_stream_dict(st) for st in self.streams]
         if self.devices:
             out["device"] = [_device_dict(d) for d in self.devices]
+        if self.vessels:
+            out["vessel"] = [_vessel_dict(v) for v in self.vessels]
+        if self.lines:
+            out["line"] = [_line_dict(line) for line in self.lines]
+        end = _end_dict(self.end)
+        if end:
+            out["end"] = end
+        if self.history:
+            out["history"] = dict(self.history)
         return out
 
     def to_toml(self) -> str:
@@ -357,24 +443,35 @@ class Worksheet:
         )
         streams = tuple(_stream(t, f"stream[{i + 1}]") for i, t in enumerate(_array(data, "stream")))
         devices = tuple(_device(t, f"device[{i + 1}]") for i, t in enumerate(_array(data, "device")))
-        return cls(heading, fluid, system, initial, final, tuple(heat), tuple(work), process, streams, devices)
+        vessels = tuple(_vessel(t, f"vessel[{i + 1}]") for i, t in enumerate(_array(data, "vessel")))
+        lines = tuple(_line(t, f"line[{i + 1}]") for i, t in enumerate(_array(data, "line")))
+        end = _end(_table(data, "end"))
+        hist = _table(data, "history")
+        _only(hist, HISTORY_KEYS, "history")
+        history = {k: _text(hist, k, "history") for k in HISTORY_KEYS if k in hist}
+        return cls(heading, fluid, system, initial, final, tuple(heat), tuple(work), process, streams, devices,
+                   vessels, lines, end, history)
 
     def with_(self, **changes) -> "Worksheet":
         """A copy with some sections replaced (the worksheet is immutable)."""
         return replace(self, **changes)
 
 
+#: The sections that hold a list of named items.
+LISTS = ("initial", "heat", "work", "stream", "device", "vessel", "line")
+
+
 def place(ws: "Worksheet", field: str, message: str) -> FieldProblem:
     """The problem a message names ``field`` for, placed in ``ws`` (``initial 'tank'.T`` is the
     compartment named 'tank', key T; ``heat[2]`` the second heat term; ``final.P``; ``stream
     'feed'.rate`` and ``device 'K-1'.eta`` the stream and the device of those names)."""
-    for part in ("initial", "heat", "work", "stream", "device"):
+    for part in LISTS:
         items = getattr(ws, SECTIONS[part])
         for i, item in enumerate(items):
             for prefix in (f"{part} '{item.name}'", f"{part}[{i + 1}]"):
                 if field == prefix or field.startswith(prefix + "."):
                     return FieldProblem(field, message, part, i, field[len(prefix) + 1:])
-    m = re.match(r"(initial|heat|work|stream|device)\[(\d+)\](?:\.(.*))?$", field)
+    m = re.match(rf"({'|'.join(LISTS)})\[(\d+)\](?:\.(.*))?$", field)
     if m:  # a compartment or term the worksheet could not be read far enough to hold
         return FieldProblem(field, message, m.group(1), int(m.group(2)) - 1, m.group(3) or "")
     head, _, key = field.partition(".")
@@ -490,6 +587,81 @@ def _device(t: dict, where: str) -> DeviceInput:
                        outlets=tuple(_text_list(t, "outlets", where)),
                        values={k: _text(t, k, where) for k in DEVICE_VALUES if k in t},
                        fractions=tuple(_text_list({"fractions": fractions}, "fractions", where)))
+
+
+def _flag(t: dict, key: str, where: str) -> bool:
+    value = t.get(key, False)
+    if not isinstance(value, bool):
+        raise InputError(f"{where}.{key}", f"must be true or false; got {shown(str(value))}")
+    return value
+
+
+_VESSEL_STATE = ("T", "P", "v", "rho")
+
+
+def _vessel_dict(v: VesselInput) -> dict:
+    d: dict = {"name": v.name}
+    if v.V:
+        d["V"] = v.V
+    if v.empty:
+        d["empty"] = True
+    d.update(v.props)
+    d["heat"] = v.heat
+    d.update(v.values)
+    if v.Q_points:
+        d["Q"] = list(v.Q_points)
+    return d
+
+
+def _vessel(t: dict, where: str) -> VesselInput:
+    _only(t, ("name", "V", "empty", *_VESSEL_STATE, "heat", *VESSEL_VALUES), where)
+    name = _text(t, "name", where)
+    if not name:
+        raise InputError(f"{where}.name", "give the vessel a name, e.g. 'V-12' (lines join vessels by name)")
+    where = f"vessel '{name}'"
+    heat = _text(t, "heat", where) or "adiabatic"
+    if heat not in VESSEL_HEAT:
+        raise InputError(f"{where}.heat", f"expected one of {', '.join(VESSEL_HEAT)}; got {shown(heat)}")
+    points: tuple[str, ...] = ()
+    values = {k: _text(t, k, where) for k in VESSEL_VALUES if k in t and not isinstance(t[k], list)}
+    if isinstance(t.get("Q"), list):
+        points = tuple(_text_list(t, "Q", where))
+    return VesselInput(name=name, V=_text(t, "V", where), empty=_flag(t, "empty", where),
+                       props={k: _text(t, k, where) for k in _VESSEL_STATE if k in t}, heat=heat,
+                       values=values, Q_points=points)
+
+
+def _line_dict(line: LineInput) -> dict:
+    d: dict = {"name": line.name, "from": line.source, "to": line.target}
+    d.update(line.props)
+    d.update(line.values)
+    return d
+
+
+def _line(t: dict, where: str) -> LineInput:
+    _only(t, ("name", "from", "to", "T", "P", *LINE_VALUES), where)
+    name = _text(t, "name", where)
+    if not name:
+        raise InputError(f"{where}.name", "give the line a name, e.g. 'fill line'")
+    where = f"line '{name}'"
+    return LineInput(name=name, source=_text(t, "from", where), target=_text(t, "to", where),
+                     props={k: _text(t, k, where) for k in ("T", "P") if k in t},
+                     values={k: _text(t, k, where) for k in LINE_VALUES if k in t})
+
+
+def _end_dict(end: EndInput) -> dict:
+    d: dict = dict(end.values)
+    if end.balanced:
+        d["balanced"] = True
+    if end.vessel:
+        d["vessel"] = end.vessel
+    return d
+
+
+def _end(t: dict) -> EndInput:
+    _only(t, (*END_KEYS, "balanced", "vessel"), "end")
+    return EndInput(values={k: _text(t, k, "end") for k in END_KEYS if k in t},
+                    balanced=_flag(t, "balanced", "end"), vessel=_text(t, "vessel", "end"))
 
 
 def _only(table: dict, allowed, where: str) -> None:

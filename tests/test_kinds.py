@@ -50,7 +50,7 @@ def test_a_reserved_kind_is_read_as_typed_but_not_balanced(name):
 def test_an_unknown_kind_is_refused_when_read():
     with pytest.raises(InputError) as caught:
         Worksheet.from_dict({"system": {"kind": "semi-open"}})
-    assert str(caught.value) == "system.kind: expected 'closed' or 'steady-flow'; got 'semi-open'"
+    assert str(caught.value) == "system.kind: expected one of 'closed', 'steady-flow', 'transient'; got 'semi-open'"
 
 
 @pytest.mark.parametrize("name", list(KINDS))

@@ -58,10 +58,14 @@ SECTION_KINDS = {
     "process": "constraints",
     "stream": "streams",
     "device": "devices",
+    "vessel": "vessels",
+    "line": "lines",
+    "end": "end condition",
+    "history": "integrator settings",
 }
 KIND_SECTIONS = {kind: section for section, kind in SECTION_KINDS.items()}
 #: Sections whose value is a list of tables (``[[initial]]``); the rest are one table.
-LIST_SECTIONS = ("initial", "heat", "work", "stream", "device")
+LIST_SECTIONS = ("initial", "heat", "work", "stream", "device", "vessel", "line")
 
 OPENING, SOLVE, COMMENT, RESOLUTION, SIGN_OFF, NOTE = (
     "opening", "solve", "comment", "resolution", "sign-off", "revision note",
