@@ -62,8 +62,17 @@ def _atmosphere(text: str) -> float:
 
 def _given_states(ws: Worksheet):
     """Each state the worksheet gives (label, properties, atmosphere): a closed system's
-    compartments and final state, a steady-flow worksheet's streams on the worksheet's fluid."""
+    compartments and final state, a steady-flow worksheet's streams on the worksheet's fluid, a
+    transient worksheet's vessels at the start and its supplies."""
     p_atm = _atmosphere(ws.heading.atmosphere)
+    if ws.system.kind == "transient":
+        for v in ws.vessels:
+            if not v.empty:
+                yield f"vessel '{v.name}'", v.props, p_atm
+        for line in ws.lines:
+            if line.source == "supply":
+                yield f"line '{line.name}' supply", line.props, p_atm
+        return
     if ws.system.kind == "steady-flow":
         for i, st in enumerate(ws.streams):
             if not (st.species or st.model):  # a stream of its own fluid is not judged by this one
@@ -122,7 +131,8 @@ def advise(ws: Worksheet) -> Advice:
         near_critical |= abs(Tr - 1.0) < NEAR_CRITICAL_TR and Pr > NEAR_CRITICAL_PR
         z = Z_real if Z_real is not None else point.Z
         real_gas |= not (Pr < IDEAL_PR or (Tr > IDEAL_TR and abs(z - 1.0) < IDEAL_DZ))
-    where = "a stream (step 4)" if ws.system.kind == "steady-flow" else "a state (step 4)"
+    where = {"steady-flow": "a stream (step 4)", "transient": "a vessel (step 4) or a supply (step 5)"}.get(
+        ws.system.kind, "a state (step 4)")
     text, ok = _recommend(name, species, wet, liquid, near_critical, real_gas, bool(hints), where)
     return Advice(name, tuple(hints), tuple(problems), text, ok)
 

@@ -161,14 +161,8 @@ def integrate(p: Problem, rtol: float | None = None) -> History:
     for v in p.vessels:
         if v.n0 > 0:
             n, T = v.n0, v.T0
-        else:  # a trace of gas at the supply's temperature
-            T_s, v_s = next((supplies[ln.name][0], supplies[ln.name][1]) for ln in p.lines
-                            if ln.target == v.name and ln.supply) if any(
-                ln.target == v.name and ln.supply for ln in p.lines) else (supply_T or v.T0, None)
-            if v_s is None:  # filled from the other vessel
-                src = next(vessels[ln.source] for ln in p.lines if ln.target == v.name)
-                v_s, T_s = src.V / src.n0, src.T0
-            n, T = TRACE * v.V / v_s, T_s
+        else:
+            n, T = _trace(p, v, vessels, supplies, tv)
         y0[L.n[v.name]], y0[L.T[v.name]] = n, T
         n_ref[v.name] = max(n, v.V / _smallest_v(p, supplies))
         if v.wall is not None:
@@ -328,6 +322,31 @@ def integrate(p: Problem, rtol: float | None = None) -> History:
 
 class _Stopped(Exception):
     pass
+
+
+def _trace(p: Problem, v, vessels, supplies, tv) -> tuple[float, float]:
+    """The trace of gas an evacuated vessel starts from: TRACE of what its source would put in it,
+    at the temperature the first gas in reaches (u = h of the source: the uniform-state fill at
+    n -> 0; an isothermal vessel's own temperature), so the integrator starts where the gas already
+    is and not on a jump."""
+    line = next(ln for ln in p.lines if ln.target == v.name)
+    if line.supply:
+        _, v_src, _, h_src, _ = supplies[line.name]
+        T = line.supply[0]
+    else:
+        src = vessels[line.source]
+        v_src, T = src.V / src.n0, src.T0
+        h_src = tv(T, v_src)[2]
+    vm = v_src / TRACE
+    if v.heat == "isothermal":  # held at its own temperature from the first gas in
+        return v.V / vm, v.T0
+    for _ in range(60):  # Newton on u(T, v) = h_src, du/dT = cv
+        _, u, _, _, cv, _, _ = tv(T, vm)
+        step = (u - h_src) / cv
+        T = max(T - step, 0.5 * T)
+        if abs(step) < 1e-12 * T:
+            break
+    return v.V / vm, T
 
 
 def _smallest_v(p: Problem, supplies) -> float:
