@@ -29,6 +29,8 @@ HEADLESS = [
     "balance.balances.control_volume",
     "balance.balances.cautions",
     "balance.balances.closed",
+    "balance.balances.transient",
+    "balance.balances.transient.result",
     "balance.api",
     "balance.adequacy",
     "balance.diagrams",

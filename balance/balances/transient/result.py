@@ -219,6 +219,12 @@ def _warnings(p: Problem, end: EndState | None, h: History | None) -> list[str]:
             if (name, w) not in seen:
                 seen.add((name, w))
                 out.append(f"vessel '{name}' at the end: {w}")
+    if end is not None and end.bound and h is not None:
+        for v in end.vessels:
+            if v.end.T < LOW_TEMPERATURE_K <= h.minimum("T").value:
+                out.append(f"vessel '{v.name}': without its wall's heat (the adiabatic bound) the gas would end at "
+                           f"{v.end.T - 273.15:.1f} °C; the history with the wall stays above "
+                           f"{LOW_TEMPERATURE_K - 273.15:.0f} °C")
     for v in p.vessels:
         if v.heat == "wall" and v.wall.fire_flux > 0:
             out.append(f"vessel '{v.name}': the fire heat flux {v.wall.fire_flux / 1e3:.4g} kW/m2 is as given; take "
@@ -249,6 +255,8 @@ def _cautions(p: Problem, end: EndState | None, h: History | None) -> list[Cauti
     if end is not None:
         for v in end.vessels:
             P_max = max(P_max, v.end.P, v.start.P if v.start else 0.0)
+            if end.bound and h is not None:  # the history has the wall's heat; the bound is said apart
+                continue
             if v.end.T < T_min:
                 T_min, where_min = v.end.T, f"the gas left in '{v.name}' at the end"
             T_max = max(T_max, v.end.T)
