@@ -26,12 +26,14 @@ DISCLAIMER = "checked by a competent, licensed engineer"
 PRESSURE = "confirm the design pressure"
 LOW_TEMPERATURE = "minimum design metal temperature"
 ABOVE_INITIAL = "above every initial pressure"
+DEPRESSURING = "depressuring standards"
+FILL_HEATING = "Composite (type III and IV) tanks"
 
 
 def kinds(cautions) -> set[str]:
     """Which of the cautions above a result shows; each at most once."""
     found = set()
-    for phrase in (DISCLAIMER, PRESSURE, LOW_TEMPERATURE, ABOVE_INITIAL):
+    for phrase in (DISCLAIMER, PRESSURE, LOW_TEMPERATURE, ABOVE_INITIAL, DEPRESSURING, FILL_HEATING):
         hits = [str(c) for c in cautions if phrase in str(c)]
         assert len(hits) <= 1, hits
         if hits:
@@ -105,6 +107,11 @@ SAMPLES = {
     "r134a-chiller-evaporator-condenser.toml": {PRESSURE},            # 10.17 bar; coldest -5 °C
     "steam-condensate-flash-drum.toml": {PRESSURE},                   # 10 barg condensate
     "n2-feed-effluent-preheater.toml": {PRESSURE},                    # 9 barg; the loop solved together
+    # transient: a vent's depressuring time, a fill's heating, the coldest gas or wall in the history
+    "argon-buffer-pot-fill.toml": {PRESSURE, FILL_HEATING},           # 12 barg header; the pot peaks at 207 °C
+    "h2-buffer-blowdown.toml": {PRESSURE, LOW_TEMPERATURE, DEPRESSURING},  # adiabatic: the gas to -145 °C
+    "co2-receiver-flare-depressure.toml": {PRESSURE, DEPRESSURING},   # the shell keeps the gas above -10 °C
+    "n2-receivers-equalise.toml": {PRESSURE},                         # 60 barg; R-41 to -10.5 °C, R-42 to 92 °C
 }
 
 

@@ -244,20 +244,12 @@ def _cautions(p: Problem, end: EndState | None, h: History | None) -> list[Cauti
         e = h.minimum("T")
         T_min, where_min = e.value, f"the gas in '{e.where}' at t = {e.t:.4g} s"
         T_max = h.maximum("T").value
-        wall = h.minimum("T_wall")
-        if wall is not None and wall.value < LOW_TEMPERATURE_K:
-            out.append(Caution(
-                "low temperature",
-                f"The wall of '{wall.where}' reaches {{}} at t = {wall.t:.4g} s, below {{}}, the usual limit for "
-                "carbon-steel equipment without impact testing (common practice): brittle fracture is possible; "
-                f"check the minimum design metal temperature of the vessel and its nozzles. {_DEFER}",
-                (("T", wall.value), ("T limit", LOW_TEMPERATURE_K))))
     if end is not None:
         for v in end.vessels:
             P_max = max(P_max, v.end.P, v.start.P if v.start else 0.0)
             if end.bound and h is not None:  # the history has the wall's heat; the bound is said apart
                 continue
-            if v.end.T < T_min:
+            if v.end.T < T_min - 0.01:  # the history's own words where it says the same
                 T_min, where_min = v.end.T, f"the gas left in '{v.name}' at the end"
             T_max = max(T_max, v.end.T)
     for line in p.lines:
@@ -266,15 +258,21 @@ def _cautions(p: Problem, end: EndState | None, h: History | None) -> list[Cauti
     if P_max > p.p_atm + 0.5e5:
         out.append(Caution("pressure", "Pressures up to {} occur: confirm the design pressure of every vessel and "
                                        "line and the set pressure of each relief device.", (("P", P_max),)))
-    if T_min < LOW_TEMPERATURE_K:
-        metal = "" if h is not None and h.minimum("T_wall") is not None else (
-            " With no wall modelled, take the gas's temperature as the metal's (a bound).")
+    wall = h.minimum("T_wall") if h is not None else None
+    cold_wall = wall is not None and wall.value < LOW_TEMPERATURE_K
+    if T_min < LOW_TEMPERATURE_K or cold_wall:
+        values: list[tuple[str, float]] = [("T", T_min), ("T limit", LOW_TEMPERATURE_K)]
+        if wall is not None:
+            metal = f" The wall of '{wall.where}' reaches {{}} at t = {wall.t:.4g} s."
+            values.append(("T", wall.value))
+        else:
+            metal = " With no wall modelled, take the gas's temperature as the metal's (a bound)."
         out.append(Caution(
             "low temperature",
-            f"A temperature of {{}} occurs ({where_min}), below {{}}, the usual limit for carbon-steel equipment "
-            f"without impact testing (common practice): brittle fracture is possible; check the minimum design "
-            f"metal temperature of the vessel, its nozzles and the line downstream.{metal} {_DEFER}",
-            (("T", T_min), ("T limit", LOW_TEMPERATURE_K))))
+            f"A gas temperature of {{}} occurs ({where_min}); below {{}}, the usual limit for carbon-steel "
+            f"equipment without impact testing (common practice), brittle fracture is possible.{metal} Check the "
+            f"minimum design metal temperature of the vessel, its nozzles and the line downstream. {_DEFER}",
+            tuple(values)))
     case = case_of(p)[0]
     if case == "vent" or any(line.target == OUTSIDE for line in p.lines):
         if h is not None:
