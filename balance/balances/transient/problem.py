@@ -261,7 +261,7 @@ def _vessel(v, model, p_atm: float, supply_T: float | None) -> VesselSpec:
         stray.append("Q")
     if stray:
         raise InputError(f"{where}.{stray[0]}", f"is not used with heat = {heat!r}; "
-                                                f"{'Q is for given' if stray[0] == 'Q' else 'the wall keys are for wall'}")
+                                                f"{'Q is for heat = given' if stray[0] == 'Q' else 'the wall keys are for heat = wall'}")
     return VesselSpec(v.name, V, n0, T0, heat, points, wall, v.empty)
 
 
@@ -415,10 +415,38 @@ def _check_whole(p: Problem) -> None:
     if len(p.vessels) == 2 and not any(line.source in p.vessel_names() and line.target in p.vessel_names()
                                        for line in p.lines):
         raise InputError("line", "two vessels are balanced here when a line joins them (equalisation)")
+    if p.end.kind in ("P", "m"):
+        _check_reach(p)
+
+
+def _check_reach(p: Problem) -> None:
+    """An end pressure or mass the watched vessel can reach: between where it starts and where its
+    lines would take it (a supply's pressure, the back pressure, the other vessel's)."""
+    v = p.vessel(p.end.vessel)
+    start = _start_pressure(p, v)
+    toward = []
+    for line in p.lines:
+        if line.target == v.name:
+            toward.append(line.supply[1] if line.supply else _start_pressure(p, p.vessel(line.source)))
+        elif line.source == v.name:
+            toward.append(line.back if line.target == OUTSIDE else _start_pressure(p, p.vessel(line.target)))
+    unit = lambda P: f"{P / 1e5:.6g} bar(a)"  # noqa: E731
     if p.end.kind == "P":
-        v = p.vessel(p.end.vessel)
-        if not v.empty and math.isclose(p.end.value, _start_pressure(p, v), rel_tol=1e-9):
+        P = p.end.value
+        if math.isclose(P, start, rel_tol=1e-9):
             raise InputError("end.P", f"is the pressure {v.name!r} starts at: nothing would move")
+        lo, hi = min(start, *toward), max(start, *toward)
+        if not lo < P < hi:
+            raise InputError("end.P", f"{v.name!r} starts at {unit(start)} and its lines take it toward "
+                                      f"{' and '.join(unit(x) for x in toward)}: an end pressure between "
+                                      f"{unit(lo)} and {unit(hi)} can be reached; got {p.end.text!r}")
+    else:
+        m0 = v.n0 * p.M
+        fills = any(line.target == v.name for line in p.lines)
+        empties = any(line.source == v.name for line in p.lines)
+        if (p.end.value > m0 and not fills) or (p.end.value < m0 and not empties):
+            raise InputError("end.m", f"{v.name!r} starts with {m0:.6g} kg and its lines only "
+                                      f"{'empty' if empties else 'fill'} it; got {p.end.text!r}")
 
 
 def _start_pressure(p: Problem, v: VesselSpec) -> float:
