@@ -444,6 +444,8 @@ def _check_reach(p: Problem) -> None:
         m0 = v.n0 * p.M
         fills = any(line.target == v.name for line in p.lines)
         empties = any(line.source == v.name for line in p.lines)
+        if math.isclose(p.end.value, m0, rel_tol=1e-9, abs_tol=1e-12):
+            raise InputError("end.m", f"is the mass {v.name!r} starts with ({m0:.6g} kg): nothing would move")
         if (p.end.value > m0 and not fills) or (p.end.value < m0 and not empties):
             raise InputError("end.m", f"{v.name!r} starts with {m0:.6g} kg and its lines only "
                                       f"{'empty' if empties else 'fill'} it; got {p.end.text!r}")
