@@ -51,6 +51,29 @@ def cmd_solve(args) -> int:
     from balance import api
 
     result = api.solve(Path(args.file))
+    if args.csv or args.plot:
+        if result.problem.worksheet.system.kind != "transient" or getattr(result, "history", None) is None:
+            why = ("a history in time is a transient worksheet's" if result.problem.worksheet.system.kind != "transient"
+                   else f"this transient has no history: {result.history_why}")
+            return _fail(f"--csv and --plot draw a history: {why}", EXIT_INPUT)
+        if args.units == "typed":
+            from .display import use_typed
+
+            use_typed(result.problem.worksheet)
+        from .render_transient import history_csv, history_plot
+
+        if args.csv:
+            try:
+                Path(args.csv).write_text(history_csv(result, args.units), encoding="utf-8")
+            except OSError as exc:
+                return _fail(f"{args.csv}: cannot be written: {exc.strerror}", EXIT_INPUT)
+            print(f"history: {len(result.history.t)} rows written to {args.csv}", file=sys.stderr)
+        if args.plot:
+            import shutil
+
+            print(history_plot(result, args.units, width=min(shutil.get_terminal_size().columns, 120)))
+        if not args.json:
+            return EXIT_OK
     if args.json:
         print(json.dumps(api.as_json(result), indent=2, ensure_ascii=False))
     else:
@@ -210,7 +233,8 @@ def build_parser():
 
     parser = argparse.ArgumentParser(
         prog="joulebook",
-        description="Checked energy-balance calculations for closed systems and steady-flow devices.",
+        description="Checked energy-balance calculations for closed systems, steady-flow devices and transient "
+                    "vessels.",
     )
     parser.add_argument("--version", action="version", version=f"joulebook {__version__}")
     sub = parser.add_subparsers(dest="command")
@@ -223,6 +247,8 @@ def build_parser():
     p.add_argument("file", help="worksheet (TOML)")
     p.add_argument("--json", action="store_true", help="machine-readable output (SI units)")
     p.add_argument("--units", **solved_units)
+    p.add_argument("--csv", metavar="FILE", help="a transient's whole history as CSV (units in the header)")
+    p.add_argument("--plot", action="store_true", help="draw a transient's temperatures and pressure against time")
     p.set_defaults(func=cmd_solve)
 
     p = sub.add_parser("check", help="validate a worksheet and count degrees of freedom (no solve)")

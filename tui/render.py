@@ -167,6 +167,8 @@ FACES = {
     "closed": ("tui.render:closed_result_renderable", "tui.render:closed_headline", "tui.render:closed_dof_renderable"),
     "steady-flow": ("tui.render_flow:flow_result_renderable", "tui.render_flow:flow_headline",
                     "tui.render_flow:flow_dof_renderable"),
+    "transient": ("tui.render_transient:transient_result_renderable", "tui.render_transient:transient_headline",
+                  "tui.render_transient:transient_dof_renderable"),
 }
 
 
