@@ -183,8 +183,8 @@ def test_a_stream_line_changed_after_filing_breaks_the_chain(letdown, capsys):
 def test_a_resealed_solve_of_an_unknown_kind_is_refused_naming_its_line(letdown):
     raw = letdown.path.read_bytes()
     at = raw.rindex(b': kind = "steady-flow"')  # the solve's, after the system boundary's
-    forged = reseal(raw[:at] + b': kind = "transient"' + raw[at + len(b': kind = "steady-flow"'):])
-    with pytest.raises(InputError, match="unknown kind of balance 'transient'"):
+    forged = reseal(raw[:at] + b': kind = "semi-open"' + raw[at + len(b': kind = "steady-flow"'):])
+    with pytest.raises(InputError, match="unknown kind of balance 'semi-open'"):
         parse(forged, "calc.jbk")
 
 

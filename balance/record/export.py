@@ -154,10 +154,35 @@ def _words(d: dict) -> list[Block]:
             ("h3", "Cautions"), ("list", [str(x) for x in _as_list(d.get("cautions"))] or ["none"])]
 
 
+def _transient_results(d: dict, seq: int, rev: int, later: list[int]) -> list[Block]:
+    """A transient's results: the end state without time, the history's extremes, each vessel at
+    the history's end with its closure, the resampled history, equations, warnings, cautions."""
+    from . import solve_text_transient as tr
+
+    out: list[Block] = [("p", f"From the solve in entry {seq} (revision {rev}), with joulebook "
+                              f"{d.get('joulebook', '?')}: {d.get('species', '?')}, {d.get('model', '?')}; "
+                              f"{d.get('end', '')}. {tr.UNITS}")]
+    out += _changed_after(later)
+    out.append(("h3", "End state without time"))
+    rows = tr.end_state_rows(d)
+    out.append(("table", *rows) if rows is not None else ("p", f"none: {d.get('end_state_why', '?')}"))
+    h = d.get("history")
+    out.append(("h3", "History in time"))
+    if not isinstance(h, dict):
+        out.append(("p", f"none: {d.get('history_why', '?')}"))
+    else:
+        out.append(("p", f"{h.get('settings', '?')}; {h.get('stop', '?')}"))
+        for block in (tr.extreme_rows(d), tr.vessel_end_rows(d), tr.history_table(d)):
+            if block is not None:
+                out.append(("table", *block))
+    return out + _words(d)
+
+
 #: A solve's results as blocks, by the kind of balance its data name (the reader refuses another).
-_RESULTS = {"closed": _closed_results, "steady-flow": _flow_results}
+_RESULTS = {"closed": _closed_results, "steady-flow": _flow_results, "transient": _transient_results}
 #: A report's title where the worksheet has none, by its kind of balance.
-TITLES = {"closed": "Closed-system energy balance", "steady-flow": "Steady-flow energy balance"}
+TITLES = {"closed": "Closed-system energy balance", "steady-flow": "Steady-flow energy balance",
+          "transient": "Transient vessel balance"}
 
 
 def _broken(v) -> str:

@@ -45,6 +45,11 @@ RESIDUAL_LIMIT = 1e-7
 #: A steady-flow device's balances recomputed from its flows: judged as the residual is.
 DEVICE_RESIDUALS = ("residual_mass", "residual_energy")
 DEFAULT_TOLERANCE = 1e-9
+#: A transient's history (its end, its extremes and when, its rows) is an integration to a relative
+#: tolerance of 1e-8: it is compared to this (relative; an entropy against 1 J/K at least), and
+#: its energy closure judged below CLOSURE_LIMIT rather than compared.
+HISTORY_TOLERANCE = 1e-6
+CLOSURE_LIMIT = 1e-6
 #: Numbers printed with 6 significant digits can differ by this much after rounding.
 PRINTED = 1e-5
 #: A solve's ``wording`` (absent: 1) is the edition of the words of its texts. A record worded
@@ -160,10 +165,35 @@ def compare(recorded: dict, now: dict, tolerance: float = DEFAULT_TOLERANCE) -> 
     if editions[0] != editions[1] and "wording" not in recorded:
         recorded = {**recorded, "wording": editions[0]}  # so that the walk meets it
 
+    transient = isinstance(recorded, dict) and recorded.get("kind") == "transient"
+
     def walk(path: str, a, b, depth: int = 1):
         key = path.rsplit(".", 1)[-1]
         if path in PIN_KEYS:
             return
+        if transient and path.startswith("history."):
+            if key == "closure":
+                if not (isinstance(a, (int, float)) and isinstance(b, (int, float))
+                        and a < CLOSURE_LIMIT and b < CLOSURE_LIMIT):
+                    failing.append(Difference(path, a, b, note=f"must be below {CLOSURE_LIMIT:g}"))
+                elif a != b:
+                    info.append(Difference(path, a, b, note="both close the energy balance"))
+                return
+            if key == "evaluations":
+                if a != b:
+                    info.append(Difference(path, a, b, note="the integrator's own count"))
+                return
+            if key == "S_gen" and _is_quantity(a) and _is_quantity(b):
+                if abs(float(a["value"]) - float(b["value"])) > HISTORY_TOLERANCE * max(
+                        abs(float(a["value"])), abs(float(b["value"])), 1.0):
+                    failing.append(Difference(path, float(a["value"]), float(b["value"]), a["unit"]))
+                return
+            walk_at(path, a, b, depth, max(tolerance, HISTORY_TOLERANCE))
+            return
+        walk_at(path, a, b, depth, tolerance)
+
+    def walk_at(path: str, a, b, depth: int, tolerance: float):
+        key = path.rsplit(".", 1)[-1]
         if path in REWORDED and editions[0] != editions[1]:
             if path == "wording":
                 info.append(Difference(path, editions[0], editions[1], note="the explanation and the cautions "
@@ -324,4 +354,10 @@ def replay_entries(entries: Sequence[Entry], tolerance: float = DEFAULT_TOLERANC
     except BalanceError as exc:
         ws, ws_error = None, str(exc)
     ok = broken is None and all(s.ok for s in solves)
-    return ReplayReport(ok, tolerance, tuple(solves), tuple(pin_diffs), ws, ws_error, broken=broken, entries=count)
+    notes = ()
+    if any(e.kind == SOLVE and e.data.get("kind") == "transient" for e in entries):
+        notes = (f"A transient's history (its end, extremes and rows) is compared to "
+                 f"{max(tolerance, HISTORY_TOLERANCE):g} relative (an integration to rtol 1e-8), an entropy "
+                 f"against 1 J/K at least; its energy closure is judged below {CLOSURE_LIMIT:g}.",)
+    return ReplayReport(ok, tolerance, tuple(solves), tuple(pin_diffs), ws, ws_error, notes=notes, broken=broken,
+                        entries=count)

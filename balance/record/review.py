@@ -162,7 +162,7 @@ class RecordDiff:
 
 
 #: Sections whose items the diff names by their name (``device 'K-1'.eta``), not their place.
-BY_NAME = ("stream", "device")
+BY_NAME = ("stream", "device", "vessel", "line")
 
 
 def _flatten(prefix: str, value, out: dict, depth: int = 1) -> None:

@@ -17,6 +17,7 @@ from .layout import COMMENT, KIND_SECTIONS, LIST_SECTIONS, NOTE, OPENING, RESOLU
 SOLVED = {
     "closed": {"states": dict, "terms": list},
     "steady-flow": {"streams": dict, "devices": dict},
+    "transient": {"case": str, "equations": list},
 }
 
 #: Required keys and their types in the data of each kind that is not a step or a solve.

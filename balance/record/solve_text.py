@@ -16,6 +16,7 @@ from __future__ import annotations
 from ..worksheet import CONVENTIONS
 from .plain import closing, g, listed, table, wrap
 from .solve_text_flow import solve_text as flow_text
+from .solve_text_transient import solve_text as transient_text
 
 #: The units of a solve's text in the record, whatever units the app or the command line showed.
 UNITS = ("Units (fixed, whatever the display): T in K and °C, P in bar(a), properties per kg, energies in "
@@ -111,7 +112,7 @@ def _closed_text(data: dict, basis: str, pins: str) -> str:
 
 
 #: The text of a solved result, by the kind of balance its data name.
-_TEXTS = {"closed": _closed_text, "steady-flow": flow_text}
+_TEXTS = {"closed": _closed_text, "steady-flow": flow_text, "transient": transient_text}
 
 
 _STATE_ROWS = (

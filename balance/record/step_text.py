@@ -18,9 +18,13 @@ SECTION_TITLES = {
     "process": "Constraints and process",
     "stream": "Streams",
     "device": "Devices (each joins its inlet streams to its outlet streams)",
+    "vessel": "Vessels (each at the start, and how its gas exchanges heat)",
+    "line": "Lines (where the gas comes from and goes to, and what restricts it)",
+    "end": "End condition",
+    "history": "Integrator settings",
 }
 ITEM_NOUNS = {"initial": "compartment", "heat": "heat term", "work": "work term", "stream": "stream",
-              "device": "device"}
+              "device": "device", "vessel": "vessel", "line": "line"}
 
 
 def _value(key: str, v) -> list[str]:

@@ -17,11 +17,12 @@ from dataclasses import dataclass
 
 from ...errors import InputError, SolveError
 from ...state import quantity
+from ...units import R
 from ..cautions import DISCLAIMER, LOW_TEMPERATURE_K, Caution
 from ..control_volume import number
 from .end_state import EndState, case_of, end_state
 from .history import History, integrate
-from .problem import OUTSIDE, SUPPLY, Problem
+from .problem import BALANCED, OUTSIDE, SUPPLY, Problem
 
 #: The energy closure of a history must be below this (relative).
 CLOSURE_LIMIT = 1e-6
@@ -175,19 +176,46 @@ def _equations(p: Problem, end: EndState | None, h: History | None) -> list[str]
                 "  n cv dT/dt = Ė - u ṅ + (T (∂P/∂T)_v - P) v ṅ  (the energy balance with u = u(T, v))",
                 "  flow through a restriction: the model's isentropic nozzle from the upstream stagnation state, "
                 "ṁ = Cd A ρ_t w_t, choked where the throat reaches sonic speed",
-                f"  {h.settings_words}; {h.nfev} evaluations; {h.stop} at t = {number(h.t_end)} s"]
+                f"  {h.settings_words}; {h.stop} at t = {number(h.t_end)} s"]
         for name in h.end_points:
             f = h.flows[name]
             out.append(f"  {name!r}: ∫ṁh_in = {number(f['E_in'])} J, ∫ṁh_out = {number(f['E_out'])} J, ∫Q̇ = "
                        f"{number(f['Q'])} J; Δ(n u) = {number(h.n_end[name] * h.end_points[name].u - h.U_start[name])}"
-                       f" J: closure {h.closure(name):.2g} (limit {CLOSURE_LIMIT:g})")
-            out.append(f"  {name!r}: S_gen = ΔS - ∫ṅ_in s_in + ∫ṅ_out s - ∫Q̇/T_b = {number(h.S_gen(name))} J/K")
+                       f" J: {_closure_words(h.closure(name))}")
+            out.append(f"  {name!r}: S_gen = ΔS - ∫ṅ_in s_in + ∫ṅ_out s - ∫Q̇/T_b = {_entropy_words(h, name)}")
         if end is not None and not end.bound and h.reached:
             for v in end.vessels:
                 pt = h.end_points[v.name]
-                out.append(f"  the history ends {abs(pt.T - v.end.T):.3g} K and {abs(pt.P - v.end.P) / 1e5:.3g} bar "
-                           f"from the end state without time in {v.name!r}")
+                dT, dP = abs(pt.T - v.end.T), abs(pt.P - v.end.P) / v.end.P
+                if dT < AGREES_K and dP < AGREES_P:
+                    out.append(f"  {v.name!r}: the history ends on the end state without time (within "
+                               f"{AGREES_K:g} K and {AGREES_P:.1%} of its pressure)")
+                else:
+                    out.append(f"  {v.name!r}: the history ends {dT:.3g} K and {dP:.2%} in pressure from the end "
+                               "state without time" + (" (it stops when the flow is within "
+                                                       f"{BALANCED:g} of balanced)" if p.end.kind == "balanced" else ""))
     return out
+
+
+#: The history ends on the end state without time where they agree this well (an integration to
+#: rtol 1e-8 against a root found to round-off).
+AGREES_K, AGREES_P = 0.01, 1e-3
+
+
+def _closure_words(closure: float) -> str:
+    """The closure in words that do not change with the integrator's last digits."""
+    if closure < CLOSURE_LIMIT * 1e-2:
+        return f"closes to better than {CLOSURE_LIMIT * 1e-2:g} (limit {CLOSURE_LIMIT:g})"
+    return f"closure {closure:.2g} (limit {CLOSURE_LIMIT:g})"
+
+
+def _entropy_words(h: History, name: str) -> str:
+    """S_gen of a vessel's gas; within the integration's own accuracy of n R it is said to be zero."""
+    S = h.S_gen(name)
+    scale = R * max(h.n_start[name], h.n_end[name])
+    if abs(S) < 1e-7 * scale:
+        return "0 J/K within the integration's accuracy (below 1e-7 n R)"
+    return f"{number(S)} J/K"
 
 
 def _warnings(p: Problem, end: EndState | None, h: History | None) -> list[str]:
