@@ -28,7 +28,7 @@ from .steps import steps_of
 
 COMPLETE, INCOMPLETE, INVALID = "complete", "incomplete", "invalid"
 #: The parts of a worksheet that are lists (a compartment, term, stream or device each).
-_LISTS = ("initial", "heat", "work", "stream", "device")
+_LISTS = ("initial", "heat", "work", "stream", "device", "vessel", "line")
 
 
 @dataclass(frozen=True)
@@ -355,6 +355,97 @@ def _device_named(ws: Worksheet, message: str) -> list[FieldProblem]:
     return []
 
 
+# -- the transient worksheet's fields -------------------------------------------------------
+def vessel_problems(ws: Worksheet) -> list[FieldProblem]:
+    """Each vessel's name (given, its own) and volume, by the rules the solve reads them with;
+    the rest is the domain's to judge (:func:`balance.api.problems`)."""
+    names = [v.name.strip() for v in ws.vessels]
+    out: list[FieldProblem] = []
+    for i, v in enumerate(ws.vessels):
+        where = f"vessel '{v.name.strip() or i + 1}'"
+        if not v.name.strip():
+            out += _at("vessels", "vessel", i, "name", f"vessel {i + 1}: give it a name (the lines join vessels by name)")
+        elif names.index(v.name.strip()) != i:
+            out += _at("vessels", "vessel", i, "name", f"{where}: another vessel has this name; give each its own")
+        out += _at("vessels", "vessel", i, "V", field_checks.problem("V", v.V, f"V ({where})", positive=True))
+    return out
+
+
+def line_problems(ws: Worksheet) -> list[FieldProblem]:
+    """Each line's name, and its ends: the supply or a vessel of step 4, a vessel or the outside."""
+    vessels = {v.name.strip() for v in ws.vessels if v.name.strip()}
+    out: list[FieldProblem] = []
+    for i, line in enumerate(ws.lines):
+        if not line.name.strip():
+            out += _at("lines", "line", i, "name", f"line {i + 1}: give it a name, e.g. 'vent stack'")
+        for key, end, other in (("from", line.source, "supply"), ("to", line.target, "outside")):
+            if end.strip() and end not in vessels and end != other:
+                out += _at("lines", "line", i, key, f"{key} of {line.name.strip() or f'line {i + 1}'}: {end!r} is "
+                                                    f"not a vessel of step 4 ({', '.join(sorted(vessels)) or 'none named yet'})")
+    return out
+
+
+def _transient_problems(ws: Worksheet) -> list[FieldProblem]:
+    return (heading_problems(ws) + system_problems(ws) + fluid_problems(ws) + vessel_problems(ws)
+            + line_problems(ws))
+
+
+def _transient_text_at(ws: Worksheet, p: FieldProblem) -> str | None:
+    part, i, key = p.place
+    if part == "vessel" and i is not None and key:
+        v = ws.vessels[i]
+        if key in ("name", "V"):
+            return getattr(v, key).strip()
+        if key in v.props or key in ("T", "P", "rho"):
+            return v.props.get(key, "").strip()
+        if key == "Q" and v.Q_points:
+            return ", ".join(v.Q_points)
+        return v.values.get(key, "").strip() if key != "heat" else v.heat
+    if part == "line" and i is not None and key:
+        line = ws.lines[i]
+        if key in ("name",):
+            return line.name.strip()
+        if key in ("from", "to"):
+            return (line.source if key == "from" else line.target).strip()
+        if key in ("T", "P"):
+            return line.props.get(key, "").strip()
+        return line.values.get(key, "").strip()
+    if part == "end":
+        if key in ("P", "m", "t"):
+            return ws.end.values.get(key, "").strip()
+        if key == "":
+            return "" if not ws.end.values and not ws.end.balanced else None
+        return None
+    if part == "history" and key:
+        return ws.history.get(key, "").strip() or None  # a blank setting takes the default: not missing
+    return _closed_text_at(ws, p)
+
+
+def _transient_missing(ws: Worksheet, p: FieldProblem) -> bool:
+    if p.part in ("vessel", "line") and p.index is None:
+        return not _items(ws, p.part)
+    if p.part == "end" and not p.key:
+        return _transient_text_at(ws, p) == ""
+    if p.key:
+        return _transient_text_at(ws, p) == ""
+    return False
+
+
+def _transient_complete(ws: Worksheet, visited: frozenset[str]) -> dict[str, bool]:
+    def started(v) -> bool:  # evacuated, or its gas given by two properties
+        return v.empty or sum(1 for t in v.props.values() if t.strip()) == 2
+
+    def supplied(ln) -> bool:  # a supply's state given
+        return ln.source != "supply" or all(ln.props.get(k, "").strip() for k in ("T", "P"))
+
+    return {
+        "vessels": bool(ws.vessels and all(v.name.strip() and v.V.strip() and started(v) for v in ws.vessels)),
+        "lines": bool(ws.lines and all(ln.name.strip() and ln.source and ln.target and supplied(ln)
+                                       for ln in ws.lines)),
+        "end": bool(ws.end.balanced or any(t.strip() for t in ws.end.values.values())),
+    }
+
+
 # -- one lookup by kind ---------------------------------------------------------------------
 @dataclass(frozen=True)
 class _Form:
@@ -376,6 +467,8 @@ class _Form:
 _FORMS = {
     "closed": _Form(_closed_problems, _closed_domain, _closed_missing, _closed_complete),
     "steady-flow": _Form(_flow_problems, _flow_domain, _flow_missing, _flow_complete, _device_named),
+    # the domain's problems are placed at their fields as a steady-flow worksheet's are
+    "transient": _Form(_transient_problems, _flow_domain, _transient_missing, _transient_complete),
 }
 
 
@@ -592,7 +685,7 @@ def _round_off(rows: list[tuple], results: list) -> list[tuple]:
 #: The kinds whose results the app draws, and on which planes: a closed system's process on
 #: the P–v and T–s planes (:func:`balance.api.trace`), a steady-flow network's devices on the
 #: T–s, h–s and P–h planes (:func:`balance.api.flow_trace`).
-DRAWN = {"closed": ("P-v", "T-s"), "steady-flow": ("T-s", "h-s", "P-h")}
+DRAWN = {"closed": ("P-v", "T-s"), "steady-flow": ("T-s", "h-s", "P-h"), "transient": ("T-t", "P-t")}
 
 
 @dataclass(frozen=True)
@@ -643,8 +736,28 @@ def _flow_traces(result) -> FlowTraces:
     return FlowTraces((traced, *(replace(traced, plane=plane) for plane in others)))
 
 
+@dataclass(frozen=True)
+class HistoryTrace:
+    """A transient's history as its plots draw it: time [s] and, per vessel, T, P and the wall's T
+    (SI), plus what it ended on."""
+
+    t: tuple = ()
+    vessels: tuple = ()
+    """((name, T, P, T_wall or None), ...), each a tuple of floats"""
+    stop: str = ""
+
+
+def _history_trace(result) -> HistoryTrace | None:
+    h = result.history
+    if h is None:
+        return None
+    vessels = tuple((name, tuple(map(float, c["T"])), tuple(map(float, c["P"])),
+                     tuple(map(float, c["T_wall"])) if "T_wall" in c else None) for name, c in h.vessels.items())
+    return HistoryTrace(tuple(map(float, h.t)), vessels, h.stop)
+
+
 #: How each kind in :data:`DRAWN` is traced.
-_TRACERS = {"closed": api.trace, "steady-flow": _flow_traces}
+_TRACERS = {"closed": api.trace, "steady-flow": _flow_traces, "transient": _history_trace}
 
 
 def sig(x: float, digits: int = 4) -> str:

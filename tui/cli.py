@@ -159,7 +159,7 @@ def _species_json(sp) -> dict:
 def cmd_demo(args) -> int:
     if args.print:
         args.file = sample_path(DEMO_SAMPLE)
-        args.json = False
+        args.json = args.csv = args.plot = False
         return cmd_solve(args)
     from .session import demo_session
 

@@ -19,13 +19,16 @@ from pathlib import Path
 from balance.errors import InputError
 from balance.worksheet import (
     DeviceInput,
+    EndInput,
     Fluid,
     Heading,
     HeatTerm,
+    LineInput,
     Process,
     StateInput,
     StreamInput,
     System,
+    VesselInput,
     Worksheet,
     WorkTerm,
 )
@@ -59,9 +62,20 @@ def worksheet_from_raw(raw: dict) -> Worksheet:
             # a draft saved before steady-flow worksheets has neither
             streams=tuple(StreamInput(**st) for st in raw.get("streams", ())),
             devices=tuple(_device(d) for d in raw.get("devices", ())),
+            # nor one saved before transient worksheets these
+            vessels=tuple(_vessel(v) for v in raw.get("vessels", ())),
+            lines=tuple(LineInput(**ln) for ln in raw.get("lines", ())),
+            end=EndInput(**raw.get("end", {})),
+            history=dict(raw.get("history", {})),
         )
     except (KeyError, TypeError, ValueError) as exc:
         raise InputError("draft", f"is damaged and cannot be read ({exc})") from None
+
+
+def _vessel(raw: dict) -> VesselInput:
+    v = dict(raw)
+    v["Q_points"] = tuple(v.get("Q_points", ()))
+    return VesselInput(**v)
 
 
 def _device(raw: dict) -> DeviceInput:

@@ -115,7 +115,8 @@ def transient_headline(result, units: str) -> str:
     if h is not None:
         parts.append(f"{'reached' if h.reached else 'stopped'} in {duration(h.t_end)}")
         cold = h.minimum("T")
-        parts.append(f"coldest gas {_T(cold.value, units)} ('{cold.where}', {duration(cold.t)})")
+        if cold.t > 0:  # the gas cooled below where it started (a fill's coldest is its first gas)
+            parts.append(f"coldest gas {_T(cold.value, units)} ('{cold.where}', {duration(cold.t)})")
         hot = h.maximum("T")
         if hot.t > 0:
             parts.append(f"hottest gas {_T(hot.value, units)} ('{hot.where}')")

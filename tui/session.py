@@ -26,7 +26,7 @@ from pathlib import Path
 
 from balance import api
 from balance.errors import InputError
-from balance.worksheet import SECTIONS, Worksheet
+from balance.worksheet import LISTS, SECTIONS, Worksheet
 
 from . import offload
 from .draft import DRAFT_FORMAT, DraftFile, draft_path, worksheet_to_raw
@@ -35,7 +35,7 @@ from .steps import steps_of
 #: The record file's extension.
 RECORD_SUFFIX = ".jbk"
 #: Sections whose value is a list of tables ([[initial]]); the rest are one table.
-_LISTS = ("initial", "heat", "work", "stream", "device")
+_LISTS = LISTS
 
 
 def solve_sections(sections: dict) -> api.Attempt:

@@ -51,6 +51,17 @@ STEPS_BY_KIND = {
         Step("results", "Solve and results", "Solve", (), "tui.screens.results:ResultsScreen"),
         Step("review", "Review and sign", "Review, sign", (), "tui.screens.review:ReviewScreen"),
     ),
+    "transient": _numbered(
+        Step("purpose", "Purpose and basis", "Purpose", ("worksheet",), "tui.screens.purpose:PurposeScreen"),
+        Step("boundary", "System boundary", "Boundary", ("system",), "tui.screens.boundary:BoundaryScreen"),
+        Step("fluid", "Fluid and property model", "Fluid, model", ("fluid",), "tui.screens.fluid:FluidScreen"),
+        Step("vessels", "Vessels", "Vessels", ("vessel",), "tui.screens.vessels:VesselsScreen"),
+        Step("lines", "Lines and restrictions", "Lines", ("line",), "tui.screens.lines:LinesScreen"),
+        Step("end", "End condition and integrator", "End, history", ("end", "history"),
+             "tui.screens.end:EndScreen"),
+        Step("results", "Solve and results", "Solve", (), "tui.screens.results:ResultsScreen"),
+        Step("review", "Review and sign", "Review, sign", (), "tui.screens.review:ReviewScreen"),
+    ),
 }
 
 class Steps:

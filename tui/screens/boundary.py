@@ -21,6 +21,7 @@ from .step import StepScreen
 KINDS = [
     ("closed", "closed: no mass crosses the boundary"),
     ("steady-flow", "steady-flow: streams cross it at steady state"),
+    ("transient", "transient: a vessel filled, vented or equalised in time"),
 ]
 #: Device kinds that take heat at a boundary temperature (the others are adiabatic).
 HEATED = ("heater", "cooler")
@@ -119,6 +120,20 @@ temperature for heat from a hotter jacket (that hides the entropy generated).
         yield Label("Sketch (ctrl+t drafts one)", classes="form-label")
         yield TextArea(ws.system.sketch, id="sketch", soft_wrap=False, tab_behavior="focus",
                        placeholder="a few lines showing the boundary")
+
+    def on_mount(self) -> None:
+        super().on_mount()
+        self._show_boundary_T(self.worksheet.system.kind)
+
+    def _show_boundary_T(self, kind: str) -> None:
+        """A transient's heat crosses at its gas's or its wall's temperature (step 4): no shared
+        boundary temperature to set here."""
+        for widget in (self.query_one("#boundary-T"), self.query_one("#boundary-note")):
+            widget.display = kind != "transient"
+
+    def on_choice_list_chosen(self, event) -> None:
+        self._show_boundary_T(self.query_one("#kind", ChoiceList).value)
+        super().on_choice_list_chosen(event)
 
     @staticmethod
     def _boundary_note(ws: Worksheet, differs: bool) -> str:

@@ -19,6 +19,7 @@ from textual.widgets import Static, TabbedContent, TabPane
 
 from ..analysis import planes
 from ..widgets.flow_diagram import FlowDiagram
+from ..widgets.history_plot import HistoryPlot
 from ..widgets.process_diagram import ProcessDiagram
 from .step import StepScreen
 
@@ -42,6 +43,7 @@ class Shown:
 SHOWN = {
     "closed": Shown("tui.render", "result_renderable", "headline"),
     "steady-flow": Shown("tui.render_flow", "flow_result_renderable", "flow_headline"),
+    "transient": Shown("tui.render_transient", "transient_result_renderable", "transient_headline"),
 }
 
 #: Each kind's diagram tabs: (pane id, tab label, the widget's class and what it draws).
@@ -49,6 +51,7 @@ DIAGRAM_TABS = {
     "closed": (("tab-pv", "P–v", ProcessDiagram, "Pv"), ("tab-ts", "T–s", ProcessDiagram, "Ts")),
     "steady-flow": (("tab-flow-ts", "T–s", FlowDiagram, "T-s"), ("tab-flow-hs", "h–s", FlowDiagram, "h-s"),
                     ("tab-flow-ph", "P–h", FlowDiagram, "P-h")),
+    "transient": (("tab-hist-T", "T–t", HistoryPlot, "T-t"), ("tab-hist-P", "P–t", HistoryPlot, "P-t")),
 }
 
 
@@ -82,6 +85,10 @@ equation with its numbers.
   machine's isentropic line from its inlet dotted and its inlet joined to
   its actual outlet dashed (the path between is not known), each stream's
   state marked and named, the saturation dome grey where it is in view.
+- A transient shows its end state without time and its history: the coldest
+  and hottest gas and wall and when, the time to the end, the mass moved,
+  the energy closure; its T–t and P–t tabs draw the gas's (and the wall's)
+  temperature and the pressure against time.
 - `f2` switches the display units (SI, metric, US).
 - `f4` solves the worksheet on another model as well (the reference model
   in its own process) and shows the two side by side, with the difference;

@@ -121,8 +121,12 @@ class StepScreen(Screen):
                 if place in targets:
                     shown.setdefault(place, []).append(p.message)
                     break
+        said: dict[int, tuple] = {}  # a widget may stand for several places (a part's line for its keys)
         for place, widget in targets.items():
-            widget.set_problem("; ".join(dict.fromkeys(shown.get(place, ()))))
+            widget_said = said.setdefault(id(widget), (widget, []))[1]
+            widget_said += shown.get(place, ())
+        for widget, messages in said.values():
+            widget.set_problem("; ".join(dict.fromkeys(messages)))
 
     def _arm(self) -> None:
         self._ready = True
