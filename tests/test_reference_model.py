@@ -262,6 +262,16 @@ def _others(note: str) -> list[tuple[float, float, float]]:
     return [tuple(float(g) for g in m.groups()) for m in _OTHER.finditer(also)]
 
 
+def test_a_state_after_a_saturated_v_x_flash_is_still_right():
+    # The model's CoolProp state is shared by every flash: a (v, x) flash must
+    # not leave a phase imposed on it. CoolProp 8.0 HEOS at (T, P) as the check.
+    m = make_model("reference", lookup("H2O"))
+    sat = m.flash({"T": 373.15, "x": 0.0})
+    m.flash({"v": sat.v, "x": 0.0})
+    q = m.at_TP(300.0, 1e6)
+    assert close(q.u, props("Water", "Umolar", "T", 300.0, "P", 1e6), 1e-9)
+
+
 def test_compressed_liquid_T_h_takes_the_wet_state_and_names_the_liquid(models):
     # Liquid water at 300 K and 1 MPa has h above the saturated liquid's at
     # 300 K (CoolProp 8.0 HEOS), so a wet state at 300 K has the same h too;

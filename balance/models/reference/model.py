@@ -113,8 +113,15 @@ class Reference(PathSearch, CoolPropState, PropertyModel):
         va = 1.0 / specs[a] if a == "v" else specs[a]
         vb = 1.0 / specs[b] if b == "v" else specs[b]
         pair, v1, v2 = CP.generate_update_pair(index[a], va, index[b], vb)
-        self._as().update(pair, v1, v2)
-        return self._point()
+        AS = self._as()
+        try:
+            AS.update(pair, v1, v2)
+            return self._point()
+        finally:
+            # CoolProp 8.0 leaves the two-phase phase imposed after a (v, x)
+            # update; the next (T, P) update on the shared state then fails.
+            AS.unspecify_phase()
+
     # -- messages ----------------------------------------------------------------
     def _cannot(self, specs: dict[str, float], exc: Exception | None) -> str:
         """Why no state was found, with a hint where one helps."""
