@@ -8,12 +8,12 @@ from collections.abc import Callable
 
 from textual.app import ComposeResult
 from textual.containers import Grid, Horizontal
-from textual.widget import Widget
 from textual.widgets import Button, Select
 
 from balance.worksheet import LineInput
 
 from .field_row import FieldRow
+from .item_form import ItemForm
 from .problem_line import ProblemLine
 from .state_form import out_of_tab_order
 
@@ -41,26 +41,9 @@ def restriction_of(line: LineInput) -> str:
     return next((k for k in ("orifice", "Cv", "Kv", "rate") if line.values.get(k, "").strip()), "none")
 
 
-class LineForm(Widget):
+class LineForm(ItemForm):
     """A line: from, to and the restriction are drop-down lists; the supply's state shows for a
     line from the supply, the back pressure for one to the outside."""
-
-    DEFAULT_CSS = """
-    LineForm {
-        height: auto;
-        border: round $border-blurred;
-        border-title-color: $text-accent;
-        padding: 0 1;
-        margin-bottom: 1;
-        & Grid { grid-size: 2; grid-gutter: 0 2; height: auto; grid-rows: auto; }
-        & Horizontal { height: auto; }
-        & .line-form--top FieldRow { width: 1fr; }
-        & Select { width: 1fr; }
-        & Button { width: auto; min-width: 0; margin-left: 1; }
-        & .-not-taken { display: none; }
-    }
-    LineForm:focus-within { border: round $border; }
-    """
 
     def __init__(self, line: LineInput, index: int, vessels: tuple[str, ...], *,
                  p_atm: Callable[[], float] | None = None, id: str | None = None) -> None:
@@ -70,20 +53,13 @@ class LineForm(Widget):
         self.vessels = tuple(v for v in vessels if v.strip())
         self.p_atm = p_atm
 
-    def _choice(self, name: str, default: str) -> str:
-        found = self.query(f"#{name}")
-        if not found:
-            return default
-        value = found.first(Select).value
-        return value if isinstance(value, str) else ""
-
     def on_mount(self) -> None:
         self.border_title = f"Line {self.index + 1}"
         self._show_taken()
 
     def compose(self) -> ComposeResult:
         ln = self.line
-        with Horizontal(classes="line-form--top"):
+        with Horizontal(classes="item-form--top"):
             yield FieldRow("Name", ln.name, id="name", label_width=6, tooltip="The line's name, e.g. 'vent stack'")
             yield out_of_tab_order(Button("remove ^g", compact=True, id="remove",
                                           tooltip="Remove this line (ctrl+g)"))
@@ -112,13 +88,14 @@ class LineForm(Widget):
         yield ProblemLine(about="#name Input", classes="line-form--problem")
 
     def _show_taken(self) -> None:
-        taken = RESTRICTIONS.get(self._choice("restriction", restriction_of(self.line)), ())
+        taken = RESTRICTIONS.get(self.choice("restriction", restriction_of(self.line), "none"), ())
         for key in VALUES:
             self.query_one(f"#value-{key}", FieldRow).set_class(key not in taken, "-not-taken")
-        supply = self._choice("from", self.line.source) == SUPPLY
+        supply = self.choice("from", self.line.source, "") == SUPPLY
         for key in ("supply-T", "supply-P"):
             self.query_one(f"#{key}", FieldRow).set_class(not supply, "-not-taken")
-        self.query_one("#back", FieldRow).set_class(self._choice("to", self.line.target) != OUTSIDE, "-not-taken")
+        outside = self.choice("to", self.line.target, "") == OUTSIDE
+        self.query_one("#back", FieldRow).set_class(not outside, "-not-taken")
 
     def on_select_changed(self, event: Select.Changed) -> None:
         if event.select.id in ("from", "to", "restriction"):
@@ -136,7 +113,7 @@ class LineForm(Widget):
         return out
 
     def collect(self) -> LineInput:
-        source, target = self._choice("from", self.line.source), self._choice("to", self.line.target)
+        source, target = self.choice("from", self.line.source, ""), self.choice("to", self.line.target, "")
         props = {}
         if source == SUPPLY:
             for key in ("T", "P"):
@@ -148,7 +125,7 @@ class LineForm(Widget):
             back = self.query_one("#back", FieldRow).value
             if back.strip():
                 values["back"] = back
-        for key in RESTRICTIONS.get(self._choice("restriction", "none"), ()):
+        for key in RESTRICTIONS.get(self.choice("restriction", "none"), ()):
             text = self.query_one(f"#value-{key}", FieldRow).value
             if text.strip():
                 values[key] = text

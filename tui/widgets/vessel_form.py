@@ -8,12 +8,12 @@ from collections.abc import Callable
 
 from textual.app import ComposeResult
 from textual.containers import Grid, Horizontal
-from textual.widget import Widget
 from textual.widgets import Button, Select
 
 from balance.worksheet import VESSEL_HEAT, VesselInput
 
 from .field_row import FieldRow
+from .item_form import ItemForm
 from .problem_line import ProblemLine
 from .state_form import out_of_tab_order
 
@@ -42,27 +42,10 @@ VALUES = {
 }
 
 
-class VesselForm(Widget):
+class VesselForm(ItemForm):
     """A vessel: the start and the heat are drop-down lists (Enter opens, ↑/↓, Enter chooses);
     only the fields the choices take are shown. A value typed for another choice stays in the
     form while the step is open."""
-
-    DEFAULT_CSS = """
-    VesselForm {
-        height: auto;
-        border: round $border-blurred;
-        border-title-color: $text-accent;
-        padding: 0 1;
-        margin-bottom: 1;
-        & Grid { grid-size: 2; grid-gutter: 0 2; height: auto; grid-rows: auto; }
-        & Horizontal { height: auto; }
-        & .vessel-form--top FieldRow { width: 1fr; }
-        & Select { width: 1fr; }
-        & Button { width: auto; min-width: 0; margin-left: 1; }
-        & .-not-taken { display: none; }
-    }
-    VesselForm:focus-within { border: round $border; }
-    """
 
     def __init__(self, vessel: VesselInput, index: int, *, p_atm: Callable[[], float] | None = None,
                  id: str | None = None) -> None:
@@ -71,20 +54,13 @@ class VesselForm(Widget):
         self.index = index
         self.p_atm = p_atm
 
-    def _choice(self, name: str, default: str) -> str:
-        found = self.query(f"#{name}")
-        if not found:
-            return default
-        value = found.first(Select).value
-        return value if isinstance(value, str) else default
-
     @property
     def heat(self) -> str:
-        return self._choice("heat", self.vessel.heat)
+        return self.choice("heat", self.vessel.heat)
 
     @property
     def empty(self) -> bool:
-        return self._choice("start", "empty" if self.vessel.empty else "gas") == "empty"
+        return self.choice("start", "empty" if self.vessel.empty else "gas") == "empty"
 
     def on_mount(self) -> None:
         self.border_title = f"Vessel {self.index + 1}"
@@ -92,7 +68,7 @@ class VesselForm(Widget):
 
     def compose(self) -> ComposeResult:
         v = self.vessel
-        with Horizontal(classes="vessel-form--top"):
+        with Horizontal(classes="item-form--top"):
             yield FieldRow("Name", v.name, id="name", label_width=6, tooltip="The vessel's tag, e.g. V-12")
             yield FieldRow("V", v.V, kind="V", field_label=f"V ('{v.name}')", id="V", label_width=3,
                            positive=True, placeholder="e.g. 2 m3", tooltip="The vessel's volume")
