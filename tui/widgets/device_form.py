@@ -6,12 +6,12 @@ from __future__ import annotations
 
 from textual.app import ComposeResult
 from textual.containers import Grid, Horizontal
-from textual.widget import Widget
 from textual.widgets import Button, Select
 
 from balance.worksheet import DEVICE_KINDS, DeviceInput
 
 from .field_row import FieldRow
+from .item_form import ItemForm
 from .problem_line import ProblemLine
 from .state_form import out_of_tab_order
 
@@ -58,27 +58,10 @@ def split_names(text: str) -> tuple[str, ...]:
     return tuple(piece.strip() for piece in text.split(",") if piece.strip())
 
 
-class DeviceForm(Widget):
+class DeviceForm(ItemForm):
     """A device: the kind is a drop-down list (Enter opens it, ↑/↓, Enter chooses); only the
     values the kind takes are shown. A value typed for another kind stays in the form while
     the step is open, and comes back when that kind is chosen again."""
-
-    DEFAULT_CSS = """
-    DeviceForm {
-        height: auto;
-        border: round $border-blurred;
-        border-title-color: $text-accent;
-        padding: 0 1;
-        margin-bottom: 1;
-        & Grid { grid-size: 2; grid-gutter: 0 2; height: auto; grid-rows: auto; }
-        & Horizontal { height: auto; }
-        & .device-form--top FieldRow { width: 1fr; }
-        & Select { width: 1fr; }
-        & Button { width: auto; min-width: 0; margin-left: 1; }
-        & .-not-taken { display: none; }
-    }
-    DeviceForm:focus-within { border: round $border; }
-    """
 
     def __init__(self, device: DeviceInput, index: int, *, id: str | None = None) -> None:
         super().__init__(id=id, classes="device")
@@ -87,11 +70,7 @@ class DeviceForm(Widget):
 
     @property
     def kind(self) -> str:
-        found = self.query("#kind")
-        if not found:
-            return self.device.kind
-        value = found.first(Select).value
-        return value if isinstance(value, str) else ""
+        return self.choice("kind", self.device.kind, blank="")
 
     def on_mount(self) -> None:
         self.border_title = f"Device {self.index + 1}"
@@ -99,7 +78,7 @@ class DeviceForm(Widget):
 
     def compose(self) -> ComposeResult:
         d = self.device
-        with Horizontal(classes="device-form--top"):
+        with Horizontal(classes="item-form--top"):
             yield FieldRow("Name", d.name, id="name", label_width=6, tooltip="The device's tag, e.g. PCV-101")
             kind = d.kind if d.kind in DEVICE_KINDS else Select.NULL
             yield Select([(k, k) for k in DEVICE_KINDS], value=kind, prompt="kind", compact=True, id="kind",

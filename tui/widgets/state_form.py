@@ -6,14 +6,14 @@ from collections.abc import Callable
 
 from textual.app import ComposeResult
 from textual.containers import Grid, Horizontal
-from textual.widget import Widget
 from textual.widgets import Button, Checkbox, Static
 
 from balance.worksheet import STATE_KEYS, StateInput
 
 from .field_row import FieldRow
-from .tick_box import TickBox
+from .item_form import ItemForm
 from .problem_line import ProblemLine
+from .tick_box import TickBox
 
 LABELS = {"T": "T", "P": "P", "v": "v", "rho": "ρ", "u": "u", "h": "h", "s": "s", "x": "x",
           "n": "n", "m": "m", "V": "V"}
@@ -39,7 +39,7 @@ def out_of_tab_order(button: Button) -> Button:
     return button
 
 
-class StateForm(Widget):
+class StateForm(ItemForm):
     """An initial compartment (``role='initial'``) or the final state.
 
     Blank means not given; ``?`` marks an unknown. Two properties fix a
@@ -47,19 +47,7 @@ class StateForm(Widget):
     """
 
     DEFAULT_CSS = """
-    StateForm {
-        height: auto;
-        border: round $border-blurred;
-        border-title-color: $text-accent;
-        padding: 0 1;
-        margin-bottom: 1;
-        & Grid { grid-size: 2; grid-gutter: 0 2; height: auto; grid-rows: auto; }
-        & .state-form--top { height: auto; }
-        & .state-form--top FieldRow { width: 1fr; }
-        & .state-form--amount { color: $text-muted; height: 1; margin-top: 0; }
-        & Button { width: auto; min-width: 0; margin-left: 1; }
-    }
-    StateForm:focus-within { border: round $border; }
+    StateForm .state-form--amount { color: $text-muted; height: 1; margin-top: 0; }
     StateForm.-empty .state-form--props { display: none; }
     """
 
@@ -84,7 +72,7 @@ class StateForm(Widget):
     def compose(self) -> ComposeResult:
         s = self.state
         initial = self.role == "initial"
-        with Horizontal(classes="state-form--top"):
+        with Horizontal(classes="item-form--top"):
             yield FieldRow("Name", s.name, id="name", label_width=6)
             if self.removable:
                 yield out_of_tab_order(Button("remove ^g", compact=True, id="remove",

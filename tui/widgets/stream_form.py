@@ -8,12 +8,12 @@ from collections.abc import Callable
 
 from textual.app import ComposeResult
 from textual.containers import Grid, Horizontal
-from textual.widget import Widget
 from textual.widgets import Button
 
 from balance.worksheet import STATE_KEYS, StreamInput
 
 from .field_row import FieldRow
+from .item_form import ItemForm
 from .problem_line import ProblemLine
 from .state_form import LABELS, TIPS, out_of_tab_order
 
@@ -31,24 +31,9 @@ OTHERS = (
 )
 
 
-class StreamForm(Widget):
+class StreamForm(ItemForm):
     """A stream: blank means not given (a device may fix it), ``?`` marks what to find.
     Up to two state properties fix its state."""
-
-    DEFAULT_CSS = """
-    StreamForm {
-        height: auto;
-        border: round $border-blurred;
-        border-title-color: $text-accent;
-        padding: 0 1;
-        margin-bottom: 1;
-        & Grid { grid-size: 2; grid-gutter: 0 2; height: auto; grid-rows: auto; }
-        & .stream-form--top { height: auto; }
-        & .stream-form--top FieldRow { width: 1fr; }
-        & Button { width: auto; min-width: 0; margin-left: 1; }
-    }
-    StreamForm:focus-within { border: round $border; }
-    """
 
     def __init__(self, stream: StreamInput, index: int, *, removable: bool = True,
                  p_atm: Callable[[], float] | None = None, id: str | None = None) -> None:
@@ -64,7 +49,7 @@ class StreamForm(Widget):
     def compose(self) -> ComposeResult:
         s = self.stream
         where = f"stream {self.index + 1}"
-        with Horizontal(classes="stream-form--top"):
+        with Horizontal(classes="item-form--top"):
             yield FieldRow("Name", s.name, id="name", label_width=6,
                            tooltip="The stream's name: the devices join streams by it")
             if self.removable:
