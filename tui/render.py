@@ -6,7 +6,6 @@ import math
 
 from rich import box
 from rich.console import Group
-from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
@@ -15,7 +14,8 @@ from balance.balances.control_volume import Dof
 from balance.species import Species
 from balance.state import State
 
-from .display import caution_writer, show, unit_label
+from .display import show, unit_label
+from .panels import closing_panels
 
 ROWS = (("T", "T"), ("P", "P"), ("v", "v"), ("u", "u"), ("h", "h"), ("s", "s"), ("cv", "cv"), ("cp", "cp"))
 
@@ -132,14 +132,7 @@ def closed_result_renderable(r: Result, units: str = "metric", with_headline: bo
     s.add_row("S_gen", *computed(r.S_gen, "S", ""))
     parts.append(s)
 
-    parts.append(Panel("\n".join(r.equations), title="Equations with numbers (molar SI, energies in kJ)",
-                       title_align="left", box=box.SQUARE))
-    if r.warnings:
-        parts.append(Panel("\n".join(f"• {w}" for w in r.warnings), title="Warnings", title_align="left",
-                           border_style="yellow", box=box.SQUARE))
-    write = caution_writer(units)
-    parts.append(Panel("\n".join(f"• {c.text(write)}" for c in r.cautions), title="Cautions", title_align="left",
-                       border_style="red", box=box.SQUARE))
+    parts.extend(closing_panels(r, units, "Equations with numbers (molar SI, energies in kJ)"))
     return Group(*parts)
 
 

@@ -12,13 +12,13 @@ from __future__ import annotations
 
 from rich import box
 from rich.console import Group
-from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
 from balance.balances.steady_flow.result import phase_words
 
-from .display import UNIT_SETS, caution_writer, show, unit_label
+from .display import UNIT_SETS, show, unit_label
+from .panels import closing_panels
 
 #: Device kinds that take work and carry an isentropic end state.
 MACHINES = ("compressor", "pump", "turbine", "expander")
@@ -264,14 +264,7 @@ def flow_result_renderable(result, units: str = "metric", with_headline: bool = 
     iso = _isentropic_lines(result, units)
     if iso:
         parts.append(Text("\n".join(iso)))
-    parts.append(Panel("\n".join(result.equations), title="Equations with numbers (molar SI, powers in kW)",
-                       title_align="left", box=box.SQUARE))
-    if result.warnings:
-        parts.append(Panel("\n".join(f"• {w}" for w in result.warnings), title="Warnings", title_align="left",
-                           border_style="yellow", box=box.SQUARE))
-    write = caution_writer(units)
-    parts.append(Panel("\n".join(f"• {c.text(write)}" for c in result.cautions), title="Cautions",
-                       title_align="left", border_style="red", box=box.SQUARE))
+    parts.extend(closing_panels(result, units, "Equations with numbers (molar SI, powers in kW)"))
     return Group(*parts)
 
 

@@ -13,11 +13,11 @@ from __future__ import annotations
 
 from rich import box
 from rich.console import Group
-from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
-from .display import caution_writer, show, unit_label
+from .display import show, unit_label
+from .panels import closing_panels
 
 #: An entropy generation below this share of n R is round-off and shown as 0.
 ROUND_OFF = 1e-9
@@ -150,14 +150,7 @@ def transient_result_renderable(result, units: str = "metric", with_headline: bo
     else:
         parts.append(Text(f"end state without time: none — {result.end_state_why}", style="dim"))
     parts.append(Text("\n".join(history_lines(result, units))))
-    parts.append(Panel("\n".join(result.equations), title="Equations with numbers (molar SI)", title_align="left",
-                       box=box.SQUARE))
-    if result.warnings:
-        parts.append(Panel("\n".join(f"• {w}" for w in result.warnings), title="Warnings", title_align="left",
-                           border_style="yellow", box=box.SQUARE))
-    write = caution_writer(units)
-    parts.append(Panel("\n".join(f"• {c.text(write)}" for c in result.cautions), title="Cautions",
-                       title_align="left", border_style="red", box=box.SQUARE))
+    parts.extend(closing_panels(result, units, "Equations with numbers (molar SI)"))
     return Group(*parts)
 
 
