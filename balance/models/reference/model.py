@@ -118,8 +118,9 @@ class Reference(PathSearch, CoolPropState, PropertyModel):
             AS.update(pair, v1, v2)
             return self._point()
         finally:
-            # CoolProp 8.0 leaves the two-phase phase imposed after a (v, x)
-            # update; the next (T, P) update on the shared state then fails.
+            # CoolProp 8.0 leaves the two-phase phase imposed after a (v, x) or
+            # (s, x) update; the next (T, P) update on the shared state then
+            # fails. The pairs _update takes (T, P, x and ρ with T) leave none.
             AS.unspecify_phase()
 
     # -- messages ----------------------------------------------------------------
