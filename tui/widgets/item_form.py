@@ -1,5 +1,6 @@
-"""What the forms of one item of a list step share (a transient's vessel, its line): the card's
-look, drop-down lists whose choice shows the fields it takes, and reading a list's choice."""
+"""What the forms of one item of a list step share (a state, a stream, a device, a vessel, a
+line): the card's look, drop-down lists whose choice shows the fields it takes, and reading a
+list's choice. The energy terms' cards (term_form.py) are laid out tighter and keep their own."""
 
 from __future__ import annotations
 
