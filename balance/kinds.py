@@ -49,6 +49,9 @@ class Kind:
     """the worksheet sections it reads, in the order a record takes them"""
     module: str
     """the module that balances it (``prepare``, ``problems``, ``solve``, ``as_json``)"""
+    steps: tuple[str, ...] = ()
+    """the steps a worksheet of this kind is built in, in order (the app's step ids, which a
+    house procedure's guidance is keyed by; the app's own table must list the same)"""
 
     def _balance(self):
         return import_module(self.module)
@@ -74,13 +77,16 @@ class Kind:
 KINDS = MappingProxyType({k.name: k for k in (
     Kind("closed", "closed system",
          ("worksheet", "system", "fluid", "initial", "final", "heat", "work", "process"),
-         "balance.balances.closed"),
+         "balance.balances.closed",
+         ("purpose", "boundary", "fluid", "states", "terms", "constraints", "results", "review")),
     Kind("steady-flow", "steady-flow devices",
          ("worksheet", "system", "fluid", "stream", "device"),
-         "balance.balances.steady_flow"),
+         "balance.balances.steady_flow",
+         ("purpose", "boundary", "fluid", "streams", "devices", "results", "review")),
     Kind("transient", "transient vessels",
          ("worksheet", "system", "fluid", "vessel", "line", "end", "history"),
-         "balance.balances.transient"),
+         "balance.balances.transient",
+         ("purpose", "boundary", "fluid", "vessels", "lines", "end", "results", "review")),
 )})
 
 #: Kinds a worksheet may already name, and why they cannot be balanced yet.

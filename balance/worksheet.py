@@ -8,7 +8,8 @@ record can show it. Turning the text into SI numbers and a model happens in
 
 The sections:
 
-``[worksheet]``  title, job, purpose, basis, assumptions, convention, atmosphere
+``[worksheet]``  title, job, purpose, basis, assumptions, convention, atmosphere, procedure,
+                 ``[worksheet.deviations]`` (a house rule's id = the written justification)
 ``[fluid]``      species, model, ``[fluid.overrides]``
 ``[system]``     kind (a name in :mod:`balance.kinds`: "closed"; "open" is reserved), inside, sketch
 ``[[initial]]``  one table per compartment at the start
@@ -142,6 +143,10 @@ class Heading:
     """sign convention for work: a key of CONVENTIONS"""
     atmosphere: str = "1.01325 bar"
     """atmospheric pressure used for gauge readings"""
+    procedure: str = ""
+    """the house procedure the calculation follows (its id), or blank"""
+    deviations: dict[str, str] = field(default_factory=dict)
+    """a house rule's id -> the written justification for departing from it; treat as immutable"""
 
 
 @dataclass(frozen=True)
@@ -309,7 +314,7 @@ class Worksheet:
     def to_dict(self) -> dict:
         """The TOML layout as plain data (empty values left out)."""
         out: dict = {}
-        head = {k: v for k, v in asdict(self.heading).items() if v not in ("", ())}
+        head = {k: v for k, v in asdict(self.heading).items() if v not in ("", (), {})}
         if "assumptions" in head:
             head["assumptions"] = list(head["assumptions"])
         out["worksheet"] = head
@@ -391,9 +396,13 @@ class Worksheet:
         _only(data, tuple(SECTIONS), "")
         head = _table(data, "worksheet")
         _only(head, [f.name for f in fields(Heading)], "worksheet")
+        deviations = _table(head, "deviations", "worksheet")
+        if len(deviations) > MAX_ITEMS:
+            raise InputError("worksheet.deviations", f"takes at most {MAX_ITEMS} deviations")
         heading = Heading(
-            **{k: _text(head, k, "worksheet") for k in head if k != "assumptions"},
+            **{k: _text(head, k, "worksheet") for k in head if k not in ("assumptions", "deviations")},
             assumptions=tuple(_text_list(head, "assumptions", "worksheet")),
+            deviations={str(k): _text(deviations, k, "worksheet.deviations") for k in deviations},
         )
         if heading.convention not in CONVENTIONS:
             raise InputError(

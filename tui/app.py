@@ -25,6 +25,7 @@ from balance.worksheet import Worksheet
 
 from . import offload
 from .background import BackgroundWork, Outcome
+from .house import HOUSE_ACTIONS, HouseMode
 from .session import Session
 from .steps import Steps, screen_class, steps_of
 
@@ -33,7 +34,7 @@ UNIT_NAMES = {"si": "SI", "metric": "metric engineering", "us": "US customary",
               "typed": "as typed (each kind in the unit first typed for it; gauge shown absolute)"}
 
 
-class JoulebookApp(BackgroundWork, App):
+class JoulebookApp(BackgroundWork, HouseMode, App):
     """joulebook's guided worksheet."""
 
     CSS_PATH = "app.tcss"
@@ -60,6 +61,14 @@ class JoulebookApp(BackgroundWork, App):
                 tooltip="Solve the worksheet on another model too and show both side by side"),
         Binding("f3", "export", "Export", id="record.export", show=False,
                 tooltip="Export the calculation report (Markdown or HTML) from the record"),
+        Binding("f5", "toggle_guide", "Guide", id="house.guide",
+                tooltip="Show or hide the house procedure's guidance beside the step"),
+        Binding("f6", "check_step", "Check step", id="practice.check",
+                tooltip="Practice: compare this step with the firm's model answer"),
+        Binding("f7", "show_answer", "Answer", id="practice.answer",
+                tooltip="Practice: show the firm's answer for this step"),
+        Binding("f8", "justify", "Justify", id="house.justify",
+                tooltip="Write the justification of a deviation from a house rule that stops the calculation"),
         Binding("ctrl+pagedown", "next_step", "Next", id="step.next.page", priority=True, show=False,
                 tooltip="Commit this step and open the next one"),
         Binding("ctrl+pageup", "previous_step", "Back", id="step.back.page", priority=True, show=False,
@@ -70,6 +79,10 @@ class JoulebookApp(BackgroundWork, App):
     check = reactive(None, init=False)
     statuses: reactive[dict] = reactive(dict, init=False)
     outcome = reactive(None, init=False)
+    guide_shown: reactive[bool] = reactive(True, init=False)
+    """whether the house procedure's side panel is shown (f5)"""
+    practice_seen = reactive(0, init=False)
+    """bumped after each practice check, for the side panel to redraw"""
     advice = reactive(None, init=False)
     units = reactive("metric", init=False)
     dirty: reactive[tuple] = reactive(tuple, init=False)
@@ -96,6 +109,7 @@ class JoulebookApp(BackgroundWork, App):
         self.set_reactive(JoulebookApp.worksheet, session.worksheet)
         self.set_reactive(JoulebookApp.units, session.units)
         self.set_reactive(JoulebookApp.dirty, session.dirty())
+        self.set_reactive(JoulebookApp.guide_shown, bool(session.extras.get("guide", True)))
         if session.extras.get("theme"):
             self.theme = session.extras["theme"]
 
@@ -214,6 +228,7 @@ class JoulebookApp(BackgroundWork, App):
         if step not in self.steps:
             return  # a step of another kind (the palette listed it before the kind changed)
         self.commit_all(quiet=True, leaving=self.session.step)
+        self.house_leaving(self.session.step)
         self._visit(step)
         self.session.set_step(step)
         self.advice = None
@@ -238,6 +253,8 @@ class JoulebookApp(BackgroundWork, App):
             return True if self.steps.neighbour(self.session.step, -1) else None
         if action == "commit":
             return True if self.dirty else None
+        if action in HOUSE_ACTIONS:
+            return self.house_action_state(action)
         return True
 
     # -- committing and quitting ---------------------------------------------------------

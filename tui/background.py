@@ -39,6 +39,11 @@ class Outcome:
     """once the diagrams are computed (:func:`tui.analysis.trace`): a closed system's
     balance.diagrams.Trace, a steady-flow network's tui.analysis.FlowTraces"""
     seconds: float = 0.0
+    house: tuple = ()
+    """the house procedure's rules applied to this solve (:class:`balance.procedures.Finding`)"""
+    data: dict | None = None
+    """the solve entry's data (:func:`balance.api.entry_data`): what the record files and the
+    procedure's checks and the practice mode read"""
 
 
 class Checked(Message):
@@ -210,7 +215,14 @@ class BackgroundWork:
         except offload.OffloadError as exc:  # not solved at all: nothing to record
             self.post_message(Solved(Outcome(ws, error=str(exc), seconds=time.perf_counter() - t0)))
             return
-        self.post_message(Solved(Outcome(ws, solved.result, solved.message, seconds=time.perf_counter() - t0)))
+        data = house = None
+        if self.session.procedure is not None:
+            from balance.api import entry_data
+
+            data = entry_data(solved)
+            house = tuple(self.session.findings(data, ws))
+        self.post_message(Solved(Outcome(ws, solved.result, solved.message, seconds=time.perf_counter() - t0,
+                                         house=house or (), data=data)))
         self._record_solve(solved)  # the record files this very solve
         if solved.result is None:
             return

@@ -4,7 +4,8 @@ Headless subcommands (``solve``, ``check``, ``state``, ``species``) never
 import Textual, and CoolProp only when the reference model is asked for.
 Exit codes: 0 solved/valid, 1 solved-failed (no convergence, impossible
 process), 2 bad input (message on stderr; ``check`` names every field at
-fault, one a line).
+fault, one a line), 3 solved, but a rule of the house procedure the worksheet
+names stops it (the rules are printed with the result).
 """
 
 from __future__ import annotations
@@ -17,7 +18,7 @@ from types import SimpleNamespace
 
 from balance.errors import BalanceError, InputError, SolveError, SpecificationError
 
-EXIT_OK, EXIT_FAILED, EXIT_INPUT = 0, 1, 2
+EXIT_OK, EXIT_FAILED, EXIT_INPUT, EXIT_HOUSE = 0, 1, 2, 3
 DEMO_SAMPLE = "n2-buffer-into-receiver.toml"
 
 
@@ -74,8 +75,14 @@ def cmd_solve(args) -> int:
             print(history_plot(result, args.units, width=min(shutil.get_terminal_size().columns, 120)))
         if not args.json:
             return EXIT_OK
+    procedure, house = _house(result)
     if args.json:
-        print(json.dumps(api.as_json(result), indent=2, ensure_ascii=False))
+        out = api.as_json(result)
+        if procedure is not None:
+            out["house"] = {"procedure": procedure.id, "version": procedure.version,
+                            "findings": [{"rule": f.rule, "kind": f.kind, "outcome": f.outcome, "message": f.message,
+                                          "justification": f.justification} for f in house]}
+        print(json.dumps(out, indent=2, ensure_ascii=False))
     else:
         from .render import result_renderable
 
@@ -84,7 +91,28 @@ def cmd_solve(args) -> int:
 
             use_typed(result.problem.worksheet)
         _console().print(result_renderable(result, args.units))
-    return EXIT_OK
+        if procedure is not None:
+            from .panels import house_panel
+
+            _console().print(house_panel(house, procedure))
+    return EXIT_HOUSE if any(f.blocks for f in house) else EXIT_OK
+
+
+def _house(result):
+    """The house procedure the solved worksheet names, and its rules applied to the result
+    (None, [] when it names none); a procedure not in the folders is said, not an error."""
+    ws = result.problem.worksheet
+    if not ws.heading.procedure:
+        return None, []
+    from balance import api
+    from balance.procedures import find_or_none, findings
+
+    procedure = find_or_none(ws.heading.procedure)
+    if procedure is None:
+        print(f"joulebook: worksheet.procedure: {ws.heading.procedure!r} is not in the procedure folders "
+              "(`joulebook procedure list`): its rules were not applied", file=sys.stderr)
+        return None, []
+    return procedure, findings(procedure, ws, api.entry_data(api.Attempt(ws, result)))
 
 
 def cmd_check(args) -> int:
@@ -171,6 +199,36 @@ def cmd_open(args) -> int:
 
     _announce_reference_solve(args.record)
     return args.run_app(open_target(args.record, must_exist=args.command == "open"))
+
+
+def cmd_new(args) -> int:
+    from balance.procedures import find
+
+    from .session import Session
+
+    procedure = find(args.procedure, "--procedure") if args.procedure else None
+    if args.record and not args.record.endswith(".jbk"):
+        return _fail(f"{args.record}: a new record's file ends in .jbk", EXIT_INPUT)
+    if args.record and Path(args.record).exists():
+        return _fail(f"{args.record}: already exists; open it with `joulebook open {args.record}`", EXIT_INPUT)
+    return args.run_app(Session.new(args.record, procedure=procedure))
+
+
+def cmd_practice(args) -> int:
+    from balance.procedures import find
+
+    from .session import Session
+
+    procedure = find(args.id, "practice")
+    if not procedure.exercises:
+        return _fail(f"procedure {procedure.id} has no exercises to practise", EXIT_INPUT)
+    exercise = procedure.exercise(args.exercise) if args.exercise else procedure.exercises[0]
+    if exercise is None:
+        return _fail(f"--exercise: procedure {procedure.id} has no exercise {args.exercise!r}; it has "
+                     + ", ".join(e.id for e in procedure.exercises), EXIT_INPUT)
+    print(f"joulebook: practice, {procedure.id} exercise {exercise.id}: {exercise.title} (others: "
+          + (", ".join(e.id for e in procedure.exercises if e is not exercise) or "none") + ")", file=sys.stderr)
+    return args.run_app(Session.new(procedure=procedure, exercise=exercise.id))
 
 
 def _announce_reference_solve(target: str | None) -> None:
@@ -279,13 +337,26 @@ def build_parser():
     p = sub.add_parser("open", help="open a record (.jbk) or start one from a worksheet (.toml) in the terminal app")
     p.add_argument("record", help="record file (.jbk) or worksheet (.toml)")
     p.set_defaults(func=cmd_open)
+    p = sub.add_parser("new", help="start a new worksheet in the terminal app, under a house procedure if named")
+    p.add_argument("record", nargs="?", help="the new record's file (.jbk; default worksheet.jbk here, or the next "
+                   "free name)")
+    p.add_argument("--procedure", metavar="ID", help="the house procedure to follow (`joulebook procedure list`)")
+    p.set_defaults(func=cmd_new)
+
+    p = sub.add_parser("practice", help="practise a house procedure on one of its worked exercises")
+    p.add_argument("id", help="the procedure's id")
+    p.add_argument("--exercise", metavar="ID", help="which exercise (default: its first)")
+    p.set_defaults(func=cmd_practice)
+
     from .record_cli import add_parser as add_record_parser  # `joulebook record …`
     add_record_parser(sub)
+    from .procedure_cli import add_parser as add_procedure_parser  # `joulebook procedure …`
+    add_procedure_parser(sub)
     return parser
 
 
 #: the subcommands; a first word not among them is a file to open
-COMMANDS = ("solve", "check", "state", "species", "demo", "open", "record")
+COMMANDS = ("solve", "check", "state", "species", "demo", "open", "new", "practice", "record", "procedure")
 
 
 def main(argv: list[str] | None = None, *, run_app=run_app) -> int:

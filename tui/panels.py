@@ -21,4 +21,30 @@ def closing_panels(result, units: str, equations_title: str) -> list[Panel]:
     return panels
 
 
-__all__ = ["closing_panels"]
+#: How each outcome of a house rule begins, so it reads without colour too.
+OUTCOME_MARKS = {"pass": ("✓ pass", "green"), "warn": ("! WARN", "yellow"), "stop": ("✗ STOP", "bold red"),
+                 "justified": ("≈ deviation", "cyan"), "n/a": ("· n/a", "dim")}
+
+
+def house_panel(findings, procedure) -> Panel:
+    """A house procedure's rules applied to a result: each check, model rule and required field
+    with its outcome and message, and each deviation with its written justification."""
+    from rich.text import Text
+
+    text = Text()
+    for i, f in enumerate(findings):
+        mark, style = OUTCOME_MARKS.get(f.outcome, OUTCOME_MARKS["n/a"])
+        if i:
+            text.append("\n")
+        text.append(f"{mark:12}", style=style)
+        text.append(f"{f.rule}: ", style="bold")
+        text.append(f.message)
+        if f.justification:
+            text.append(f"\n{'':12}justified: {f.justification}", style="italic")
+    stops = sum(1 for f in findings if f.blocks)
+    title = f"House procedure {procedure.id} v{procedure.version}: " + (
+        f"{stops} rule{'s' if stops > 1 else ''} STOP the sign-off" if stops else "the sign-off may proceed")
+    return Panel(text, title=title, title_align="left", border_style="red" if stops else "green", box=box.SQUARE)
+
+
+__all__ = ["closing_panels", "house_panel"]

@@ -103,6 +103,10 @@ class Session:
     hold: tuple[str, ...] = ()
     """sections never committed while they are so: fields of theirs are at fault (the app
     sets it from its check); they stay in the draft, uncommitted, until they are put right"""
+    procedure: object | None = None
+    """the house procedure the worksheet follows (:class:`balance.procedures.Procedure`), or None"""
+    _guidance: object | None = field(default=None, repr=False, compare=False)
+    """the procedure's current version in the folders, where the record pins an older one"""
     _lock: threading.RLock = field(default_factory=threading.RLock, repr=False, compare=False)
     _draft: DraftFile | None = field(default=None, repr=False, compare=False)
 
@@ -110,14 +114,139 @@ class Session:
         self.path = Path(self.path)
         self._draft = DraftFile(draft_path(self.path))
 
+    # -- the house procedure ----------------------------------------------------------
+    def _attach_procedure(self) -> None:
+        """Find the procedure the record pins (or, before there is a record, the one the
+        worksheet names) in the procedure folders; say where it is older, or missing."""
+        from balance.procedures import find_or_none, from_pin
+
+        pin = None
+        if self.record is not None:
+            from balance.record.house import pinned
+
+            pin = pinned(self.record.entries)
+        wanted = pin["id"] if pin else self.worksheet.heading.procedure
+        if not wanted:
+            self.procedure = None
+            return
+        found = find_or_none(wanted)
+        if pin is not None and (found is None or found.sha256 != pin["sha256"]):
+            try:
+                rules = from_pin(pin)
+            except InputError as exc:
+                self.alarms.append(f"the record's procedure {wanted} does not read: {exc}")
+                rules = None
+            if found is None:
+                self.notes.append(f"procedure {wanted} version {pin['version']} is not in the procedure folders: "
+                                  "its rules apply as the record pinned them, without its guidance")
+                self.procedure = rules
+                return
+            self.notes.append(f"this record was made under {wanted} version {pin['version']}; the folders now have "
+                              f"version {found.version}: the guidance shown is the current one, the rules the "
+                              "record's")
+            self.procedure = rules if rules is not None else found
+            self._guidance = found
+            return
+        if found is None:
+            self.notes.append(f"the worksheet names procedure {wanted!r}, which is not in the procedure folders "
+                              "(`joulebook procedure list`): it is followed without its rules")
+        self.procedure = found
+
+    def guidance(self, step: str) -> str:
+        """The procedure's guidance for ``step`` ('' without a procedure or guidance)."""
+        source = self._guidance or self.procedure
+        return source.guide(step).guidance if source is not None else ""
+
+    def exercise(self):
+        """The exercise a practice session is for (:class:`balance.procedures.schema.Exercise`), or None."""
+        practice = self.extras.get("practice")
+        if not practice or self.procedure is None:
+            return None
+        source = self._guidance or self.procedure
+        return source.exercise(practice.get("exercise", ""))
+
+    def practise(self, step: str, data: dict | None = None):
+        """Compare the worksheet's ``step`` with the exercise's model answer and log the try
+        (:class:`balance.procedures.practice.StepVerdict`); None outside practice, or for a
+        step the exercise does not compare (the review)."""
+        exercise = self.exercise()
+        if exercise is None or step == "review":
+            return None
+        import json
+
+        from balance.procedures.practice import STEP_SECTIONS, PracticeLog, StepVerdict, compare_step
+
+        practice = dict(self.extras["practice"])
+        typed = self.worksheet.to_dict()
+        seen = json.dumps([typed.get(s) for s in STEP_SECTIONS.get(step, ())] if step != "results" else data,
+                          sort_keys=True, default=str)
+        last = practice.get("last", {}).get(step)
+        if last is not None and last.get("seen") == seen:  # compared as it stands already: not another try
+            return StepVerdict(step, last["right"], tuple(last["differences"]), last["hint"], tuple(last["answer"]))
+        verdict = compare_step(self._guidance or self.procedure, exercise, step, self.worksheet, data)
+        log = PracticeLog.of(practice.get("log"))
+        log.record(verdict)
+        practice["log"] = log.steps
+        practice["last"] = {**practice.get("last", {}), step: {
+            "right": verdict.right, "differences": list(verdict.differences), "hint": verdict.hint,
+            "answer": list(verdict.answer), "seen": seen}}
+        self.set_extra("practice", practice)
+        return verdict
+
+    def reveal(self, step: str) -> None:
+        """Log that the trainee asked for the answer at ``step``."""
+        from balance.procedures.practice import PracticeLog
+
+        practice = dict(self.extras.get("practice") or {})
+        if not practice:
+            return
+        log = PracticeLog.of(practice.get("log"))
+        log.revealed(step)
+        practice["log"] = log.steps
+        self.set_extra("practice", practice)
+
+    def practice_summary(self) -> list[str]:
+        """Which steps were right first time ([] outside practice)."""
+        from balance.procedures.practice import PracticeLog
+
+        practice = self.extras.get("practice")
+        if not practice:
+            return []
+        order = [s.id for s in steps_of(self.worksheet.system.kind) if s.id != "review"]
+        return PracticeLog.of(practice.get("log")).summary(order)
+
+    def findings(self, data: dict | None = None, ws: Worksheet | None = None) -> list:
+        """The procedure's rules applied to ``ws`` (default: the worksheet being edited) and,
+        once solved, to the solve entry's ``data`` (:func:`balance.procedures.findings`); []
+        without a procedure."""
+        if self.procedure is None:
+            return []
+        from balance.procedures import findings
+
+        return findings(self.procedure, ws if ws is not None else self.worksheet, data)
+
     # -- opening ------------------------------------------------------------
     @classmethod
-    def new(cls, path: Path | str | None = None, *, directory: Path | str | None = None) -> "Session":
-        """A new, empty worksheet; its record is created at the first commit."""
+    def new(cls, path: Path | str | None = None, *, directory: Path | str | None = None, procedure=None,
+            exercise: str | None = None) -> "Session":
+        """A new, empty worksheet; its record is created at the first commit. Under a
+        ``procedure`` the worksheet starts from its house defaults (the sign convention, the
+        atmosphere, the display units and its first kind of balance); with ``exercise`` (an id
+        of its exercises) it is a practice session, whose record can never be signed."""
         if path is None:
-            path = first_free(Path(directory or os.getcwd()), "worksheet")
+            path = first_free(Path(directory or os.getcwd()), f"practice-{exercise}" if exercise else "worksheet")
         session = cls(path=Path(path))
         session._restore_draft()
+        if procedure is not None and not session.draft_path.exists():
+            session.worksheet = session.committed = house_worksheet(procedure)
+            session.units = procedure.defaults.get("units", session.units)
+            if exercise is not None:
+                if procedure.exercise(exercise) is None:
+                    raise InputError("--exercise", f"procedure {procedure.id} has no exercise {exercise!r}; it has "
+                                     + (", ".join(e.id for e in procedure.exercises) or "none"))
+                session.extras = {**session.extras, "practice": {"exercise": exercise, "log": {}}}
+            session.save_draft()
+        session._attach_procedure()
         return session
 
     @classmethod
@@ -128,7 +257,9 @@ class Session:
         # every input step arrives filled in: count them as visited
         session = cls(path=Path(path), worksheet=ws, extras={"visited": list(steps_of(ws.system.kind).sections)})
         # the reference model solves in its own process (started here, warm for the app)
-        session.record = Record.create(str(path), author=session.author, worksheet=ws, solver=_entry_data)
+        session._attach_procedure()
+        session.record = Record.create(str(path), author=session.author, worksheet=ws, solver=_entry_data,
+                                       procedure=_pinnable(session.procedure))
         session.committed = session.record.worksheet()
         session.save_draft()
         return session
@@ -152,6 +283,13 @@ class Session:
         elif not session.draft_path.exists():
             raise InputError(str(path), "does not exist (give a record .jbk, a worksheet .toml, or no file for a new worksheet)")
         session._restore_draft()
+        session._attach_procedure()
+        if session.record is not None:
+            from balance.record.house import practice_of
+
+            exercise = practice_of(session.record.entries)
+            if exercise and not session.extras.get("practice"):
+                session.extras = {**session.extras, "practice": {"exercise": exercise, "log": {}}}
         return session
 
     @property
@@ -223,7 +361,10 @@ class Session:
                 from balance.record import Record
 
                 self.path.parent.mkdir(parents=True, exist_ok=True)
-                self.record = Record.create(str(self.path), author=self.author)
+                practice = self.extras.get("practice")
+                procedure = _pinnable(self.procedure)
+                self.record = Record.create(str(self.path), author=self.author, procedure=procedure,
+                                            practice=practice["exercise"] if practice and procedure else None)
             written = []
             for section in wanted:
                 written.append(
@@ -402,6 +543,22 @@ class Session:
             self.notes.append(f"restored uncommitted edits to {', '.join(dirty)} from the draft")
 
 
+def _pinnable(procedure):
+    """The procedure a new record pins: one read from its file (with its SHA-256), not rules
+    read back from another record's pin."""
+    return procedure if procedure is not None and procedure.path is not None else None
+
+
+def house_worksheet(procedure) -> Worksheet:
+    """A new worksheet under ``procedure``: its id and house defaults in the heading, its
+    first kind of balance."""
+    from balance.worksheet import Heading, System
+
+    heading = Heading(procedure=procedure.id, **{k: v for k, v in procedure.defaults.items()
+                                                   if k in ("convention", "atmosphere")})
+    return Worksheet(heading=heading, system=System(kind=procedure.kinds[0]))
+
+
 def open_target(target: str | None, *, must_exist: bool = False) -> Session:
     """The session for what the command line names.
 
@@ -433,5 +590,6 @@ def demo_session(sample: Path | str, record: Path | str | None = None) -> Sessio
         folder = Path(tempfile.mkdtemp(prefix="joulebook-demo-"))
         record = folder / (Path(sample).stem + RECORD_SUFFIX)
     session = Session.from_worksheet(ws, record)
-    session.notes.append(f"demo record: {session.path}")
+    session.notes.append(f"demo record: {session.path}; to learn a house procedure on worked exercises: "
+                         "joulebook practice hpp-closed-vessels")
     return session

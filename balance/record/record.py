@@ -158,23 +158,35 @@ class Record:
     @classmethod
     def create(cls, path, author: str | None = None, worksheet: Worksheet | None = None, *,
                clock: Clock | None = None, roles=None, solver: Callable[[dict], dict] | None = None,
-               wait: float = store.WAIT) -> "Record":
+               wait: float = store.WAIT, procedure=None, practice: str | None = None) -> "Record":
         """A new record file: the opening entry, then (given a worksheet) one step entry per
         section its kind of balance reads (:func:`.replay.sections_of`) and a solve entry. Written in one atomic step; refuses an existing file.
 
         ``roles`` overrides the sign-off roles and their order (pinned in the opening).
+        ``procedure`` (a :class:`balance.procedures.Procedure`) is the house procedure the
+        calculation follows: the opening pins its id, version, SHA-256 and rules, and its
+        sign-off roles are the record's. ``practice`` (an exercise's id) marks a practice record:
+        one that can never be signed.
         ``solver`` works out the solve entry's data from the sections: :func:`solve_data`
         by default, or the same in another process (the terminal app keeps CoolProp out of its own).
         """
         path = Path(path)
         if path.exists():
             raise InputError(str(path), "already exists; a record is never overwritten")
-        roles = tuple(roles) if roles is not None else ROLES
+        if practice is not None and procedure is None:
+            raise InputError("practice", "a practice record follows a procedure: give the procedure")
+        if roles is None:
+            roles = procedure.signoff.all_roles if procedure is not None else ROLES
+        roles = tuple(roles)
         if not roles or len(set(roles)) != len(roles) or \
                 not all(isinstance(r, str) and re.fullmatch(r"[a-z][a-z-]*", r) for r in roles):
             raise InputError("roles", "expected distinct lowercase names, like prepared, checked, approved")
         rec = cls(path, (), MAGIC_LINE, clock=clock, author=author, wait=wait)
         data = {"format": FORMAT, **api.pins(), "models": list(MODEL_NAMES), "roles": list(roles)}
+        if procedure is not None:
+            data["procedure"] = procedure.pin()
+        if practice is not None:
+            data["practice"] = {"exercise": _words(practice, "practice")}
         rec._stage(OPENING, data, None)
         if worksheet is not None:
             sheet = sections_of(worksheet)

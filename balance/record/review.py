@@ -14,7 +14,11 @@ Sign-off rules (checked when signing and again when verifying):
 - the checker may not be the preparer of the same revision;
 - approval is refused while any comment is open;
 - the inputs must have been solved after their last change, and that solve
-  must have succeeded.
+  must have succeeded;
+- under a house procedure (pinned in the opening, :mod:`.house`): every role by a different
+  person when it says so, and no rule of it that stops (a failed stop check, a model outside
+  the allowed ones, a required field blank) unless the worksheet justifies the deviation;
+  a practice record is never signed.
 """
 
 from __future__ import annotations
@@ -24,6 +28,7 @@ from typing import Sequence
 
 from ..errors import InputError
 from .chain import chain_break
+from .house import house_signoff_problem
 from .format import COMMENT, CONTENT_KINDS, OPENING, RESOLUTION, SIGN_OFF, SOLVE, Entry
 from .layout import check_depth
 from .replay import Difference, compare, fold
@@ -94,6 +99,9 @@ def signoff_problem(entries: Sequence[Entry], role: str, signer: str) -> str | N
                 f"revision {rev} has no {missing[0]} sign-off yet")
     if role == "checked" and "prepared" in signed and same_person(signed["prepared"].data["signer"], signer):
         return f"the checker may not be the preparer: {signer} prepared revision {rev} (entry {signed['prepared'].seq})"
+    house = house_signoff_problem(entries, role, signer, signed)
+    if house and house.startswith("this is a practice record"):
+        return house
     if role == "approved":
         still = open_comments(entries)
         if still:
@@ -107,7 +115,7 @@ def signoff_problem(entries: Sequence[Entry], role: str, signer: str) -> str | N
         return f"the inputs changed (entry {last_step}) after the last solve (entry {solves[-1].seq}): solve before signing"
     if "error" in solves[-1].data:
         return f"the last solve (entry {solves[-1].seq}) failed: a failed calculation cannot be signed"
-    return None
+    return house
 
 
 # -- diff -------------------------------------------------------------------------------------

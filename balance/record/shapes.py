@@ -69,4 +69,12 @@ def shape_problem(kind: str, data: dict) -> str | None:
             return "a sign-off marked unsigned must not carry a signature"
     if kind == OPENING and not all(isinstance(r, str) for r in data["roles"]):
         return "'roles' must be a list of text"
+    if kind == OPENING and "procedure" in data:
+        pin = data["procedure"]
+        if not isinstance(pin, dict) or not all(isinstance(pin.get(k), str) for k in ("id", "version", "sha256")) \
+                or not isinstance(pin.get("rules"), dict):
+            return "'procedure' must hold the procedure's id, version and sha256 (text) and its rules (a table)"
+    if kind == OPENING and "practice" in data:
+        if not isinstance(data["practice"], dict) or not isinstance(data["practice"].get("exercise"), str):
+            return "'practice' must name its exercise (text)"
     return None

@@ -32,6 +32,14 @@ def opening_text(data: dict) -> str:
         f"Species data SHA-256: {data['species_data_sha256']}",
         "Property models: " + ", ".join(str(m) for m in data["models"]),
         "Sign-off roles, in order: " + ", ".join(data["roles"]),
+    ]
+    pin = data.get("procedure")
+    if isinstance(pin, dict):
+        lines += [f"House procedure: {pin.get('id')} version {pin.get('version')}, {pin.get('title', '')}",
+                  f"Procedure file SHA-256: {pin.get('sha256')} (its rules are kept below)"]
+    if isinstance(data.get("practice"), dict):
+        lines.append(f"PRACTICE record for exercise {data['practice'].get('exercise')}: it can never be signed")
+    lines += [
         "Each entry is sealed: its 'sha256' line is the SHA-256 of its lines from 'entry' to",
         "'follows' (UTF-8, each line ending in a newline), and its 'follows' line repeats the",
         "seal of the entry before it (for entry 1, the SHA-256 of the record's first line).",

@@ -25,6 +25,7 @@ from typing import Sequence
 from .chain import chain_break, head_of
 from ..errors import InputError
 from .format import COMMENT, OPENING, RESOLUTION, SIGN_OFF, SOLVE, Entry, normal_text, parse
+from .house import house_report
 from .review import comment_problem, open_comments, resolution_problem, revisions, signoff_problem
 from .signing import NAMESPACE, message
 from .signing import verify as verify_signature
@@ -74,6 +75,8 @@ class Verification:
     notes: tuple[str, ...] = ()
     recovered: str | None = None
     source: str = "record"
+    house: tuple[str, ...] = ()
+    """what the record's house procedure says (:func:`.house.house_report`)"""
 
     @property
     def later_unsigned(self) -> int:
@@ -105,6 +108,7 @@ class Verification:
                 out.append("every entry is covered by the last sign-off")
         if self.open_comments:
             out.append("open comments: " + ", ".join(f"entry {c}" for c in self.open_comments))
+        out += list(self.house)
         out += [f"note: {n}" for n in self.notes]
         for seq, problem in self.problems:
             out.append(f"FAILED at entry {seq}: {problem}")
@@ -182,7 +186,7 @@ def verify_entries(entries: Sequence[Entry], allowed_signers=None, recovered: st
                  "signatures were not checked: give an allowed-signers file")
     return Verification(ok, True, first[0], first[1], head, len(entries), revs[-1] if revs else 1,
                         tuple(statuses), later, tuple(c.seq for c in open_comments(entries)),
-                        tuple(problems), tuple(notes), recovered, source)
+                        tuple(problems), tuple(notes), recovered, source, tuple(house_report(entries)))
 
 
 def _signoff(e: Entry, before: tuple[Entry, ...], revision: int, allowed_signers, problems: list) -> SignoffStatus:

@@ -109,7 +109,7 @@ temperature for heat from a hotter jacket (that hides the entropy generated).
         yield Label("Kind of system", classes="form-label")
         yield ChoiceList(KINDS, ws.system.kind, disabled_values=tuple(RESERVED), id="kind")
         yield ProblemLine(about="#kind", id="system-problem")
-        yield FieldRow("Inside", ws.system.inside, id="inside", placeholder="what the boundary encloses",
+        yield FieldRow("Inside" + self.house_mark("system.inside"), ws.system.inside, id="inside", placeholder="what the boundary encloses",
                        tooltip="What the boundary encloses")
         default = self.app.session.extras.get("T_boundary", "")
         shared, differs = common_boundary_T(ws, default)

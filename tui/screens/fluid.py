@@ -60,6 +60,7 @@ liquid (use the incompressible or the reference model).
         yield Label("Property model", classes="form-label fluid--model-label")
         yield ChoiceList(MODELS, _canonical(f.model), disabled_values=self._disabled(f.species), id="model")
         yield ProblemLine(about="#model", id="model-problem")
+        yield Static("", id="house-model", markup=False)
         # the hint straight under the model it judges: on screen at 80x24 without scrolling
         yield Label("Adequacy at the states given so far", classes="form-label")
         yield Static("", id="advice", markup=False)
@@ -70,7 +71,16 @@ liquid (use the incompressible or the reference model).
     def on_mount(self) -> None:
         super().on_mount()
         self.watch(self.app, "advice", self._show_advice)
+        self.watch(self.app, "worksheet", lambda _: self._show_house_rule())
         self.app.start_advice()
+
+    def _show_house_rule(self) -> None:
+        """The house rule a model outside its allowed ones breaks, in the rule's own words."""
+        found = [f for f in self.app.session.findings() if f.kind == "model" and f.outcome in ("stop", "warn")]
+        box = self.query_one("#house-model", Static)
+        box.display = bool(found)
+        box.update(Content.assemble(*[(f"{'✗' if f.blocks else '!'} house rule {f.rule}: {f.message}\n",
+                                       "bold $text-error" if f.blocks else "$text-warning") for f in found]))
 
     @staticmethod
     def _disabled(species: str) -> tuple[str, ...]:

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from textual.app import ComposeResult
 from textual.widgets import Label, TextArea
 
@@ -48,15 +50,15 @@ direction when you switch it.
 
     def compose_form(self) -> ComposeResult:
         h = self.worksheet.heading
-        yield FieldRow("Title", h.title, id="title", placeholder="equipment and event, e.g. V-101 blow-down",
+        yield FieldRow("Title" + self.house_mark("worksheet.title"), h.title, id="title", placeholder="equipment and event, e.g. V-101 blow-down",
                        tooltip="One line naming the equipment and the event")
-        yield FieldRow("Job", h.job, id="job", placeholder="job or calculation number",
+        yield FieldRow("Job" + self.house_mark("worksheet.job"), h.job, id="job", placeholder="job or calculation number",
                        tooltip="Job or calculation reference")
-        yield FieldRow("Asked", h.purpose, id="purpose", placeholder="what the calculation must answer",
+        yield FieldRow("Asked" + self.house_mark("worksheet.purpose"), h.purpose, id="purpose", placeholder="what the calculation must answer",
                        tooltip="What the calculation must answer")
-        yield FieldRow("Basis", h.basis, id="basis", placeholder="e.g. all gas in both vessels",
+        yield FieldRow("Basis" + self.house_mark("worksheet.basis"), h.basis, id="basis", placeholder="e.g. all gas in both vessels",
                        tooltip="What the balance is written for")
-        yield Label("Assumptions, one per line", classes="form-label")
+        yield Label("Assumptions, one per line" + self.house_mark("worksheet.assumptions"), classes="form-label")
         area = TextArea("\n".join(h.assumptions), id="assumptions", soft_wrap=True, tab_behavior="focus",
                         placeholder="e.g. rigid vessels")
         yield area
@@ -76,7 +78,8 @@ direction when you switch it.
         convention = q("#convention", ChoiceList).value
         if convention not in CONVENTIONS:
             convention = ws.heading.convention
-        heading = ws.heading.__class__(
+        heading = replace(
+            ws.heading,  # the procedure and the deviations are kept as they are
             title=q("#title", FieldRow).value,
             job=q("#job", FieldRow).value,
             purpose=q("#purpose", FieldRow).value,

@@ -147,7 +147,14 @@ on pressure equipment without the cautions.
             status.update(self._summary(outcome.result, stale=not current))
         if outcome is not None and outcome.result is not None:
             how = shown_for(outcome.result)
-            balance.update(how.render("renderable")(outcome.result, app.units, with_headline=False))
+            shown = how.render("renderable")(outcome.result, app.units, with_headline=False)
+            if outcome.house and app.session.procedure is not None:
+                from rich.console import Group
+
+                from ..panels import house_panel
+
+                shown = Group(house_panel(outcome.house, app.session.procedure), shown)
+            balance.update(shown)
             kind = outcome.result.problem.worksheet.system.kind
             self._show_diagram_tabs(kind if planes(outcome.result) else None)
             for pane, *_ in DIAGRAM_TABS.get(kind, ()):

@@ -22,6 +22,7 @@ from balance.worksheet import Worksheet
 from ..widgets.choice_list import ChoiceList
 from ..widgets.dof_line import DofLine
 from ..widgets.field_row import FieldRow
+from ..widgets.guide_panel import GuidePanel
 from ..widgets.key_bar import KeyBar
 from ..widgets.notice_bar import NoticeBar
 from ..widgets.step_list import StepList
@@ -60,6 +61,7 @@ class StepScreen(Screen):
         yield TitleBar()
         yield StepList(self.STEP, self.app.statuses, id="steps")
         yield Static(f"{step.number}  {step.title}", id="step-heading")
+        yield GuidePanel(self.STEP, id="guide")
         with (VerticalScroll if self.SCROLL else Vertical)(id="form"):
             yield from self.compose_form()
         # the foot: docked, so its lines (as many as the notices and the DOF line need) are
@@ -71,6 +73,11 @@ class StepScreen(Screen):
 
     def compose_form(self) -> ComposeResult:
         yield from ()
+
+    def house_mark(self, field: str) -> str:
+        """' ◆' after the label of a field the house procedure requires ('' otherwise)."""
+        procedure = self.app.session.procedure
+        return " ◆" if procedure is not None and field in procedure.required() else ""
 
     def on_screen_resume(self, event: events.ScreenResume) -> None:
         # Runs before Textual's own handler. The first resume comes as the step opens: its

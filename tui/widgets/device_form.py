@@ -92,6 +92,8 @@ class DeviceForm(ItemForm):
                            placeholder="stream names, a, b", tooltip="The streams out, by name (step 4)")
             for key, (label, tip) in VALUES.items():
                 text = ", ".join(d.fractions) if key == "fractions" else d.values.get(key, "")
+                if key == "T_boundary" and _house_requires(self, "device.T_boundary"):
+                    label += " ◆"
                 yield FieldRow(label, text, id=f"value-{key}", label_width=10, placeholder=EXAMPLES[key],
                                tooltip=tip)
         yield ProblemLine(about="#inlets Input", classes="device-form--problem")
@@ -130,3 +132,9 @@ class DeviceForm(ItemForm):
                            inlets=split_names(self.query_one("#inlets", FieldRow).value),
                            outlets=split_names(self.query_one("#outlets", FieldRow).value),
                            values=values, fractions=fractions)
+
+
+def _house_requires(widget, field: str) -> bool:
+    """Whether the house procedure requires ``field`` of every heater and cooler."""
+    procedure = getattr(widget.app.session, "procedure", None)
+    return procedure is not None and field in procedure.required()

@@ -43,7 +43,7 @@ class HeatTermForm(TermForm):
                            tooltip="The heat, e.g. 400 kJ, or ? to solve for it")
             yield Select(DIRECTIONS, value="out" if negative else "in", allow_blank=False, compact=True,
                          id="direction", tooltip="Heat into the system is positive in the balance")
-            yield FieldRow("T bound.", self.term.T_boundary, kind="temperature", id="T_boundary",
+            yield FieldRow("T bound." + _house_mark(self, "heat.T_boundary"), self.term.T_boundary, kind="temperature", id="T_boundary",
                            positive=True, field_label=f"boundary temperature of heat term {self.index + 1}",
                            label_width=9, tooltip="Temperature of the wall or reservoir the heat crosses")
         yield ProblemLine(about="#value Input")
@@ -54,3 +54,9 @@ class HeatTermForm(TermForm):
         Q = fields.join_sign(direction == "out", magnitude) if not magnitude.strip().startswith("-") else magnitude
         return HeatTerm(name=self.query_one("#name", FieldRow).value, Q=Q,
                         T_boundary=self.query_one("#T_boundary", FieldRow).value)
+
+
+def _house_mark(widget, field: str) -> str:
+    """'◆' where the house procedure requires ``field`` ('' otherwise)."""
+    procedure = getattr(widget.app.session, "procedure", None)
+    return "◆" if procedure is not None and field in procedure.required() else ""
