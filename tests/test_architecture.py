@@ -35,8 +35,11 @@ HEADLESS = [
     "balance.adequacy",
     "balance.diagrams",
     "balance.record",
+    "balance.procedures",
+    "balance.procedures.practice",
     "tui.cli",
     "tui.record_cli",
+    "tui.procedure_cli",
     "tui.session",
     "tui.draft",
     "tui.analysis",
@@ -75,3 +78,26 @@ def test_import_linter_contract():
     out = subprocess.run([sys.executable, "-c", "from importlinter.cli import lint_imports_command; lint_imports_command()"],
                          capture_output=True, text=True, cwd=ROOT)
     assert out.returncode == 0, out.stdout + out.stderr
+
+
+def test_procedure_commands_import_no_ui_and_no_coolprop():
+    """`joulebook procedure list|show|check` are headless: no Textual, no CoolProp."""
+    code = (
+        "import sys, contextlib, io\n"
+        "from tui import cli\n"
+        "with contextlib.redirect_stdout(io.StringIO()):\n"
+        "    cli.main(['procedure', 'list']); cli.main(['procedure', 'show', 'hpp-closed-vessels'])\n"
+        "print([m for m in ('textual', 'CoolProp') if m in sys.modules])"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, check=True)
+    assert out.stdout.strip() == "[]", out.stdout + out.stderr
+
+
+def test_the_app_steps_are_the_steps_a_procedure_names():
+    """A procedure's guidance is keyed by step id (balance.kinds): the app's step table must
+    list the same steps, in the same order, for every kind."""
+    from balance.kinds import KINDS
+    from tui.steps import STEPS_BY_KIND
+
+    assert {kind: tuple(s.id for s in steps) for kind, steps in STEPS_BY_KIND.items()} == \
+        {kind: k.steps for kind, k in KINDS.items()}

@@ -184,14 +184,23 @@ def _species_json(sp) -> dict:
     }
 
 
+#: What the demo offers next: a house procedure's worked exercises.
+PRACTICE_HINT = ("joulebook: to learn a house procedure step by step on worked exercises: "
+                 "joulebook practice hpp-closed-vessels (or hpp-steady-flow)")
+
+
 def cmd_demo(args) -> int:
     if args.print:
         args.file = sample_path(DEMO_SAMPLE)
         args.json = args.csv = args.plot = False
-        return cmd_solve(args)
+        code = cmd_solve(args)
+        print(PRACTICE_HINT, file=sys.stderr)
+        return code
     from .session import demo_session
 
-    return args.run_app(demo_session(sample_path(DEMO_SAMPLE), args.record))
+    code = args.run_app(demo_session(sample_path(DEMO_SAMPLE), args.record))
+    print(PRACTICE_HINT, file=sys.stderr)  # once the app has given the terminal back
+    return code
 
 
 def cmd_open(args) -> int:

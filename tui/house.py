@@ -83,8 +83,10 @@ class HouseMode:
         self.practice_seen += 1
 
     def house_leaving(self, step: str) -> None:
-        """A step is being left: in practice mode, compare it (an input step only)."""
-        if self.session.exercise() is not None and step in self.steps and self.steps[step].sections:
+        """A step is being left: in practice mode, compare it (an input step where something
+        was typed: passing through a step is not a try)."""
+        if (self.session.exercise() is not None and step in self.steps and self.steps[step].sections
+                and self.session.typed_at(step)):
             self.practise_step(step, quiet=True)
 
     def action_justify(self) -> None:

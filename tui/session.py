@@ -193,6 +193,15 @@ class Session:
         self.set_extra("practice", practice)
         return verdict
 
+    def typed_at(self, step: str) -> bool:
+        """Whether anything was typed in ``step``: its sections differ from a new worksheet's
+        under the procedure."""
+        blank = (house_worksheet(self.procedure) if self.procedure is not None else Worksheet()).to_dict()
+        now = self.worksheet.to_dict()
+        sections = steps_of(self.worksheet.system.kind)[step].sections if step in steps_of(
+            self.worksheet.system.kind) else ()
+        return any(now.get(s) != blank.get(s) for s in sections)
+
     def reveal(self, step: str) -> None:
         """Log that the trainee asked for the answer at ``step``."""
         from balance.procedures.practice import PracticeLog
@@ -238,7 +247,8 @@ class Session:
         session = cls(path=Path(path))
         session._restore_draft()
         if procedure is not None and not session.draft_path.exists():
-            session.worksheet = session.committed = house_worksheet(procedure)
+            # the house heading is typed, not committed: the first commit writes it to the record
+            session.worksheet = house_worksheet(procedure)
             session.units = procedure.defaults.get("units", session.units)
             if exercise is not None:
                 if procedure.exercise(exercise) is None:
@@ -247,6 +257,8 @@ class Session:
                 session.extras = {**session.extras, "practice": {"exercise": exercise, "log": {}}}
             session.save_draft()
         session._attach_procedure()
+        if procedure is not None and session.procedure is None:
+            session.procedure = procedure  # given, though not in the folders: it is followed all the same
         return session
 
     @classmethod
@@ -590,6 +602,5 @@ def demo_session(sample: Path | str, record: Path | str | None = None) -> Sessio
         folder = Path(tempfile.mkdtemp(prefix="joulebook-demo-"))
         record = folder / (Path(sample).stem + RECORD_SUFFIX)
     session = Session.from_worksheet(ws, record)
-    session.notes.append(f"demo record: {session.path}; to learn a house procedure on worked exercises: "
-                         "joulebook practice hpp-closed-vessels")
+    session.notes.append(f"demo record: {session.path}")
     return session

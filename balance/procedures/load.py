@@ -245,11 +245,13 @@ def _read(data: dict, reader: _Reader, *, source_dir: Path | None, sha256: str, 
                  enumerate(reader.array(data.get("exercise"), ("exercise",)))]
 
     ids: dict[str, str] = {}
-    for where, rule_id in ([(f"step {s.step}", f) for s in steps.values() for f in s.required]
-                           + [("model_rule", r.id) for r in model_rules if r] + [("check", c.id) for c in checks if c]):
+    named = ([(("step", s.step, "required"), f"step.{s.step}.required", f) for s in steps.values() for f in s.required]
+             + [(("model_rule", i, "id"), f"model_rule[{i + 1}]", r.id) for i, r in enumerate(model_rules) if r]
+             + [(("check", i, "id"), f"check[{i + 1}]", c.id) for i, c in enumerate(checks) if c])
+    for at, where, rule_id in named:
         if rule_id in ids and rule_id:
-            reader.fault(("check",) if where == "check" else ("model_rule",),
-                         f"two rules have the id {rule_id!r} ({ids[rule_id]} and {where}); a deviation names one")
+            reader.fault(at, f"two rules have the id {rule_id!r} ({ids[rule_id]} and {where}); a deviation names "
+                             "one rule by its id")
         ids.setdefault(rule_id, where)
     seen: set[str] = set()
     for i, e in enumerate(exercises):
@@ -289,8 +291,10 @@ def _defaults(reader: _Reader, data) -> dict[str, str]:
 
 
 def _steps(reader: _Reader, data, kinds: list[str]) -> dict[str, StepGuide]:
-    table = reader.table(data, ("step",), ())  if not isinstance(data, dict) else data
+    table = reader.table(data, ("step",), ()) if not isinstance(data, dict) else data
     known = [s for k in kinds for s in KINDS[k].steps]
+    if not kinds:
+        return {}  # no kind read: its steps are not known, and [procedure] kinds says why
     steps: dict[str, StepGuide] = {}
     for step, body in table.items():
         path = ("step", step)

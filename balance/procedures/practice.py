@@ -15,7 +15,7 @@ from pathlib import Path
 
 from ..errors import BalanceError, InputError
 from ..kinds import KINDS
-from ..units import DIMENSIONS, parse
+from ..units import DIMENSIONS, P_ATM, parse
 from ..worksheet import UNKNOWN, Worksheet
 from .evaluate import required_findings
 from .quantities import QUANTITIES, value_of
@@ -52,8 +52,9 @@ def answer_of(exercise: Exercise) -> Worksheet:
     return Worksheet.load(exercise.answer)
 
 
-def _reading(text) -> tuple[str, object]:
-    """A value as typed, made comparable: ('?', None), ('number', x), (dimension, SI) or ('text', words)."""
+def _reading(text, p_atm: float = P_ATM) -> tuple[str, object]:
+    """A value as typed, made comparable: ('?', None), ('number', x), (dimension, SI) or ('text', words);
+    a gauge pressure read against ``p_atm`` [Pa], its worksheet's atmosphere."""
     if isinstance(text, bool):
         return "text", str(text).lower()
     if isinstance(text, (int, float)):
@@ -67,14 +68,14 @@ def _reading(text) -> tuple[str, object]:
         pass
     for dimension in _TRY:
         try:
-            return dimension, parse(text, dimension, "")
+            return dimension, parse(text, dimension, "", p_atm=p_atm)
         except InputError:
             continue
     return "text", " ".join(text.casefold().split())
 
 
-def _same(a, b, tolerance: float) -> bool:
-    (ka, va), (kb, vb) = _reading(a), _reading(b)
+def _same(a, b, tolerance: float, atm: tuple[float, float] = (P_ATM, P_ATM)) -> bool:
+    (ka, va), (kb, vb) = _reading(a, atm[0]), _reading(b, atm[1])
     if ka != kb:
         return False
     if isinstance(va, float) and isinstance(vb, float):
@@ -82,21 +83,22 @@ def _same(a, b, tolerance: float) -> bool:
     return va == vb
 
 
-def _table_differences(mine: dict, theirs: dict, where: str, tolerance: float) -> list[str]:
+def _table_differences(mine: dict, theirs: dict, where: str, tolerance: float,
+                       atm: tuple[float, float] = (P_ATM, P_ATM)) -> list[str]:
     out = []
     for key in sorted(set(mine) | set(theirs)):
         if key in _FREE:
             continue
         a, b = mine.get(key), theirs.get(key)
         if isinstance(a, dict) or isinstance(b, dict):
-            out += _table_differences(a or {}, b or {}, f"{where}.{key}", tolerance)
+            out += _table_differences(a or {}, b or {}, f"{where}.{key}", tolerance, atm)
             continue
         if isinstance(a, list) or isinstance(b, list):
             a_list, b_list = list(a or []), list(b or [])
             if key in ("constraints", "inlets", "outlets"):
                 if sorted(map(str, a_list)) != sorted(map(str, b_list)):
                     out.append(f"{where}.{key}: not what the answer has")
-            elif len(a_list) != len(b_list) or not all(_same(x, y, tolerance) for x, y in zip(a_list, b_list)):
+            elif len(a_list) != len(b_list) or not all(_same(x, y, tolerance, atm) for x, y in zip(a_list, b_list)):
                 out.append(f"{where}.{key}: not what the answer has")
             continue
         if a in (None, "") and b in (None, ""):
@@ -110,22 +112,31 @@ def _table_differences(mine: dict, theirs: dict, where: str, tolerance: float) -
             if _reading(a)[0] != _reading(b)[0]:
                 out.append(f"{where}.{key}: " + ("the answer solves for it" if _reading(b)[0] == UNKNOWN
                                                   else "the answer gives it; you solve for it"))
-        elif not _same(a, b, tolerance):
+        elif not _same(a, b, tolerance, atm):
             out.append(f"{where}.{key}: differs from the answer")
     return out
 
 
+def _atmosphere(ws: Worksheet) -> float:
+    """[Pa] the worksheet's atmosphere (the standard one where it does not read)."""
+    try:
+        return parse(ws.heading.atmosphere, "pressure", "", gauge=False)
+    except InputError:
+        return P_ATM
+
+
 def _section_differences(mine: Worksheet, answer: Worksheet, section: str, tolerance: float) -> list[str]:
     a, b = mine.to_dict().get(section), answer.to_dict().get(section)
+    atm = (_atmosphere(mine), _atmosphere(answer))
     if isinstance(a, list) or isinstance(b, list):
         a, b = list(a or []), list(b or [])
         out = []
         if len(a) != len(b):
             out.append(f"[[{section}]]: you have {len(a)}, the answer has {len(b)}")
         for i, (x, y) in enumerate(zip(a, b)):
-            out += _table_differences(x, y, f"{section}[{i + 1}]", tolerance)
+            out += _table_differences(x, y, f"{section}[{i + 1}]", tolerance, atm)
         return out
-    return _table_differences(a or {}, b or {}, section, tolerance)
+    return _table_differences(a or {}, b or {}, section, tolerance, atm)
 
 
 def _fluid_differences(mine: Worksheet, answer: Worksheet) -> list[str]:
@@ -237,7 +248,7 @@ class PracticeLog:
         entry = dict(self.steps.get(verdict.step, {"tries": 0, "first": None, "revealed": False}))
         entry["tries"] += 1
         if entry["first"] is None:
-            entry["first"] = verdict.right
+            entry["first"] = verdict.right and not entry.get("revealed")  # right after the answer: not first time
         entry["right"] = verdict.right
         self.steps[verdict.step] = entry
 
@@ -252,15 +263,19 @@ class PracticeLog:
         out = []
         for step in order:
             e = self.steps.get(step)
-            if e is None or not e.get("tries"):
+            if e is None or not (e.get("tries") or e.get("revealed")):
                 out.append(f"{step}: not checked")
+                continue
+            tries = f"{e.get('tries', 0)} tr{'y' if e.get('tries') == 1 else 'ies'}"
+            if not e.get("tries"):
+                out.append(f"{step}: the answer was shown")
                 continue
             if e.get("first"):
                 text = "right first time"
             elif e.get("right"):
-                text = f"right after {e['tries']} tries"
+                text = f"right after {tries}"
             else:
-                text = f"not right yet ({e['tries']} tries)"
+                text = f"not right yet ({tries})"
             out.append(f"{step}: {text}" + ("; the answer was shown" if e.get("revealed") else ""))
         first = sum(1 for s in order if self.steps.get(s, {}).get("first"))
         out.append(f"{first} of {len(list(order))} steps right first time")

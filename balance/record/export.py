@@ -58,7 +58,16 @@ def blocks(record, verification) -> list[Block]:
                       f"{opening.get('species_data_sha256', '?')}"),
            ("Verification", _verdict(verification)),
            ("Current revision", _current(verification))]
+    pin = opening.get("procedure")
+    if isinstance(pin, dict):
+        kv.append(("House procedure", f"{pin.get('id')} version {pin.get('version')} (file SHA-256 "
+                                      f"{pin.get('sha256')})"))
+    if isinstance(opening.get("practice"), dict):
+        kv.append(("Practice", f"a practice record (exercise {opening['practice'].get('exercise')}): never signed"))
     out.append(("kv", kv))
+    if head and head.deviations:
+        out += [("h2", "Deviations from the house procedure, justified"),
+                ("olist", [f"{rule}: {why}" for rule, why in head.deviations.items()])]
     if ws_error:
         out.append(("p", f"The worksheet cannot be rebuilt from the record: {ws_error}"))
     if head and head.assumptions:

@@ -32,10 +32,15 @@ def guide_content(session, step: str, outcome=None) -> Content:
     out = [Content.assemble(("House procedure ", "bold $text-accent"), f"{p.id} v{p.version}",
                             ("  (f5 hides)", "$text-muted"))]
     exercise = session.exercise()
+    brief = []
     if exercise is not None:
         out += [Content.assemble(("PRACTICE: ", "bold $text-warning"), exercise.title),
-                Content(_reflowed(exercise.brief)), Content.styled("f6 checks this step against the firm's answer; f7 "
-                                                        "shows the answer", "$text-muted")]
+                Content.styled("f6 checks this step against the firm's answer; f7 shows the answer", "$text-muted")]
+        brief = [Content.styled("The exercise", "bold"), Content(_reflowed(exercise.brief))]
+        out += _practice_lines(session, step)  # the latest comparison first: what the trainee looks for
+        if step == "purpose":  # the brief first where the calculation starts; below the step's own text after
+            out += brief
+            brief = []
     guidance = session.guidance(step)
     if guidance:
         out += [Content(_reflowed(guidance))]
@@ -50,7 +55,7 @@ def guide_content(session, step: str, outcome=None) -> Content:
     if step == "review":
         out += _signoff_lines(session, outcome)
     if exercise is not None:
-        out += _practice_lines(session, step)
+        out += brief
     return Content("\n\n").join(out)
 
 
@@ -121,7 +126,7 @@ class GuidePanel(VerticalScroll):
     """
 
     def __init__(self, step: str, id: str | None = None) -> None:
-        super().__init__(id=id, can_focus=False)
+        super().__init__(id=id, can_focus=True)  # Tab reaches it: the arrows scroll a long brief
         self.step = step
 
     def compose(self):
