@@ -129,7 +129,9 @@ def test_verify_without_the_procedure_in_the_folders(firm, tmp_path, monkeypatch
     lines = house_lines(rec)
     assert lines[1] == "  not in the procedure folders here: its rules are applied as the record pinned them"
     assert lines[2] == "  rules re-applied (as pinned) to the last solve: 8 pass"
-    assert "  approved is required: Above 50 barg the rig lead approves. (P_max = 151 bar(a), above 50 barg)" in lines
+    assert ("  approved is required, NOT signed yet: Above 50 barg the rig lead approves. (P_max = 151 bar(a), "
+            "above 50 barg)") in lines
+    assert "  not yet signed as prepared, checked" in lines
 
 
 def test_record_verify_on_the_command_line(firm, tmp_path, capsys):
@@ -150,7 +152,7 @@ def test_an_escalation_above_its_pressure_adds_a_role(firm, tmp_path):
     assert required_roles(p, data) == ("prepared", "checked", "approved")
     (role, why) = escalated_roles(p, data)[0]
     assert role == "approved" and why == "Above 50 barg the rig lead approves. (P_max = 151 bar(a), above 50 barg)"
-    assert f"  approved is required: {why}" in house_lines(rec)
+    assert f"  approved is required, NOT signed yet: {why}" in house_lines(rec)
 
 
 def test_below_the_escalation_two_roles_sign(firm, tmp_path):
@@ -179,6 +181,9 @@ def test_distinct_signers_refuse_one_person_in_two_roles(firm, tmp_path):
         rec.sign("approved", unsigned=True, signer="alice")  # the record's own rule covers only the checker
     rec.sign("approved", unsigned=True, signer="carol")
     assert [s.signer for s in Record.load(rec.path).verify().signoffs] == ["alice", "bob", "carol"]
+    lines = house_lines(Record.load(rec.path))
+    assert any(line.startswith("  approved is required, signed (entry 11): ") for line in lines)
+    assert not any(line.startswith("  not yet signed as") for line in lines)
 
 
 def test_without_distinct_one_person_may_check_and_approve(firm, tmp_path):

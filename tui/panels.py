@@ -31,19 +31,23 @@ def house_panel(findings, procedure) -> Panel:
     with its outcome and message, and each deviation with its written justification."""
     from rich.text import Text
 
-    text = Text()
-    for i, f in enumerate(findings):
+    order = {"stop": 0, "warn": 1, "justified": 2, "n/a": 3}
+    text = Text(f"{procedure.id} version {procedure.version}", style="dim")
+    for f in sorted((f for f in findings if f.outcome != "pass"), key=lambda f: order.get(f.outcome, 4)):
         mark, style = OUTCOME_MARKS.get(f.outcome, OUTCOME_MARKS["n/a"])
-        if i:
-            text.append("\n")
-        text.append(f"{mark:12}", style=style)
+        text.append("\n")
+        text.append(f"{mark} ", style=style)
         text.append(f"{f.rule}: ", style="bold")
         text.append(f.message)
         if f.justification:
-            text.append(f"\n{'':12}justified: {f.justification}", style="italic")
+            text.append(f"\n  justified: {f.justification}", style="italic")
+    passed = [f.rule for f in findings if f.outcome == "pass"]
+    if passed:  # the passes in one line: what needs reading comes first
+        text.append("\n")
+        text.append(f"{OUTCOME_MARKS['pass'][0]} ", style=OUTCOME_MARKS["pass"][1])
+        text.append(f"{len(passed)} rule{'s pass' if len(passed) > 1 else ' passes'}: " + ", ".join(passed))
     stops = sum(1 for f in findings if f.blocks)
-    title = f"House procedure {procedure.id} v{procedure.version}: " + (
-        f"{stops} rule{'s' if stops > 1 else ''} STOP the sign-off" if stops else "the sign-off may proceed")
+    title = "House rules: " + (f"{stops} STOP the sign-off" if stops else "the sign-off may proceed")
     return Panel(text, title=title, title_align="left", border_style="red" if stops else "green", box=box.SQUARE)
 
 

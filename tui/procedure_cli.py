@@ -53,7 +53,7 @@ def show_lines(p) -> list[str]:
     from balance.procedures.schema import COMPARISONS, REQUIRABLE
 
     out = [f"{p.title}", f"  id {p.id}, version {p.version}, owner {p.owner}",
-           f"  for {', '.join(KINDS[k].title for k in p.kinds)} balances", f"  file {p.path}", f"  sha256 {p.sha256}"]
+           "  for " + "; ".join(KINDS[k].title for k in p.kinds), f"  file {p.path}", f"  sha256 {p.sha256}"]
     if p.summary:
         out += [""] + _para(p.summary, "  ")
     if p.defaults:

@@ -13,7 +13,7 @@ from typing import Sequence
 from ..errors import InputError
 from ..procedures import Procedure, blocking, escalated_roles, find_or_none, findings, from_pin
 from ..worksheet import Worksheet
-from .format import OPENING, SOLVE, Entry
+from .format import OPENING, SIGN_OFF, SOLVE, Entry
 from .replay import fold
 
 
@@ -114,9 +114,23 @@ def house_report(entries: Sequence[Entry]) -> list[str]:
         now = findings(current, ws, data)
         lines.append(f"  rules of the current version {current.version}: {_tally(now)}")
         lines += [f"    {f.line()}" for f in now]
+    signed = _signed_now(entries)
     for role, why in escalated_roles(procedure, data):
-        lines.append(f"  {role} is required: {why}")
+        state = f"signed (entry {signed[role]})" if role in signed else "NOT signed yet"
+        lines.append(f"  {role} is required, {state}: {why}")
+    missing = [r for r in procedure.signoff.roles if r not in signed]
+    if missing:
+        lines.append(f"  not yet signed as {', '.join(missing)}")
     return lines
+
+
+def _signed_now(entries: Sequence[Entry]) -> dict[str, int]:
+    """The roles signed since the calculation last changed, and the entry of each."""
+    from .review import revisions
+
+    revs = revisions(entries)
+    current = revs[-1] if revs else 1
+    return {e.data.get("role"): e.seq for e, r in zip(entries, revs) if e.kind == SIGN_OFF and r == current}
 
 
 def _tally(found) -> str:

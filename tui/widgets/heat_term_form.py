@@ -43,7 +43,7 @@ class HeatTermForm(TermForm):
                            tooltip="The heat, e.g. 400 kJ, or ? to solve for it")
             yield Select(DIRECTIONS, value="out" if negative else "in", allow_blank=False, compact=True,
                          id="direction", tooltip="Heat into the system is positive in the balance")
-            yield FieldRow("T bound." + _house_mark(self, "heat.T_boundary"), self.term.T_boundary, kind="temperature", id="T_boundary",
+            yield FieldRow("T bound◆" if _house_mark(self, "heat.T_boundary") else "T bound.", self.term.T_boundary, kind="temperature", id="T_boundary",
                            positive=True, field_label=f"boundary temperature of heat term {self.index + 1}",
                            label_width=9, tooltip="Temperature of the wall or reservoir the heat crosses")
         yield ProblemLine(about="#value Input")

@@ -133,7 +133,10 @@ class StateForm(ItemForm):
             text = self.query_one(f"#amount-{key}", FieldRow).value
             if text.strip():
                 amount[key] = text
-        return StateInput(name=self.query_one("#name", FieldRow).value, props=props, amount=amount, empty=empty)
+        # a blank name is the name the worksheet reader gives it, so the record reads back what is held
+        name = self.query_one("#name", FieldRow).value or (f"initial {self.index + 1}" if self.role == "initial"
+                                                           else "final")
+        return StateInput(name=name, props=props, amount=amount, empty=empty)
 
     @staticmethod
     def _first_field(empty: bool) -> str:
