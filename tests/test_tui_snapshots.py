@@ -100,3 +100,22 @@ def test_inline_message_for_a_bad_pressure(snap_compare, tmp_path):
         freeze(pilot.app)
 
     assert snap_compare(app_at(tmp_path, DEMO, "states"), terminal_size=SIZE, run_before=run_before)
+
+
+# -- under a house procedure (the bundled hpp-closed-vessels) ------------------------------------
+def test_practice_purpose_step_with_the_brief_beside_it(snap_compare, tmp_path, monkeypatch):
+    from balance.procedures import find
+
+    monkeypatch.delenv("JOULEBOOK_PROCEDURES", raising=False)
+    session = Session.new(tmp_path / "practice.jbk", procedure=find("hpp-closed-vessels"), exercise="disc-burst-n2-pot")
+    assert snap_compare(JoulebookApp(session), terminal_size=SIZE, run_before=steady)
+
+
+def test_results_with_the_house_rules(snap_compare, tmp_path, monkeypatch):
+    from balance.procedures import find
+
+    monkeypatch.delenv("JOULEBOOK_PROCEDURES", raising=False)
+    answer = find("hpp-closed-vessels").exercise("disc-burst-n2-pot").answer
+    session = Session.from_worksheet(Worksheet.load(answer), tmp_path / "disc.jbk")
+    session.step = "results"
+    assert snap_compare(JoulebookApp(session), terminal_size=SIZE, run_before=steady)
