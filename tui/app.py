@@ -522,6 +522,7 @@ class JoulebookApp(BackgroundWork, HouseMode, App):
             yield SystemCommand(f"Units: {UNIT_NAMES[units]}", f"Show results in {UNIT_NAMES[units]} units",
                                 lambda u=units: self.set_units(u))
         yield SystemCommand("Light or dark", "Switch between the light and the dark theme", self.toggle_light_dark)
+        yield from self.house_commands()
         extra = getattr(screen, "step_commands", None)
         if extra is not None:
             yield from extra()

@@ -110,3 +110,19 @@ class HouseMode:
                                           f"{rule.message}\n\nWhy is departing from this house rule right here? "
                                           "The justification is kept in the record for the checker.",
                                           "the reason, in a sentence or two"), written)
+
+    def house_commands(self):
+        """The palette's commands of the house procedure (none without one)."""
+        from textual.app import SystemCommand
+
+        if self.session.procedure is None:
+            return
+        yield SystemCommand("Show or hide the house guidance", "The procedure's guidance beside the step (f5)",
+                            self.action_toggle_guide)
+        if self.session.exercise() is not None:
+            yield SystemCommand("Check this step against the firm's answer", "Practice mode (f6)",
+                                self.action_check_step)
+            yield SystemCommand("Show the firm's answer for this step", "Practice mode (f7)", self.action_show_answer)
+        if self.session.step == "results" and self._unjustified():
+            yield SystemCommand("Justify a deviation from a house rule", "A rule that stops the sign-off (f8)",
+                                self.action_justify)

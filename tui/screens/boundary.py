@@ -117,7 +117,7 @@ temperature for heat from a hotter jacket (that hides the entropy generated).
                        positive=True, id="boundary-T",
                        tooltip="Temperature of the wall or reservoir where heat crosses")
         yield Static(self._boundary_note(ws, differs), id="boundary-note", classes="hint")
-        yield Label("Sketch (ctrl+t drafts one)", classes="form-label")
+        yield Label("Sketch (ctrl+t drafts one)" + self.house_mark("system.sketch"), classes="form-label")
         yield TextArea(ws.system.sketch, id="sketch", soft_wrap=False, tab_behavior="focus",
                        placeholder="a few lines showing the boundary")
 
