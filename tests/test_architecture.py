@@ -101,3 +101,12 @@ def test_the_app_steps_are_the_steps_a_procedure_names():
 
     assert {kind: tuple(s.id for s in steps) for kind, steps in STEPS_BY_KIND.items()} == \
         {kind: k.steps for kind, k in KINDS.items()}
+
+
+def test_practice_compares_each_step_by_the_sections_the_app_commits_there():
+    from balance.procedures.practice import STEP_SECTIONS
+    from tui.steps import STEPS_BY_KIND
+
+    for steps in STEPS_BY_KIND.values():
+        for step in steps:
+            assert STEP_SECTIONS.get(step.id, ()) == step.sections, step.id

@@ -19,7 +19,8 @@ from tui.session import Session
 
 from .test_output_app import text_of
 from .test_tui_pilot import (SAMPLES, SIZE, author, fill, in_row, is_widget, focus, kinds, next_step,  # noqa: F401
-                             ready, settle, solve_on_results, tick_constraints, type_fluid, type_purpose,
+                             ready, settle, sign_off_unsigned, solve_on_results, tick_constraints, type_fluid,
+                             type_purpose,
                              type_state, wait_until)
 
 PROCEDURE = '''
@@ -142,13 +143,7 @@ async def test_practice_by_keys_wrong_then_right_and_never_signed(tmp_path, auth
         assert "fluid: right after 2 tries; the answer was shown" in text
         assert "states: right after 2 tries" in text
         assert "A practice record is never signed." in text
-        await pilot.press("ctrl+g")
-        await pilot.pause(0.2)
-        await focus(pilot, is_widget("unsigned"))
-        await pilot.press("space")
-        await focus(pilot, is_widget("sign"))
-        await pilot.press("enter")
-        await settle(pilot)
+        await sign_off_unsigned(pilot)
         assert "sign-off" not in kinds(session)
         assert any("practice record" in n.message for n in app.notices)
     opening = session.entries()[0].data
@@ -188,13 +183,7 @@ async def test_a_stop_is_justified_by_keys_and_the_record_keeps_it(tmp_path, aut
         await solve_on_results(pilot)
         assert [f.outcome for f in app.outcome.house if f.rule == "real-gas-above-10-bar"] == ["justified"]
         await next_step(pilot)
-        await pilot.press("ctrl+g")
-        await pilot.pause(0.2)
-        await focus(pilot, is_widget("unsigned"))
-        await pilot.press("space")
-        await focus(pilot, is_widget("sign"))
-        await pilot.press("enter")
-        await settle(pilot)
+        await sign_off_unsigned(pilot)
     last = session.entries()[-1]
     assert (last.kind, last.data["role"]) == ("sign-off", "prepared")
     purposes = [e for e in session.entries() if e.kind == "purpose and basis"]

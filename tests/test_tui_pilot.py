@@ -100,6 +100,18 @@ async def next_step(pilot) -> None:
     await settle(pilot)
 
 
+async def sign_off_unsigned(pilot) -> None:
+    """On the review step: ctrl+g, tick 'unsigned', press Sign off (the role and signer as offered)."""
+    await pilot.press("ctrl+g")
+    await pilot.pause(0.2)
+    assert type(pilot.app.screen).__name__ == "SignScreen"
+    await focus(pilot, is_widget("unsigned"))
+    await pilot.press("space")
+    await focus(pilot, is_widget("sign"))
+    await pilot.press("enter")
+    await settle(pilot)
+
+
 def kinds(session: Session) -> list[str]:
     return [e.kind for e in session.entries()]
 
@@ -194,14 +206,7 @@ async def test_demo_walked_solved_recorded_and_signed(tmp_path, author):
 
         await next_step(pilot)  # review and sign
         assert app.session.step == "review"
-        await pilot.press("ctrl+g")  # sign off
-        await pilot.pause(0.2)
-        assert type(app.screen).__name__ == "SignScreen"
-        await focus(pilot, is_widget("unsigned"))
-        await pilot.press("space")
-        await focus(pilot, is_widget("sign"))
-        await pilot.press("enter")
-        await settle(pilot)
+        await sign_off_unsigned(pilot)
         last = session.entries()[-1]
         assert (last.kind, last.data["role"], last.data["signer"], last.data.get("unsigned")) == (
             "sign-off", "prepared", "t.engineer", True)
