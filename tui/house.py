@@ -62,7 +62,11 @@ class HouseMode:
             return
         self.practice_seen += 1
         title = self.steps[step].title if step in self.steps else step
-        if verdict.right:
+        if verdict.right and step == "results":
+            summary = self.session.practice_summary()
+            self.notify(f"{title}: matches the firm's answer. Exercise done: {summary[-1]} (the review step lists "
+                        "each)", markup=False, timeout=15)
+        elif verdict.right:
             self.notify(f"{title}: matches the firm's answer", markup=False)
         else:
             self.notify(f"{title}: {len(verdict.differences)} difference{'s' if len(verdict.differences) > 1 else ''} "
