@@ -88,19 +88,20 @@ def _given_states(ws: Worksheet):
 def advise(ws: Worksheet) -> Advice:
     """Z, Tr, Pr and phase at each state with two given properties, and a recommendation."""
     from .errors import TwoPhaseError
+    from .mixture import pseudo_pure
     from .models import canonical, make_model
-    from .state import make_fluid, read_specs
+    from .state import fluid_pair, read_specs
 
     f = ws.fluid
     if not f.species.strip() or not f.model.strip():
         missing = "a species" if not f.species.strip() else "a property model"
         return Advice(f.model, problems=(f"choose {missing} to see how well the model fits",), adequate=False)
     try:
-        species, model = make_fluid(f.species, f.model, f.overrides)
+        species, model = fluid_pair(f)
         name = canonical(f.model)
     except BalanceError as exc:
         return Advice(f.model, problems=(str(exc),), adequate=False)
-    yardstick = make_model("peng-robinson", species) if name == "ideal-gas" else None
+    yardstick = make_model("peng-robinson", pseudo_pure(species)) if name == "ideal-gas" else None
     hints, problems = [], []
     wet = liquid = near_critical = real_gas = False
     for label, props, p_atm in _given_states(ws):

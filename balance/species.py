@@ -210,6 +210,8 @@ class Species:
     sources: dict = field(default_factory=dict, compare=False)
     overrides: tuple[tuple[str, str], ...] = ()
     """(constant, text as given) pairs set by a worksheet"""
+    composition: tuple[tuple[str, float], ...] = ()
+    """a mixture's components (species id, mole fraction); () for a pure species (:mod:`balance.mixture`)"""
 
     def __repr__(self) -> str:
         return f"Species({self.id!r}, M={self.M * 1e3:.4f} g/mol, Tc={self.Tc:g} K, Pc={self.Pc:g} Pa)"

@@ -162,15 +162,48 @@ def flash(model: PropertyModel, name: str = "state", n: float = 1.0, **specs: fl
 
 def make_fluid(species: str, model: str, overrides: Mapping[str, str] | None = None, *,
                fields: tuple[str, str, str] = ("fluid.species", "fluid.model", "fluid.overrides"),
+               composition: Mapping[str, str] | None = None, fractions: str = "", normalise: bool = False,
                ) -> tuple[Species, PropertyModel]:
     """The species (with a worksheet's overrides applied) and the property model for it.
 
     The one place the pair is built, for a worksheet's problem, the model's
     adequacy advice and the command line's ``state``. ``fields`` name the
-    species, the model and the overrides in errors. Raises InputError.
+    species, the model and the overrides in errors. A ``composition`` (species
+    -> fraction as typed, :mod:`balance.mixture`) makes the species a mixture,
+    ``species`` then its name; so does a bundled composition's id as
+    ``species`` (``dry-air``). Raises InputError.
     """
     from .models import make_model
-    from .species import lookup, with_overrides
+    from .species import with_overrides
 
-    sp, params = with_overrides(lookup(species, fields[0]), dict(overrides or {}), fields[2])
+    sp = species_named(species, composition, fractions, normalise, fields[0])
+    if sp.composition and overrides:
+        raise InputError(fields[2], "do not apply to a mixture: its constants follow from its components' data")
+    sp, params = with_overrides(sp, dict(overrides or {}), fields[2])
     return sp, make_model(model, sp, params, field=fields[1])
+
+
+def species_named(species: str, composition: Mapping[str, str] | None = None, fractions: str = "",
+                  normalise: bool = False, field: str = "fluid.species") -> Species:
+    """A pure species by name, a bundled composition by id, or the mixture of ``composition``
+    (named ``species``). Raises InputError naming the field."""
+    from .mixture import bundled_mixture, mixture, read_composition
+    from .species import lookup
+
+    if composition:
+        where = field.rsplit(".", 1)[0]
+        return mixture(read_composition(composition, fractions, normalise, f"{where}.composition"), species)
+    found = bundled_mixture(species) if isinstance(species, str) and species.strip() else None
+    return found if found is not None else lookup(species, field)
+
+
+def species_of(fluid) -> Species:
+    """The species (or mixture) of a worksheet's ``[fluid]`` section, without its overrides."""
+    return species_named(fluid.species, fluid.composition, fluid.fractions, fluid.normalise)
+
+
+def fluid_pair(fluid, model: str | None = None) -> tuple[Species, PropertyModel]:
+    """:func:`make_fluid` for a worksheet's ``[fluid]`` section (a :class:`~balance.worksheet.Fluid`),
+    on its own model or ``model``."""
+    return make_fluid(fluid.species, model or fluid.model, fluid.overrides, composition=fluid.composition,
+                      fractions=fluid.fractions, normalise=fluid.normalise)

@@ -10,7 +10,8 @@ The sections:
 
 ``[worksheet]``  title, job, purpose, basis, assumptions, convention, atmosphere, procedure,
                  ``[worksheet.deviations]`` (a house rule's id = the written justification)
-``[fluid]``      species, model, ``[fluid.overrides]``
+``[fluid]``      species, model, ``[fluid.overrides]``; a mixture's ``composition`` (a table of
+                 fractions), ``fractions`` (mole or mass), ``normalise``
 ``[system]``     kind (a name in :mod:`balance.kinds`: "closed"; "open" is reserved), inside, sketch
 ``[[initial]]``  one table per compartment at the start
 ``[final]``      the state at the end
@@ -152,9 +153,16 @@ class Heading:
 @dataclass(frozen=True)
 class Fluid:
     species: str = ""
+    """a species, a bundled composition's id (dry-air), or the name of the composition below"""
     model: str = ""
     overrides: dict[str, str] = field(default_factory=dict)
     """constant name -> text; treat as immutable (replace the Fluid to change it)"""
+    composition: dict[str, str] = field(default_factory=dict)
+    """a mixture: species -> fraction as typed; treat as immutable"""
+    fractions: str = ""
+    """mole (the default) or mass"""
+    normalise: bool = False
+    """scale fractions that do not add up to 1"""
 
 
 @dataclass(frozen=True)
@@ -321,6 +329,11 @@ class Worksheet:
         fluid = {"species": self.fluid.species, "model": self.fluid.model}
         if self.fluid.overrides:
             fluid["overrides"] = dict(self.fluid.overrides)
+        if self.fluid.composition:
+            fluid["composition"] = dict(self.fluid.composition)
+        fluid["fractions"] = self.fluid.fractions
+        if self.fluid.normalise:
+            fluid["normalise"] = True
         out["fluid"] = {k: v for k, v in fluid.items() if v not in ("", {})}
         out["system"] = {k: v for k, v in asdict(self.system).items() if v != ""}
         flow = self.system.kind != "closed"  # no compartments unless some were typed
@@ -410,12 +423,21 @@ class Worksheet:
                 f"expected one of {', '.join(CONVENTIONS)}; got {shown(heading.convention)}",
             )
         fl = _table(data, "fluid")
-        _only(fl, ("species", "model", "overrides"), "fluid")
+        _only(fl, ("species", "model", "overrides", "composition", "fractions", "normalise"), "fluid")
         overrides = _table(fl, "overrides", "fluid")
+        composition = _table(fl, "composition", "fluid")
+        if len(composition) > MAX_ITEMS:
+            raise InputError("fluid.composition", f"takes at most {MAX_ITEMS} components")
+        normalise = fl.get("normalise", False)
+        if not isinstance(normalise, bool):
+            raise InputError("fluid.normalise", f"must be true or false; got {normalise!r}")
         fluid = Fluid(
             species=_text(fl, "species", "fluid"),
             model=_text(fl, "model", "fluid"),
             overrides={k: _text(overrides, k, "fluid.overrides") for k in overrides},
+            composition={k: _text(composition, k, "fluid.composition") for k in composition},
+            fractions=_text(fl, "fractions", "fluid"),
+            normalise=normalise,
         )
         sy = _table(data, "system")
         _only(sy, ("kind", "inside", "sketch"), "system")

@@ -20,6 +20,7 @@ HEADLESS = [
     "balance.units",
     "balance.species",
     "balance.models",
+    "balance.mixture",
     "balance.models.cubic",
     "balance.models.idealgas",
     "balance.state",

@@ -517,14 +517,14 @@ def system_problems(ws: Worksheet) -> list[FieldProblem]:
 def fluid_problems(ws: Worksheet) -> list[FieldProblem]:
     """The species and the model: known names, and a model the species can use."""
     from balance.models import canonical
-    from balance.species import lookup
+    from balance.state import species_of
 
     f = ws.fluid
     out: list[FieldProblem] = []
     sp = model = None
-    if f.species.strip():
+    if f.species.strip() or f.composition:
         try:
-            sp = lookup(f.species, "fluid.species")
+            sp = species_of(f)
         except InputError as exc:
             out += _at("fluid", "fluid", None, "species", str(exc))
     if f.model.strip():
@@ -619,7 +619,7 @@ COMPARED = ("closed",)
 
 def with_model(ws: Worksheet, model: str) -> Worksheet:
     """The worksheet with its property model replaced (species and overrides kept)."""
-    return ws.with_(fluid=ws.fluid.__class__(species=ws.fluid.species, model=model, overrides=ws.fluid.overrides))
+    return ws.with_(fluid=replace(ws.fluid, model=model))
 
 
 def compared(ws: Worksheet, models: tuple[str, str], attempts: tuple[api.Attempt, api.Attempt]) -> Comparison:

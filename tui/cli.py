@@ -160,18 +160,23 @@ def cmd_species(args) -> int:
 
     from .render import species_detail, species_table
 
+    from balance.mixture import bundled, bundled_mixture
+
     if args.name:
-        sp = lookup(args.name, "NAME")
+        sp = bundled_mixture(args.name) or lookup(args.name, "NAME")
         if args.json:
             print(json.dumps(_species_json(sp), indent=2))
         else:
             _console().print(species_detail(sp))
     else:
         entries = list(catalogue().values())
+        mixtures = [bundled_mixture(key) for key in bundled()]
         if args.json:
-            print(json.dumps([_species_json(sp) for sp in entries], indent=2))
+            print(json.dumps([_species_json(sp) for sp in entries + mixtures], indent=2))
         else:
             _console().print(species_table(entries))
+            print("Bundled compositions (a worksheet's species, or `joulebook species ID`): "
+                  + "; ".join(f"{key} ({entry['name']})" for key, entry in bundled().items()))
     return EXIT_OK
 
 
@@ -181,6 +186,7 @@ def _species_json(sp) -> dict:
         "M": {"value": sp.M, "unit": "kg/mol"}, "Tc": {"value": sp.Tc, "unit": "K"},
         "Pc": {"value": sp.Pc, "unit": "Pa"}, "omega": sp.omega, "coolprop": sp.coolprop,
         "cp_ideal_gas": sp.cp_ig.label, "sources": sp.sources,
+        **({"composition": dict(sp.composition)} if sp.composition else {}),
     }
 
 

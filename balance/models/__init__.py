@@ -76,7 +76,12 @@ def make_model(name: str, species: Species, params: dict[str, float] | None = No
     and constants), so one instance serves every solve that asks for the
     same model: a second solve pays for none of it again.
     """
-    return _model(canonical(name, field), species, tuple(sorted((params or {}).items())))
+    key = canonical(name, field)
+    if species.composition and key != "ideal-gas":
+        raise InputError(field, f"{key} does not take a mixture in this version: a mixture ({species.formula}) is "
+                                "modelled as an ideal-gas mixture; choose ideal-gas (the cubics' mixing rules and "
+                                "the reference model's mixtures are not built yet)")
+    return _model(key, species, tuple(sorted((params or {}).items())))
 
 
 @lru_cache(maxsize=64)

@@ -47,6 +47,9 @@ class IdealGas(PropertyModel):
 
     @property
     def reference_state(self) -> str:
+        if self.species.composition:
+            return ("each component's ideal gas at 298.15 K and 1 bar: h = 0, s = 0 (the mixture's s there is its "
+                    "entropy of mixing, -R Σ y ln y)")
         return "ideal gas at 298.15 K and 1 bar: h = 0, s = 0"
 
     def equations(self) -> list[str]:
@@ -55,7 +58,8 @@ class IdealGas(PropertyModel):
             "u(T) = h(T) - R T;  h(T) = ∫ cp°(T) dT from 298.15 K",
             "s(T, P) = ∫ cp°/T dT from 298.15 K - R ln(P / 1 bar)",
             f"cp°(T): {self.species.cp_ig.label}",
-        ]
+        ] + ([f"mixture: cp°, h° mole-weighted; s°(T) = Σ y_i s_i°(T) - R Σ y_i ln y_i; y = {self.species.formula}"]
+             if self.species.composition else [])
 
     def at_Tv(self, T: float, v: float) -> Point:
         check_arguments(T=T, v=v)
@@ -126,9 +130,10 @@ class IdealGas(PropertyModel):
 
     def _real_Z(self, T: float, P: float) -> float | None:
         """Z [-] of Peng-Robinson at T [K], P [Pa]: the measure of how far from ideal the gas is."""
+        from ..mixture import pseudo_pure
         from . import make_model
 
-        try:
-            return make_model("peng-robinson", self.species).at_TP(T, P).Z
+        try:  # a mixture judged as one pseudo-pure gas of Kay's constants
+            return make_model("peng-robinson", pseudo_pure(self.species)).at_TP(T, P).Z
         except InputError:
             return None

@@ -2,11 +2,13 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from textual.app import ComposeResult
 from textual.content import Content
 from textual.widgets import Label, Static
 
-from balance.worksheet import Fluid, Worksheet
+from balance.worksheet import Worksheet
 
 from ..analysis import sig
 from ..widgets.choice_list import ChoiceList
@@ -105,7 +107,8 @@ liquid (use the incompressible or the reference model).
         # keep the model's text as typed (an alias such as 'pr') unless another model was chosen
         value = ws.fluid.model if _canonical(ws.fluid.model) == model.value else model.value
         overrides = parse_overrides(self.query_one("#overrides", FieldRow).value)
-        return ws.with_(fluid=Fluid(species=species, model=value, overrides=overrides))
+        # a mixture's composition (typed in the worksheet file) is kept as it is
+        return ws.with_(fluid=replace(ws.fluid, species=species, model=value, overrides=overrides))
 
     def on_species_picker_picked(self, event: SpeciesPicker.Picked) -> None:
         self.changed()

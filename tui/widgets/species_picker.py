@@ -30,6 +30,15 @@ def matches(query: str):
         if not q or any(q in k for k in keys):
             exact = any(q == k for k in keys)
             out.append((0 if exact else 1, sp))
+    from types import SimpleNamespace
+
+    from balance.mixture import bundled
+
+    for key, entry in bundled().items():  # the bundled compositions, named as a species is
+        keys = [_norm(key), _norm(entry["name"])]
+        if not q or any(q in k for k in keys):
+            # its own id typed whole comes first: a species may have the same words as an alias ('dry air')
+            out.append((-1 if q == keys[0] else 1, SimpleNamespace(id=key, name=entry["name"])))
     out.sort(key=lambda t: t[0])
     return [sp for _, sp in out]
 
@@ -88,6 +97,7 @@ class SpeciesPicker(Widget):
 
     def _fill(self, query: str) -> None:
         from balance.errors import InputError
+        from balance.mixture import bundled_mixture
         from balance.species import lookup
 
         results = self.query_one("#species-results", OptionList)
@@ -101,9 +111,12 @@ class SpeciesPicker(Widget):
             note.update(f"{len(found)} species{first}; type to narrow, ↓ to choose")
             return
         try:
-            sp = lookup(query, "species")
+            sp = bundled_mixture(query) or lookup(query, "species")
         except InputError as exc:
             note.update(exc.message)
+            return
+        if sp.composition:
+            note.update(f"→ {sp.name} (a mixture, ideal gas): {sp.formula}; M = {sp.M * 1e3:.4g} g/mol")
             return
         ref = "reference model: yes" if sp.coolprop else "reference model: no"
         note.update(f"→ {sp.name} ({sp.id}): M = {sp.M * 1e3:.4g} g/mol, Tc = {sp.Tc:.5g} K, "

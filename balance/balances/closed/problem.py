@@ -17,8 +17,8 @@ from ...convention import Convention
 from ...errors import InputError, SpecificationError
 from ...models.base import Point, PropertyModel
 from ...species import Species
-from ...species import lookup, with_overrides
-from ...state import State, make_fluid, read_spec, read_specs
+from ...species import with_overrides
+from ...state import State, fluid_pair, read_spec, read_specs, species_of
 from ...units import P_ATM
 from ...worksheet import UNKNOWN, FieldProblem, Worksheet, place
 from ..control_volume import (Dof, Heat, Unknown, Work, check_term_names, read_amount, read_atmosphere,
@@ -105,7 +105,7 @@ def prepare(ws: Worksheet) -> Problem:
         raise InputError("fluid.species", "give the species, e.g. 'N2' (`joulebook species` lists them)")
     if not ws.fluid.model:
         raise InputError("fluid.model", "give the property model, e.g. 'peng-robinson'")
-    species, model = make_fluid(ws.fluid.species, ws.fluid.model, ws.fluid.overrides)
+    species, model = fluid_pair(ws.fluid)
     constraints = set(ws.process.constraints)
     if "free-expansion" in constraints:
         constraints |= {"rigid", "adiabatic"}
@@ -339,14 +339,14 @@ def problems(ws: Worksheet) -> list[FieldProblem]:
         refuse("fluid.species", "give the species, e.g. 'N2' (`joulebook species` lists them)")
     if not fl.model:
         refuse("fluid.model", "give the property model, e.g. 'peng-robinson'")
-    species = at("fluid.species", lambda: lookup(fl.species, "fluid.species")) if fl.species else None
+    species = at("fluid.species", lambda: species_of(fl)) if fl.species or fl.composition else None
     if species is not None:
         M = species.M
         before = len(out)
         for key, text in fl.overrides.items():
             at(f"fluid.overrides.{key}", lambda: with_overrides(species, {key: text}))
         if fl.model and len(out) == before:
-            at("fluid.model", lambda: make_fluid(fl.species, fl.model, fl.overrides))
+            at("fluid.model", lambda: fluid_pair(fl))
 
     for si in ws.initial:
         where = f"initial '{si.name}'"

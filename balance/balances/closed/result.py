@@ -77,6 +77,7 @@ class Result:
         return {
             "title": p.worksheet.heading.title,
             "species": p.species.id,
+            **({"composition": dict(p.species.composition)} if p.species.composition else {}),
             "model": p.model.name,
             "reference_state": p.model.reference_state,
             "convention": p.convention.key,

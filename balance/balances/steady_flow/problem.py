@@ -15,7 +15,7 @@ from functools import cached_property
 
 from ...convention import Convention
 from ...errors import BalanceError, InputError, SpecificationError
-from ...state import make_fluid, read_specs
+from ...state import fluid_pair, make_fluid, read_specs
 from ...units import P_ATM, parse, read_rate
 from ...worksheet import DEVICE_KINDS, UNKNOWN, FieldProblem, Worksheet, place
 from ..control_volume import Dof, Unknown, read_atmosphere
@@ -78,8 +78,8 @@ def prepare(ws: Worksheet) -> Problem:
     if not ws.devices:
         raise InputError("device", "give the devices: each a name, a kind and the streams it joins")
     default = None
-    if ws.fluid.species or ws.fluid.model:
-        default = make_fluid(ws.fluid.species, ws.fluid.model, dict(ws.fluid.overrides))
+    if ws.fluid.species or ws.fluid.model or ws.fluid.composition:
+        default = fluid_pair(ws.fluid)
     names = [s.name for s in ws.streams]
     twice = sorted({n for n in names if names.count(n) > 1})
     if twice:
@@ -97,6 +97,8 @@ def _model_of(st, ws: Worksheet, default):
     """The property model a stream is balanced on: its own species and model, else the worksheet's."""
     where = f"stream '{st.name}'"
     if st.species or st.model:
+        if not st.species and ws.fluid.composition:  # the worksheet's mixture on the stream's own model
+            return fluid_pair(ws.fluid, st.model)[1]
         species = st.species or ws.fluid.species
         _, model = make_fluid(species, st.model or ws.fluid.model,
                               dict(ws.fluid.overrides) if species == ws.fluid.species else {},
@@ -224,8 +226,8 @@ def problems(ws: Worksheet) -> list[FieldProblem]:
     found: list[InputError] = []
     try:
         p_atm = read_atmosphere(ws.heading.atmosphere)
-        default = make_fluid(ws.fluid.species, ws.fluid.model, dict(ws.fluid.overrides)) \
-            if ws.fluid.species or ws.fluid.model else None
+        default = fluid_pair(ws.fluid) \
+            if ws.fluid.species or ws.fluid.model or ws.fluid.composition else None
     except InputError:
         p_atm = default = None  # prepare names it, below
     if p_atm is not None:

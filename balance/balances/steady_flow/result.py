@@ -75,6 +75,7 @@ class Result:
             pt = f.point
             streams[name] = {
                 "species": f.model.species.id, "model": f.model.name,
+                **({"composition": dict(f.model.species.composition)} if f.model.species.composition else {}),
                 **{k: quantity(getattr(pt, k), u) for k, u in (("T", "K"), ("P", "Pa"), ("v", "m**3/mol"),
                                                               ("h", "J/mol"), ("s", "J/(mol*K)"))},
                 "x": quantity(pt.x, "dimensionless"), "phase": phase_words(pt),

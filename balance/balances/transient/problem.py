@@ -16,7 +16,7 @@ from dataclasses import dataclass, field
 from functools import cached_property
 
 from ...errors import InputError
-from ...state import make_fluid, read_specs
+from ...state import fluid_pair, read_specs
 from ...units import parse, read_rate
 from ...worksheet import FieldProblem, Worksheet, place
 from ..control_volume import Dof, read_atmosphere, read_volume
@@ -376,7 +376,7 @@ def prepare(ws: Worksheet) -> Problem:
     if not ws.fluid.species or not ws.fluid.model:
         raise InputError("fluid.species" if not ws.fluid.species else "fluid.model",
                          "give the species and the model of the vessel's gas")
-    _, model = make_fluid(ws.fluid.species, ws.fluid.model, dict(ws.fluid.overrides))
+    _, model = fluid_pair(ws.fluid)
     from .gas import tv_function
 
     tv_function(model)  # refuses a model with no gas
@@ -467,7 +467,7 @@ def problems(ws: Worksheet) -> list[FieldProblem]:
         p_atm = None
     if ws.fluid.species and ws.fluid.model:
         try:
-            model = make_fluid(ws.fluid.species, ws.fluid.model, dict(ws.fluid.overrides))[1]
+            model = fluid_pair(ws.fluid)[1]
         except InputError as exc:
             found.append(exc)
     if model is not None and p_atm is not None:

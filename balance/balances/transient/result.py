@@ -70,6 +70,8 @@ class Result:
         M = p.M
         out: dict = {"title": p.worksheet.heading.title, "kind": "transient", "case": self.case,
                      "end": p.end.words(), "model": p.model.name, "species": p.model.species.id}
+        if p.model.species.composition:
+            out["composition"] = dict(p.model.species.composition)
         if self.end_state is not None:
             e = self.end_state
             out["end_state"] = {
