@@ -169,3 +169,17 @@ def pseudo_pure(sp: Species) -> Species:
     from dataclasses import replace
 
     return replace(sp, id="pseudo-pure mixture", composition=())
+
+
+def wilson_psat(sp: Species, T: float) -> float:
+    """Vapour pressure [Pa] of a component at T [K] by Wilson's K-value correlation,
+    ln(Psat / Pc) = 5.373 (1 + ω)(1 - Tc / T): an estimate for screening, not a saturation line."""
+    return sp.Pc * math.exp(5.373 * (1.0 + sp.omega) * (1.0 - sp.Tc / T))
+
+
+def dew_screen(sp: Species, T: float, P: float) -> tuple[float, str]:
+    """Σ yᵢ P / Psatᵢ(T) with Wilson's vapour pressures (Raoult's law: at or above 1, at or below
+    the mixture's dew point, estimated), and the component that contributes most."""
+    parts = [(i, y * P / wilson_psat(lookup(i), T)) for i, y in sp.composition]
+    worst = max(parts, key=lambda p: p[1])[0] if parts else ""
+    return sum(r for _, r in parts), worst

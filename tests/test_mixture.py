@@ -223,3 +223,15 @@ def test_the_record_keeps_the_composition(tmp_path, monkeypatch):
     assert "composition" in fluid.text and "CH4 = 0.9" in fluid.text
     assert rec.entries[-1].data["composition"] == {"CH4": 0.9, "C2H6": 0.07, "N2": 0.03}
     assert rec.replay().ok
+
+
+def test_a_mixture_below_its_estimated_dew_point_is_warned_about():
+    """Flue gas with 16.7 % water at 1.1 bar: water's partial pressure 0.184 bar is above its vapour
+    pressure at 40 °C (7.38 kPa, CoolProp 8.0 IAPWS-95) and far below it at 180 °C (10.0 bar):
+    the screen warns at the one and not at the other."""
+    CP = pytest.importorskip("CoolProp.CoolProp")
+    assert CP.PropsSI("P", "T", 313.15, "Q", 0, "Water") < 0.167 * 1.1e5 < CP.PropsSI("P", "T", 453.15, "Q", 0, "Water")
+    sp, model = api.fluid("hpp-flue-gas", "ideal-gas")
+    cold = model.warnings(model.at_TP(313.15, 1.1e5))
+    assert any("dew point" in w and "most from H2O" in w for w in cold)
+    assert not any("dew point" in w for w in model.warnings(model.at_TP(453.15, 1.1e5)))

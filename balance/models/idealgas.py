@@ -119,6 +119,17 @@ class IdealGas(PropertyModel):
                 f"T = {p.T:.2f} K is outside the range of the cp° polynomial ({cp_ig.range_text}); "
                 "cp, h and s there are extrapolated"
             )
+        if self.species.composition:
+            from ..mixture import dew_screen
+
+            ratio, worst = dew_screen(self.species, p.T, p.P)
+            if ratio >= 1.0:
+                out.append(
+                    f"at {p.T:.2f} K, {p.P / 1e5:.4g} bar the mixture is at or below its dew point as estimated by "
+                    f"Raoult's law with Wilson's vapour pressures (Σ y P / Psat = {ratio:.3g}, most from {worst}): "
+                    "part of it may condense, and the ideal-gas mixture makes no phase split; the result is for "
+                    "the gas as if it stayed gas"
+                )
         Z = self._real_Z(p.T, p.P)
         if Z is not None and abs(Z - 1.0) > Z_TOLERANCE:
             out.append(
