@@ -28,7 +28,7 @@ from typing import Mapping
 import numpy as np
 
 from .errors import InputError
-from .species import IdealGasHeatCapacity, Species, lookup
+from .species import HeatCapacityTerms, IdealGasHeatCapacity, Species, lookup
 from .units import R, parse
 
 #: How far the fractions may add up from 1 before they are refused (unless normalised).
@@ -39,7 +39,7 @@ COMPOSITIONS_FILE = "compositions.toml"
 
 
 @dataclass(frozen=True)
-class MixtureHeatCapacity:
+class MixtureHeatCapacity(HeatCapacityTerms):
     """cp°, h° and s° (at 1 bar) of an ideal-gas mixture from its components' (mole fractions y)."""
 
     parts: tuple[tuple[float, IdealGasHeatCapacity], ...]
@@ -56,15 +56,6 @@ class MixtureHeatCapacity:
             c, hh, ss = part.terms(T)
             cp, h, s = cp + y * c, h + y * hh, s + y * ss
         return cp, h, s + self.mixing_entropy
-
-    def cp(self, T):
-        return self.terms(T)[0]
-
-    def h(self, T):
-        return self.terms(T)[1]
-
-    def s(self, T):
-        return self.terms(T)[2]
 
     def in_range(self, T: float) -> bool:
         return all(part.in_range(T) for _, part in self.parts)

@@ -92,8 +92,24 @@ def _arg(T):
     return T if isinstance(T, float) else np.asarray(T, dtype=float)
 
 
+class HeatCapacityTerms:
+    """cp°, h° and s° one at a time, from a class's ``terms(T)`` (all three at once)."""
+
+    def cp(self, T):
+        """cp° [J/(mol K)] at T [K] (float or array)."""
+        return self.terms(T)[0]
+
+    def h(self, T):
+        """h° [J/mol] relative to the ideal gas at 298.15 K."""
+        return self.terms(T)[1]
+
+    def s(self, T):
+        """s° [J/(mol K)] at 1 bar relative to the ideal gas at 298.15 K, 1 bar."""
+        return self.terms(T)[2]
+
+
 @dataclass(frozen=True)
-class IdealGasHeatCapacity:
+class IdealGasHeatCapacity(HeatCapacityTerms):
     """cp°(T) of the ideal gas and the h°, s° that follow from it.
 
     Either the species' NASA polynomials or a constant (a worksheet may set
@@ -136,18 +152,6 @@ class IdealGasHeatCapacity:
             return c + 0.0 * T, c * (T - T_REF), c * log(T / T_REF)
         h_ref, s_ref = self._ref
         return R * cp_R, R * (T * h_RT - h_ref), R * (s_R - s_ref)
-
-    def cp(self, T):
-        """cp° [J/(mol K)] at T [K] (float or array)."""
-        return self.terms(T)[0]
-
-    def h(self, T):
-        """h° [J/mol] relative to the ideal gas at 298.15 K."""
-        return self.terms(T)[1]
-
-    def s(self, T):
-        """s° [J/(mol K)] at 1 bar relative to the ideal gas at 298.15 K, 1 bar."""
-        return self.terms(T)[2]
 
     def in_range(self, T: float) -> bool:
         if self.constant_cp is not None:
