@@ -135,10 +135,10 @@ def _typed_states(ws):
 
 def _critical_T(ws) -> float | None:
     from ..errors import BalanceError
-    from ..species import lookup
+    from ..state import species_of
 
     try:
-        return lookup(ws.fluid.species).Tc
+        return species_of(ws.fluid).Tc  # a mixture's: Kay's pseudo-critical
     except (BalanceError, AttributeError):
         return None
 

@@ -70,7 +70,11 @@ def house_signoff_problem(entries: Sequence[Entry], role: str, signer: str, sign
     data = _last_solve(entries)
     if data is None or "error" in data:
         return None  # the record's own rules refuse it
-    stops = blocking(findings(procedure, _worksheet(entries), data))
+    try:
+        ws = _worksheet(entries)
+    except InputError as exc:
+        return f"the worksheet cannot be rebuilt from the record to apply procedure {procedure.id}: {exc}"
+    stops = blocking(findings(procedure, ws, data))
     if stops:
         first = stops[0]
         more = f" (and {len(stops) - 1} more)" if len(stops) > 1 else ""
@@ -106,7 +110,10 @@ def house_report(entries: Sequence[Entry]) -> list[str]:
         lines.append(f"  an OLDER version: the folders now have version {current.version} (sha256 {current.sha256}) "
                      f"at {current.path}")
     data = _last_solve(entries)
-    ws = _worksheet(entries)
+    try:
+        ws = _worksheet(entries)
+    except InputError as exc:
+        return lines + [f"  the worksheet cannot be rebuilt from the record: {exc}; its rules were not applied"]
     found = findings(procedure, ws, data)
     lines.append(f"  rules re-applied (as pinned) to the last solve: {_tally(found)}")
     lines += [f"    {f.line()}" for f in found]
