@@ -146,5 +146,9 @@ class GuidePanel(VerticalScroll):
         shown = self.app.session.procedure is not None and self.app.guide_shown
         self.set_class(shown, "-shown")
         self.screen.set_class(shown, "-guided")
+        for steps in self.screen.query("#steps"):  # the step list gives up its titles meanwhile
+            if steps.has_class("-compact") != shown:
+                steps.set_class(shown, "-compact")
+                steps.refresh()
         if shown:
             self.query_one("#guide-text", Static).update(guide_content(self.app.session, self.step, self.app.outcome))

@@ -67,7 +67,9 @@ class StepList(LineList):
         # the count of fields at fault beside the cross (two columns, as every mark has)
         mark += ((str(faults) if faults < 10 else "+") if faults else " ") + " "
         here = step.id == self.current
-        return Content.assemble((mark, style), (f"{step.number} {step.short}", "bold underline" if here else ""))
+        # compact beside a house procedure's guidance: the marks and numbers, the heading names the step
+        label = f"{step.number}" if self.has_class("-compact") else f"{step.number} {step.short}"
+        return Content.assemble((mark, style), (label, "bold underline" if here else ""))
 
     def on_mount(self) -> None:
         self.watch(self.app, "statuses", self.show_statuses, init=False)  # built with them
