@@ -163,6 +163,7 @@ def flash(model: PropertyModel, name: str = "state", n: float = 1.0, **specs: fl
 def make_fluid(species: str, model: str, overrides: Mapping[str, str] | None = None, *,
                fields: tuple[str, str, str] = ("fluid.species", "fluid.model", "fluid.overrides"),
                composition: Mapping[str, str] | None = None, fractions: str = "", normalise: bool = False,
+               named: Mapping[str, Mapping[str, str]] | None = None,
                ) -> tuple[Species, PropertyModel]:
     """The species (with a worksheet's overrides applied) and the property model for it.
 
@@ -171,12 +172,13 @@ def make_fluid(species: str, model: str, overrides: Mapping[str, str] | None = N
     species, the model and the overrides in errors. A ``composition`` (species
     -> fraction as typed, :mod:`balance.mixture`) makes the species a mixture,
     ``species`` then its name; so does a bundled composition's id as
-    ``species`` (``dry-air``). Raises InputError.
+    ``species`` (``dry-air``), or one of the worksheet's ``named`` compositions
+    (``[fluid.compositions]``). Raises InputError.
     """
     from .models import make_model
     from .species import with_overrides
 
-    sp = species_named(species, composition, fractions, normalise, fields[0])
+    sp = species_named(species, composition, fractions, normalise, fields[0], named)
     if sp.composition and overrides:
         raise InputError(fields[2], "do not apply to a mixture: its constants follow from its components' data")
     sp, params = with_overrides(sp, dict(overrides or {}), fields[2])
@@ -184,26 +186,31 @@ def make_fluid(species: str, model: str, overrides: Mapping[str, str] | None = N
 
 
 def species_named(species: str, composition: Mapping[str, str] | None = None, fractions: str = "",
-                  normalise: bool = False, field: str = "fluid.species") -> Species:
-    """A pure species by name, a bundled composition by id, or the mixture of ``composition``
-    (named ``species``). Raises InputError naming the field."""
+                  normalise: bool = False, field: str = "fluid.species",
+                  named: Mapping[str, Mapping[str, str]] | None = None) -> Species:
+    """A pure species by name, one of the ``named`` compositions or a bundled one by its name, or
+    the mixture of ``composition`` (named ``species``). Raises InputError naming the field."""
     from .mixture import bundled_mixture, mixture, read_composition
     from .species import lookup
 
     if composition:
         where = field.rsplit(".", 1)[0]
         return mixture(read_composition(composition, fractions, normalise, f"{where}.composition"), species)
+    if named and species in named:
+        return mixture(read_composition(named[species], fractions, normalise, f"fluid.compositions.{species}"),
+                       species)
     found = bundled_mixture(species) if isinstance(species, str) and species.strip() else None
     return found if found is not None else lookup(species, field)
 
 
 def species_of(fluid) -> Species:
     """The species (or mixture) of a worksheet's ``[fluid]`` section, without its overrides."""
-    return species_named(fluid.species, fluid.composition, fluid.fractions, fluid.normalise)
+    return species_named(fluid.species, fluid.composition, fluid.fractions, fluid.normalise,
+                         named=fluid.compositions)
 
 
 def fluid_pair(fluid, model: str | None = None) -> tuple[Species, PropertyModel]:
     """:func:`make_fluid` for a worksheet's ``[fluid]`` section (a :class:`~balance.worksheet.Fluid`),
     on its own model or ``model``."""
     return make_fluid(fluid.species, model or fluid.model, fluid.overrides, composition=fluid.composition,
-                      fractions=fluid.fractions, normalise=fluid.normalise)
+                      fractions=fluid.fractions, normalise=fluid.normalise, named=fluid.compositions)

@@ -11,7 +11,8 @@ The sections:
 ``[worksheet]``  title, job, purpose, basis, assumptions, convention, atmosphere, procedure,
                  ``[worksheet.deviations]`` (a house rule's id = the written justification)
 ``[fluid]``      species, model, ``[fluid.overrides]``; a mixture's ``composition`` (a table of
-                 fractions), ``fractions`` (mole or mass), ``normalise``
+                 fractions), ``fractions`` (mole or mass), ``normalise``; ``[fluid.compositions.NAME]``
+                 named mixtures a stream may name as its species
 ``[system]``     kind (a name in :mod:`balance.kinds`: "closed"; "open" is reserved), inside, sketch
 ``[[initial]]``  one table per compartment at the start
 ``[final]``      the state at the end
@@ -163,6 +164,9 @@ class Fluid:
     """mole (the default) or mass"""
     normalise: bool = False
     """scale fractions that do not add up to 1"""
+    compositions: dict[str, dict[str, str]] = field(default_factory=dict)
+    """named mixtures a stream may name as its species: name -> (species -> fraction as typed),
+    read with the fractions basis and normalise above; treat as immutable"""
 
 
 @dataclass(frozen=True)
@@ -334,6 +338,8 @@ class Worksheet:
         fluid["fractions"] = self.fluid.fractions
         if self.fluid.normalise:
             fluid["normalise"] = True
+        if self.fluid.compositions:
+            fluid["compositions"] = {k: dict(v) for k, v in self.fluid.compositions.items()}
         out["fluid"] = {k: v for k, v in fluid.items() if v not in ("", {})}
         out["system"] = {k: v for k, v in asdict(self.system).items() if v != ""}
         flow = self.system.kind != "closed"  # no compartments unless some were typed
@@ -423,7 +429,7 @@ class Worksheet:
                 f"expected one of {', '.join(CONVENTIONS)}; got {shown(heading.convention)}",
             )
         fl = _table(data, "fluid")
-        _only(fl, ("species", "model", "overrides", "composition", "fractions", "normalise"), "fluid")
+        _only(fl, ("species", "model", "overrides", "composition", "fractions", "normalise", "compositions"), "fluid")
         overrides = _table(fl, "overrides", "fluid")
         composition = _table(fl, "composition", "fluid")
         if len(composition) > MAX_ITEMS:
@@ -438,6 +444,7 @@ class Worksheet:
             composition={k: _text(composition, k, "fluid.composition") for k in composition},
             fractions=_text(fl, "fractions", "fluid"),
             normalise=normalise,
+            compositions=_compositions(_table(fl, "compositions", "fluid")),
         )
         sy = _table(data, "system")
         _only(sy, ("kind", "inside", "sketch"), "system")
@@ -693,6 +700,24 @@ def _end(t: dict) -> EndInput:
     _only(t, (*END_KEYS, "balanced", "vessel"), "end")
     return EndInput(values={k: _text(t, k, "end") for k in END_KEYS if k in t},
                     balanced=_flag(t, "balanced", "end"), vessel=_text(t, "vessel", "end"))
+
+
+def _compositions(table: dict) -> dict[str, dict[str, str]]:
+    """``[fluid.compositions.NAME]`` tables: each a mixture's fractions by species, as typed."""
+    if len(table) > MAX_ITEMS:
+        raise InputError("fluid.compositions", f"takes at most {MAX_ITEMS} compositions")
+    out = {}
+    for name, fractions in table.items():
+        if len(str(name)) > MAX_NAME:
+            raise InputError("fluid.compositions", f"{shown(str(name), MAX_NAME)}: a composition's name is at most "
+                                                   f"{MAX_NAME} characters")
+        where = f"fluid.compositions.{name}"
+        if not isinstance(fractions, dict):
+            raise InputError(where, "must be a table of fractions by species, like {CH4 = 0.9, C2H6 = 0.1}")
+        if len(fractions) > MAX_ITEMS:
+            raise InputError(where, f"takes at most {MAX_ITEMS} components")
+        out[str(name)] = {k: _text(fractions, k, where) for k in fractions}
+    return out
 
 
 def _only(table: dict, allowed, where: str) -> None:

@@ -78,7 +78,7 @@ def prepare(ws: Worksheet) -> Problem:
     if not ws.devices:
         raise InputError("device", "give the devices: each a name, a kind and the streams it joins")
     default = None
-    if ws.fluid.species or ws.fluid.model or ws.fluid.composition:
+    if ws.fluid.species or ws.fluid.composition:  # a model alone: each stream names its species
         default = fluid_pair(ws.fluid)
     names = [s.name for s in ws.streams]
     twice = sorted({n for n in names if names.count(n) > 1})
@@ -102,7 +102,9 @@ def _model_of(st, ws: Worksheet, default):
         species = st.species or ws.fluid.species
         _, model = make_fluid(species, st.model or ws.fluid.model,
                               dict(ws.fluid.overrides) if species == ws.fluid.species else {},
-                              fields=(f"{where}.species", f"{where}.model", "fluid.overrides"))
+                              fields=(f"{where}.species", f"{where}.model", "fluid.overrides"),
+                              fractions=ws.fluid.fractions, normalise=ws.fluid.normalise,
+                              named=ws.fluid.compositions)
         return model
     if default is None:
         raise InputError("fluid.species", "give the species and model (for every stream, or each its own)")
@@ -227,7 +229,7 @@ def problems(ws: Worksheet) -> list[FieldProblem]:
     try:
         p_atm = read_atmosphere(ws.heading.atmosphere)
         default = fluid_pair(ws.fluid) \
-            if ws.fluid.species or ws.fluid.model or ws.fluid.composition else None
+            if ws.fluid.species or ws.fluid.composition else None
     except InputError:
         p_atm = default = None  # prepare names it, below
     if p_atm is not None:
