@@ -143,7 +143,7 @@ class _Reader:
         value = table.get(key)
         if value is None:
             if required:
-                self.fault(path + (key,) if path + (key,) in self.lines else path, f"{key} is missing: it is required")
+                self.fault(path, f"{key} is missing: it is required")  # its table's line: the key has none
             return ""
         if not isinstance(value, str):
             self.fault(path + (key,), f"must be text; got {_shown(value)}")
