@@ -158,12 +158,55 @@ def cmd_state(args) -> int:
 def cmd_species(args) -> int:
     from balance.species import catalogue, lookup
 
-    from .render import species_detail, species_table
+    from .render import kij_table, species_detail, species_table
 
     from balance.mixture import bundled, bundled_mixture
 
-    if args.name:
-        sp = bundled_mixture(args.name) or lookup(args.name, "NAME")
+    names = args.name or []
+    if args.kij:  # the binary interaction parameters: every bundled pair, or those of the components named
+        from balance.interaction import TABLE_OF, bundled_pairs, kij_set
+        from balance.models import canonical
+
+        model = canonical(args.model or "peng-robinson", "--model")
+        if model not in TABLE_OF:
+            raise InputError("--model", f"binary interaction parameters belong to the cubic models "
+                                        f"({', '.join(TABLE_OF)}); got {model}")
+        title = f"Binary interaction parameters kij, {model}"
+        if names:
+            ids: list[str] = []
+            for name in names:
+                sp = bundled_mixture(name)
+                for sid in [i for i, _ in sp.composition] if sp else [lookup(name, "NAME").id]:
+                    if sid not in ids:
+                        ids.append(sid)
+            if len(ids) < 2:
+                raise InputError("NAME", f"--kij needs two species or more, or a bundled composition; got only {ids[0]}")
+            kset = kij_set(ids, model)
+            used, note = kset.used, kset.warning()
+            extra = {"components": list(kset.ids), "matrix": [list(row) for row in kset.matrix],
+                     "missing": [list(pair) for pair in kset.missing()], "warning": note}
+        else:
+            used = bundled_pairs(model)
+            note = (f"{len(used)} pairs; a pair not listed is 0 unless [fluid.kij] in the worksheet gives it" if used
+                    else f"{model} has no bundled binary interaction parameters: kij = 0 for every pair unless "
+                         "[fluid.kij] in the worksheet gives one")
+            extra = {"note": note}
+        if args.json:
+            print(json.dumps({"model": model, "pairs": [{"i": i, "j": j, "kij": value, "source": source}
+                                                        for i, j, value, source in used], **extra}, indent=2))
+        else:
+            if used:
+                _console().print(kij_table(used, title))
+            if note:
+                print(note)
+        return EXIT_OK
+    if args.model is not None:
+        raise InputError("--model", "goes with --kij: the model whose binary interaction parameters to show")
+    if len(names) > 1:
+        raise InputError("NAME", f"give one species or composition to show (got {len(names)}); several names go "
+                                 "with --kij, which shows their binary interaction parameters")
+    if names:
+        sp = bundled_mixture(names[0]) or lookup(names[0], "NAME")
         if args.json:
             print(json.dumps(_species_json(sp), indent=2))
         else:
@@ -338,8 +381,13 @@ def build_parser():
     p.add_argument("--units", **units)
     p.set_defaults(func=cmd_state)
 
-    p = sub.add_parser("species", help="list species, or show one with its sources")
-    p.add_argument("name", nargs="?")
+    p = sub.add_parser("species", help="list species, or show one with its sources; --kij: binary interaction "
+                       "parameters")
+    p.add_argument("name", nargs="*", metavar="NAME", help="a species or bundled composition (several with --kij)")
+    p.add_argument("--kij", action="store_true", help="the bundled kij with their sources: every pair, or the pairs "
+                   "of the components NAME gives")
+    p.add_argument("--model", help="with --kij: peng-robinson (default), soave-redlich-kwong, redlich-kwong or "
+                   "van-der-waals")
     p.add_argument("--json", action="store_true")
     p.set_defaults(func=cmd_species)
 

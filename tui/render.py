@@ -235,3 +235,13 @@ def state_renderable(st: State, units: str, warnings: list[str]) -> Group:
     if warnings:
         parts.append(Text("\n".join(f"• {w}" for w in warnings), style="yellow"))
     return Group(*parts)
+
+
+def kij_table(used, title: str) -> Table:
+    """Binary interaction parameters, one row per pair: (id_i, id_j, kij, source) as ``KijSet.used`` holds them."""
+    t = Table(box=box.SIMPLE_HEAD, title=title, title_justify="left")
+    for col in ("pair", "kij", "source"):
+        t.add_column(col, no_wrap=col != "source", justify="right" if col == "kij" else "left")
+    for i, j, value, source in used:
+        t.add_row(f"{i}-{j}", f"{value:.10g}", source)
+    return t
