@@ -263,7 +263,25 @@ def entry_data(solved: Attempt) -> dict:
         data.update(error_kind=solved.error_kind, error=solved.error)
     else:
         data.update(as_json(solved.result))
+        mixtures = mixture_pins(solved.result.problem)
+        if mixtures:
+            data["mixtures"] = mixtures
     return data
+
+
+def mixture_pins(problem) -> list[dict]:
+    """What a cubic mixture's numbers depend on beyond the species data: for each such model the
+    problem uses, its composition and every kij with its source (the record keeps them)."""
+    models = [getattr(problem, "model", None), *(getattr(st, "model", None) for st in getattr(problem, "streams", ()))]
+    out, seen = [], set()
+    for m in models:
+        kij = getattr(m, "kij", None)
+        if kij is None or id(m) in seen:
+            continue
+        seen.add(id(m))
+        out.append({"model": m.name, "composition": dict(m.species.composition),
+                    "kij": [{"pair": f"{i}-{j}", "value": k, "source": src} for i, j, k, src in kij.used]})
+    return out
 
 
 # -- what the app draws and advises --------------------------------------------------------

@@ -150,7 +150,7 @@ def _value(value, field: str) -> float:
 _MAX_KEY = 201
 
 
-def _pair(key: str, field: str) -> tuple[str, str]:
+def pair_ids(key: str, field: str) -> tuple[str, str]:
     """The two species ids a key like ``"CH4-CO2"`` or ``"n-butane-carbon dioxide"`` names."""
     from .species import lookup
 
@@ -198,7 +198,7 @@ def read_kij(table: Mapping[str, object], ids: Sequence[str], field: str = "flui
     first_key: dict[tuple[str, str], str] = {}
     for key, value in table.items():
         name = f"{field}.{key}"
-        i, j = _pair(str(key), name)
+        i, j = pair_ids(str(key), name)
         if i == j:
             raise InputError(name, f"pairs {i} with itself; a kij joins two different components")
         for sp in (i, j):
@@ -249,4 +249,4 @@ def kij_set(ids: Sequence[str], model: str, given: Mapping[tuple[str, str], floa
     return KijSet(ids=ids, model=model, matrix=tuple(tuple(row) for row in matrix), used=tuple(used))
 
 
-__all__ = ["GIVEN", "MISSING", "TABLE_OF", "KijSet", "bundled_pairs", "kij_set", "read_kij"]
+__all__ = ["GIVEN", "MISSING", "TABLE_OF", "KijSet", "bundled_pairs", "kij_set", "pair_ids", "read_kij"]

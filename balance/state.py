@@ -164,6 +164,7 @@ def make_fluid(species: str, model: str, overrides: Mapping[str, str] | None = N
                fields: tuple[str, str, str] = ("fluid.species", "fluid.model", "fluid.overrides"),
                composition: Mapping[str, str] | None = None, fractions: str = "", normalise: bool = False,
                named: Mapping[str, Mapping[str, str]] | None = None,
+               kij: Mapping[str, str] | None = None,
                ) -> tuple[Species, PropertyModel]:
     """The species (with a worksheet's overrides applied) and the property model for it.
 
@@ -173,7 +174,9 @@ def make_fluid(species: str, model: str, overrides: Mapping[str, str] | None = N
     -> fraction as typed, :mod:`balance.mixture`) makes the species a mixture,
     ``species`` then its name; so does a bundled composition's id as
     ``species`` (``dry-air``), or one of the worksheet's ``named`` compositions
-    (``[fluid.compositions]``). Raises InputError.
+    (``[fluid.compositions]``). ``kij`` is a worksheet's ``[fluid.kij]`` table (pair -> value
+    as typed), read against the mixture's components; with several named compositions, each
+    reads the pairs of its own components. Raises InputError.
     """
     from .models import make_model
     from .species import with_overrides
@@ -182,7 +185,21 @@ def make_fluid(species: str, model: str, overrides: Mapping[str, str] | None = N
     if sp.composition and overrides:
         raise InputError(fields[2], "do not apply to a mixture: its constants follow from its components' data")
     sp, params = with_overrides(sp, dict(overrides or {}), fields[2])
-    return sp, make_model(model, sp, params, field=fields[1])
+    return sp, make_model(model, sp, params, field=fields[1], kij=_kij_of(sp, kij, several=bool(named)))
+
+
+def _kij_of(sp: Species, table: Mapping[str, str] | None, several: bool) -> dict | None:
+    """The pairs of ``table`` ([fluid.kij]) for the mixture ``sp``, checked; None when none apply."""
+    if not table:
+        return None
+    from .interaction import pair_ids, read_kij
+
+    if not sp.composition:
+        raise InputError("fluid.kij", f"binary interaction parameters apply to a mixture; {sp.name} is one species")
+    ids = [i for i, _ in sp.composition]
+    if several:  # each named composition takes the pairs of its own components
+        table = {k: v for k, v in table.items() if set(pair_ids(k, f"fluid.kij.{k}")) <= set(ids)}
+    return read_kij(table, ids) or None
 
 
 def species_named(species: str, composition: Mapping[str, str] | None = None, fractions: str = "",
@@ -213,4 +230,4 @@ def fluid_pair(fluid, model: str | None = None) -> tuple[Species, PropertyModel]
     """:func:`make_fluid` for a worksheet's ``[fluid]`` section (a :class:`~balance.worksheet.Fluid`),
     on its own model or ``model``."""
     return make_fluid(fluid.species, model or fluid.model, fluid.overrides, composition=fluid.composition,
-                      fractions=fluid.fractions, normalise=fluid.normalise, named=fluid.compositions)
+                      fractions=fluid.fractions, normalise=fluid.normalise, named=fluid.compositions, kij=fluid.kij)

@@ -167,6 +167,9 @@ class Fluid:
     compositions: dict[str, dict[str, str]] = field(default_factory=dict)
     """named mixtures a stream may name as its species: name -> (species -> fraction as typed),
     read with the fractions basis and normalise above; treat as immutable"""
+    kij: dict[str, str] = field(default_factory=dict)
+    """a cubic mixture's binary interaction parameters: "A-B" -> kij as typed, in place of the
+    bundled ones (:mod:`balance.interaction`); treat as immutable"""
 
 
 @dataclass(frozen=True)
@@ -340,6 +343,8 @@ class Worksheet:
             fluid["normalise"] = True
         if self.fluid.compositions:
             fluid["compositions"] = {k: dict(v) for k, v in self.fluid.compositions.items()}
+        if self.fluid.kij:
+            fluid["kij"] = dict(self.fluid.kij)
         out["fluid"] = {k: v for k, v in fluid.items() if v not in ("", {})}
         out["system"] = {k: v for k, v in asdict(self.system).items() if v != ""}
         flow = self.system.kind != "closed"  # no compartments unless some were typed
@@ -429,7 +434,8 @@ class Worksheet:
                 f"expected one of {', '.join(CONVENTIONS)}; got {shown(heading.convention)}",
             )
         fl = _table(data, "fluid")
-        _only(fl, ("species", "model", "overrides", "composition", "fractions", "normalise", "compositions"), "fluid")
+        _only(fl, ("species", "model", "overrides", "composition", "fractions", "normalise", "compositions", "kij"),
+              "fluid")
         overrides = _table(fl, "overrides", "fluid")
         composition = _table(fl, "composition", "fluid")
         if len(composition) > MAX_ITEMS:
@@ -445,6 +451,7 @@ class Worksheet:
             fractions=_text(fl, "fractions", "fluid"),
             normalise=normalise,
             compositions=_compositions(_table(fl, "compositions", "fluid")),
+            kij=_kij_texts(_table(fl, "kij", "fluid")),
         )
         sy = _table(data, "system")
         _only(sy, ("kind", "inside", "sketch"), "system")
@@ -700,6 +707,13 @@ def _end(t: dict) -> EndInput:
     _only(t, (*END_KEYS, "balanced", "vessel"), "end")
     return EndInput(values={k: _text(t, k, "end") for k in END_KEYS if k in t},
                     balanced=_flag(t, "balanced", "end"), vessel=_text(t, "vessel", "end"))
+
+
+def _kij_texts(table: dict) -> dict[str, str]:
+    """``[fluid.kij]``: pair -> kij as typed (read against the mixture's components when solved)."""
+    if len(table) > MAX_ITEMS:
+        raise InputError("fluid.kij", f"takes at most {MAX_ITEMS} pairs")
+    return {str(k): _text(table, k, "fluid.kij") for k in table}
 
 
 def _compositions(table: dict) -> dict[str, dict[str, str]]:

@@ -116,12 +116,13 @@ def test_h_and_cp_are_mole_weighted_and_s_carries_the_entropy_of_mixing():
     assert cps[1] == pytest.approx(sp.cp_ig.cp(700.0), rel=1e-15) and ss[0] == pytest.approx(sp.cp_ig.s(260.0))
 
 
-def test_only_the_ideal_gas_model_takes_a_mixture_for_now():
+def test_a_mixture_takes_every_model_but_the_incompressible_one():
     with pytest.raises(InputError) as caught:
-        api.fluid("dry-air", "peng-robinson")
-    assert caught.value.field == "fluid.model" and "choose ideal-gas" in caught.value.message
+        api.fluid("dry-air", "incompressible")
+    assert caught.value.field == "fluid.model" and "not a mixture" in caught.value.message
     sp, model = api.fluid("dry-air", "ideal-gas")
-    assert model.at_TP(300.0, 1e5).v == pytest.approx(R * 300.0 / 1e5, rel=1e-15)
+    assert model.at_TP(300.0, 1e5).v == pytest.approx(R * 300.0 / 1e5, rel=1e-15)  # P v = R T
+    assert api.fluid("dry-air", "peng-robinson")[1].name == "peng-robinson"
 
 
 # -- balances on a mixture ------------------------------------------------------------------------

@@ -64,12 +64,14 @@ def canonical(name: str, field: str = "fluid.model") -> str:
 
 
 def make_model(name: str, species: Species, params: dict[str, float] | None = None,
-               field: str = "fluid.model") -> PropertyModel:
+               field: str = "fluid.model", kij: dict[tuple[str, str], float] | None = None) -> PropertyModel:
     """The model instance for a species (one per model, species and parameters).
 
     ``params`` carries model-level overrides from a worksheet: the cubic's
     ``a`` and ``b``, the incompressible model's ``rho`` and heat capacity
-    (``cp`` or ``cv``, molar [J/(mol K)]).
+    (``cp`` or ``cv``, molar [J/(mol K)]). ``kij`` carries a mixture's binary
+    interaction parameters given in the worksheet (pair of species ids ->
+    value), read by the cubics in place of the bundled ones (the other models have no use for them).
 
     Models are immutable once built, apart from what they work out once and
     keep (a cubic's saturation curve, the reference model's CoolProp state
@@ -77,11 +79,31 @@ def make_model(name: str, species: Species, params: dict[str, float] | None = No
     same model: a second solve pays for none of it again.
     """
     key = canonical(name, field)
-    if species.composition and key != "ideal-gas":
-        raise InputError(field, f"{key} does not take a mixture in this version: a mixture ({species.formula}) is "
-                                "modelled as an ideal-gas mixture; choose ideal-gas (the cubics' mixing rules and "
-                                "the reference model's mixtures are not built yet)")
+    if species.composition:
+        if key == "incompressible":
+            raise InputError(field, f"the incompressible model takes one liquid or solid, not a mixture "
+                                    f"({species.formula}); choose ideal-gas, a cubic or reference")
+        # kij belong to the cubics' mixing rule; the other models read none (a sweep over models keeps them)
+        return _mixture_model(key, species, tuple(sorted((kij or {}).items())) if key in _CUBICS else ())
+    if kij:
+        raise InputError("fluid.kij", "binary interaction parameters apply to a mixture only")
     return _model(key, species, tuple(sorted((params or {}).items())))
+
+
+@lru_cache(maxsize=32)
+def _mixture_model(key: str, species: Species, kij: tuple) -> PropertyModel:
+    if key == "ideal-gas":
+        from .idealgas import IdealGas
+
+        return IdealGas(species)
+    if key in _CUBICS:
+        from .cubic import FORMS
+        from .cubic.mixing import CubicMixture
+
+        return CubicMixture(species, FORMS[key], dict(kij))
+    from .reference.mixture import ReferenceMixture
+
+    return ReferenceMixture(species)
 
 
 @lru_cache(maxsize=64)

@@ -104,7 +104,7 @@ def _model_of(st, ws: Worksheet, default):
                               dict(ws.fluid.overrides) if species == ws.fluid.species else {},
                               fields=(f"{where}.species", f"{where}.model", "fluid.overrides"),
                               fractions=ws.fluid.fractions, normalise=ws.fluid.normalise,
-                              named=ws.fluid.compositions)
+                              named=ws.fluid.compositions, kij=ws.fluid.kij)
         return model
     if default is None:
         raise InputError("fluid.species", "give the species and model (for every stream, or each its own)")

@@ -229,6 +229,10 @@ class Cubic(PropertyModel):
             return self.point(T, v_hi, _VAPOUR_ROOT, res=res_hi)
         return self.point(T, v_hi, _ONE_ROOT, res=self.residual(T, v_hi, a3))
 
+    def at_TP_one_phase(self, T: float, P: float) -> Point:
+        """:meth:`at_TP` of the equation alone, without a mixture's phase test (what a search asks)."""
+        return Cubic.at_TP(self, T, P)
+
     def at_Tv(self, T: float, v: float, field: str = "") -> Point:
         """The state at T [K] and molar volume v [m3/mol]; inside the dome a TwoPhaseError.
 

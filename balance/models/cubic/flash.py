@@ -190,7 +190,7 @@ def _branch_volume(m, T: float, P: float, branch: str) -> tuple[float, str]:
     if n == 1:
         return v_hi, "one real root"
     if branch == "stable":
-        p = m.at_TP(T, P)
+        p = m.at_TP_one_phase(T, P)
         return p.v, p.root
     if branch == "liquid":
         return v_lo, "three real roots; the liquid-like (smallest) chosen: liquid side of saturation at this P"
