@@ -57,15 +57,30 @@ Source = Union[str, os.PathLike, Mapping, Worksheet]
 
 def fluid(species: str, model: str, overrides: Mapping[str, str] | None = None, *,
           fields: tuple[str, str, str] = ("fluid.species", "fluid.model", "fluid.overrides"),
-          ) -> tuple[Species, PropertyModel]:
+          composition: Mapping[str, str] | None = None, fractions: str = "", normalise: bool = False,
+          kij: Mapping[str, str] | None = None) -> tuple[Species, PropertyModel]:
     """The species (with a worksheet's overrides applied) and the property model for it.
 
     ``fields`` name the species, the model and the overrides in errors (the
-    command line's ``state`` names its arguments). Raises InputError.
+    command line's ``state`` names its arguments); a ``composition`` (species -> fraction
+    as typed) makes a mixture named ``species``, ``kij`` its cubic's interaction parameters
+    ("A-B" -> value as typed). Raises InputError.
     """
     from .state import make_fluid
 
-    return make_fluid(species, model, overrides, fields=fields)
+    return make_fluid(species, model, overrides, fields=fields, composition=composition, fractions=fractions,
+                      normalise=normalise, kij=kij)
+
+
+def phases(model: PropertyModel, T: float, P: float):
+    """A mixture's phase at T [K], P [Pa] under a cubic: its two-phase region's edges along the
+    isobar and the isotherm, and the isothermal flash where it splits
+    (:class:`balance.models.cubic.phases.PhaseReport`); None for a pure fluid or another model."""
+    if getattr(model, "mixing", None) is None:
+        return None
+    from .models.cubic.phases import report
+
+    return report(model, T, P)
 
 
 def read_field(kind: str, text: str, field: str, *, p_atm: float = P_ATM, M: float = 1.0) -> float:
@@ -263,16 +278,19 @@ def entry_data(solved: Attempt) -> dict:
         data.update(error_kind=solved.error_kind, error=solved.error)
     else:
         data.update(as_json(solved.result))
-        mixtures = mixture_pins(solved.result.problem)
+        mixtures = mixture_pins(solved.result)
         if mixtures:
             data["mixtures"] = mixtures
     return data
 
 
-def mixture_pins(problem) -> list[dict]:
+def mixture_pins(result) -> list[dict]:
     """What a cubic mixture's numbers depend on beyond the species data: for each such model the
-    problem uses, its composition and every kij with its source (the record keeps them)."""
-    models = [getattr(problem, "model", None), *(getattr(st, "model", None) for st in getattr(problem, "streams", ()))]
+    result uses (a stream's, a blend's), its composition and every kij with its source (the record
+    keeps them)."""
+    problem = result.problem
+    models = [getattr(problem, "model", None), *(getattr(st, "model", None) for st in getattr(problem, "streams", ())),
+              *(f.model for f in getattr(result, "flows", {}).values())]
     out, seen = [], set()
     for m in models:
         kij = getattr(m, "kij", None)
@@ -308,4 +326,5 @@ def advise(ws: Worksheet) -> Advice:
 
 
 __all__ = ["Attempt", "Check", "FieldProblem", "Source", "advise", "as_json", "attempt", "check", "entry_data",
-           "explain", "flow_trace", "fluid", "kind", "pins", "prepare", "problems", "read", "read_field", "solve", "trace"]
+           "explain", "flow_trace", "fluid", "kind", "mixture_pins", "phases", "pins", "prepare", "problems", "read",
+           "read_field", "solve", "trace"]

@@ -131,6 +131,23 @@ def mixture(components: tuple[tuple[Species, float], ...], name: str = "") -> Sp
     )
 
 
+def blend(parts, name: str = "", field: str = "device") -> Species:
+    """The mixture of species or mixtures in molar amounts: ``parts`` are (Species, amount
+    [mol or mol/s]); each mixture's own components are pooled with the others'. A species with
+    overrides is refused (its constants are the worksheet's, not its components' data)."""
+    moles: dict[str, float] = {}
+    for sp, n in parts:
+        if sp.overrides:
+            raise InputError(field, f"{sp.id} carries overrides of its constants: it cannot be blended with "
+                                    "other fluids (the blend reads each component's data)")
+        for i, y in sp.composition or ((sp.id, 1.0),):
+            moles[i] = moles.get(i, 0.0) + n * y
+    total = sum(moles.values())
+    if not total > 0.0:
+        raise InputError(field, "the streams blended carry no flow")
+    return mixture(tuple((lookup(i), x / total) for i, x in moles.items() if x > 0.0), name)
+
+
 @lru_cache(maxsize=1)
 def bundled() -> dict[str, dict]:
     """The bundled compositions by id: name, fractions, composition, source, normalise."""

@@ -202,6 +202,21 @@ def _kij_of(sp: Species, table: Mapping[str, str] | None, several: bool) -> dict
     return read_kij(table, ids) or None
 
 
+def blended_model(models, amounts, kij: Mapping[str, str] | None = None, field: str = "device",
+                  name: str = "") -> PropertyModel:
+    """The model of a blend of streams (a mixer's inlets of different fluids): their species pooled
+    in the molar ``amounts`` [mol/s] (:func:`balance.mixture.blend`) on the one model they share,
+    with the worksheet's ``kij`` ([fluid.kij]). Raises InputError naming ``field``."""
+    from .mixture import blend
+    from .models import make_model
+
+    names = sorted({m.name for m in models})
+    if len(names) > 1:
+        raise InputError(field, f"blends streams on different models ({', '.join(names)}): give its inlets one model")
+    sp = blend([(m.species, n) for m, n in zip(models, amounts)], name, field)
+    return make_model(names[0], sp, kij=_kij_of(sp, kij, several=True))
+
+
 def species_named(species: str, composition: Mapping[str, str] | None = None, fractions: str = "",
                   normalise: bool = False, field: str = "fluid.species",
                   named: Mapping[str, Mapping[str, str]] | None = None) -> Species:

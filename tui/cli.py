@@ -133,25 +133,51 @@ def cmd_check(args) -> int:
 
 def cmd_state(args) -> int:
     from balance import api
+    from balance.errors import TwoPhaseError
     from balance.state import State, read_specs
 
     overrides = dict(_pairs(args.override, "--override"))
-    species, model = api.fluid(args.fluid, args.model, overrides, fields=("FLUID", "--model", "--override"))
+    species, model = api.fluid(args.fluid, args.model, overrides, fields=("FLUID", "--model", "--override"),
+                               composition=dict(_pairs(args.composition, "--composition")) or None,
+                               fractions=args.fractions or "", normalise=args.normalise,
+                               kij=dict(_pairs(args.kij, "--kij")) or None)
     props = dict(_pairs(args.given, "--given"))
     specs = read_specs(props, species.M, "--given")
     if len(specs) != 2:
         raise InputError("--given", f"give exactly two properties, like --given T='500 K' --given P='10 bar'; got {len(specs)}")
-    point = model.flash(specs, field="state")
+    try:
+        point = model.flash(specs, field="state")
+    except TwoPhaseError:
+        if set(specs) != {"T", "P"} or getattr(model, "mixing", None) is None:
+            raise
+        return _print_split(api.phases(model, specs["T"], specs["P"]), species, model, args.json)
     st = State("state", model, point, n=1.0)
     warnings = model.warnings(point)
+    phases = api.phases(model, point.T, point.P)
     if args.json:
         out = st.as_json()
         out.update(species=species.id, model=model.name, reference_state=model.reference_state, warnings=warnings)
+        if species.composition:
+            out["composition"] = dict(species.composition)
+        if phases is not None:
+            out["phases"] = phases.as_json()
         print(json.dumps(out, indent=2, ensure_ascii=False))
     else:
         from .render import state_renderable
 
-        _console().print(state_renderable(st, args.units, warnings))
+        _console().print(state_renderable(st, args.units, warnings, phases.lines() if phases else ()))
+    return EXIT_OK
+
+
+def _print_split(report, species, model, as_json: bool) -> int:
+    """A mixture's (T, P) inside its phase envelope: the flash, as the answer to the question asked."""
+    if as_json:
+        print(json.dumps({"species": species.id, "model": model.name, "composition": dict(species.composition),
+                          "phases": report.as_json()}, indent=2, ensure_ascii=False))
+        return EXIT_OK
+    from .render import split_renderable
+
+    _console().print(split_renderable(species, model, report.lines()))
     return EXIT_OK
 
 
@@ -377,6 +403,12 @@ def build_parser():
                    "peng-robinson, incompressible or reference")
     p.add_argument("--given", action="append", metavar="NAME=VALUE", help="a property, e.g. T='500 K' (twice)")
     p.add_argument("--override", action="append", metavar="NAME=VALUE", help="a species constant, e.g. Tc='126 K'")
+    p.add_argument("--composition", action="append", metavar="SPECIES=FRACTION",
+                   help="a mixture's component, e.g. CH4=0.9 (once per component; FLUID is then its name)")
+    p.add_argument("--fractions", choices=("mole", "mass"), help="what --composition gives (default mole)")
+    p.add_argument("--normalise", action="store_true", help="scale fractions that do not add up to 1")
+    p.add_argument("--kij", action="append", metavar="A-B=VALUE",
+                   help="a cubic mixture's binary interaction parameter, in place of the bundled one")
     p.add_argument("--json", action="store_true")
     p.add_argument("--units", **units)
     p.set_defaults(func=cmd_state)

@@ -226,15 +226,25 @@ def species_detail(sp: Species) -> Group:
     return Group(t, Text("Sources", style="bold underline"), sources, aliases)
 
 
-def state_renderable(st: State, units: str, warnings: list[str]) -> Group:
+def state_renderable(st: State, units: str, warnings: list[str], phases=()) -> Group:
+    """One state's table, how its root was chosen, a mixture's phase envelope lines, the warnings."""
     parts: list = [
         Text(f"{st.model.species.name}, {st.model.label}; reference state: {st.model.reference_state}", style="dim"),
         states_table([st], units, title="State"),
         Text(f"root: {st.point.root}", style="dim"),
     ]
+    if phases:
+        parts.append(Text("\n".join(phases)))
     if warnings:
         parts.append(Text("\n".join(f"• {w}" for w in warnings), style="yellow"))
     return Group(*parts)
+
+
+def split_renderable(species, model, lines) -> Group:
+    """A mixture's (T, P) inside its phase envelope: the flash's lines under the fluid's name."""
+    return Group(Text(f"{species.name}, {model.label}", style="dim"), Text("\n".join(lines)),
+                 Text("A balance refuses a state inside the envelope: this version balances single-phase "
+                      "mixture states only.", style="yellow"))
 
 
 def kij_table(used, title: str) -> Table:

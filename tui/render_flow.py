@@ -124,6 +124,12 @@ def streams_table(result, units: str, names: list[str] | None = None, title: str
     if any(f.point.x is not None for f in flows):
         t.add_row("x", "", *("—" if f.point.x is None else f"{f.point.x:.6g}" for f in flows))
     t.add_row("phase", "", *(phase_words(f.point) for f in flows))
+    edges = getattr(result, "edges", {})
+    if any(f.name in edges for f in flows):  # a cubic mixture's phase envelope at each stream's pressure
+        for label, k in (("dew point", 1), ("bubble point", 0)):
+            t.add_row(label, unit_label("T", units),
+                      *("—" if edges.get(f.name, (None, None))[k] is None else show(edges[f.name][k], "T", units)
+                        for f in flows))
     if basis.per_kg:
         t.add_row("ṁ", f"kg/kg '{basis.stream}'", *(f"{f.m_dot / basis.m_dot:.6g}" for f in flows))
         t.add_row("V̇", unit_label("v", units) + f" of '{basis.stream}'",

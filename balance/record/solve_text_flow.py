@@ -99,15 +99,17 @@ def stream_rows(data: dict) -> tuple[list[str], list[list[str]], str]:
     M = _molar_masses(streams)
     several = len(fluids(data)) > 1
     wet = any(_q(st, "x") is not None for st in streams.values())
+    dew = any("dew_point" in st for st in streams.values())  # a cubic mixture's envelope at the stream's P
     headers = ["stream", *(["fluid"] if several else []), "T °C", "P bar(a)", "h kJ/kg", "s kJ/(kg·K)",
-               *(["x"] if wet else []), "phase"]
+               *(["x"] if wet else []), "phase", *(["dew °C", "bubble °C"] if dew else [])]
     rows = []
     for name, st in streams.items():
         fluid = [f"{st.get('species', '?')}, {st.get('model', '?')}"] if several else []
         x = [_scaled(_q(st, "x"), 1.0)] if wet else []
+        edges = [_celsius(_q(st, "dew_point")), _celsius(_q(st, "bubble_point"))] if dew else []
         rows.append([name, *fluid, _celsius(_q(st, "T")), _scaled(_q(st, "P"), 1e-5), _per_kg(_q(st, "h"), M[name]),
-                     _per_kg(_q(st, "s"), M[name]), *x, str(st.get("phase", "—"))])
-    return headers, rows, "l" + "l" * several + "r" * (4 + wet) + "l"
+                     _per_kg(_q(st, "s"), M[name]), *x, str(st.get("phase", "—")), *edges])
+    return headers, rows, "l" + "l" * several + "r" * (4 + wet) + "l" + "rr" * dew
 
 
 def rate_rows(data: dict) -> tuple[list[str], list[list[str]], str]:
@@ -205,6 +207,10 @@ def solve_text(data: dict, basis: str, pins: str) -> str:
     out += wrap(UNITS, "", "  ")
     if data.get("basis"):
         out += wrap(f"Basis: {data['basis']}", "", "  ")
+    for pin in data.get("mixtures", ()):  # a cubic mixture's composition and kij, each with its source
+        parts = ", ".join(f"{k} {g(v)}" for k, v in pin.get("composition", {}).items())
+        out += wrap(f"Mixture on {pin.get('model', '?')} (mole fractions): {parts}; kij:", "", "  ")
+        out += [f"  {k.get('pair', '?')}  {g(k.get('value'))}  ({k.get('source', '?')})" for k in pin.get("kij", ())]
     out += ["", "Streams"]
     out += table(*stream_rows(data)) if streams else ["  (none)"]
     out += ["", "Stream rates"]

@@ -208,14 +208,17 @@ def nozzle(inlet: Flow, P_out: float, name: str, *, eta: float = 1.0, field: str
 
 # -- devices with several streams ----------------------------------------------------------
 def mix(inlets: list[Flow], P_out: float, name: str, velocity: float = 0.0, z: float = 0.0,
-        field: str = "device") -> Flow:
-    """Adiabatic mixing of streams of one fluid at P_out [Pa]: ṅ_out e_out = Σ ṅ_in e_in."""
-    model = inlets[0].model
-    if any(f.model is not model for f in inlets):
+        field: str = "device", blend=None) -> Flow:
+    """Adiabatic mixing at P_out [Pa]: ṅ_out e_out = Σ ṅ_in e_in; of streams of one fluid, or
+    of different fluids on the ``blend`` model of their mixture (every model measures h and s of
+    each component from its ideal gas at 298.15 K and 1 bar, so the inlets' energies add, and
+    the outlet's entropy holds the entropy of mixing, -R Σ y ln y, that Ṡ_gen then counts)."""
+    model = blend or inlets[0].model
+    if blend is None and any(f.model is not model for f in inlets):
         raise InputError(field, "a mixer's streams must be of one fluid and model")
     n = sum(f.n_dot for f in inlets)
     e = sum(f.E_dot for f in inlets) / n
-    h = h_for_energy(e, inlets[0].M, velocity, z)
+    h = h_for_energy(e, model.species.M, velocity, z)
     return Flow(name, model, model.flash({"P": P_out, "h": h}, field=field), n, velocity, z)
 
 

@@ -97,8 +97,11 @@ class Solved:
 class Network:
     """Streams and devices, solved by propagation."""
 
-    def __init__(self, streams: list[StreamSpec], devices: list[DeviceSpec]):
+    def __init__(self, streams: list[StreamSpec], devices: list[DeviceSpec], blends=None):
         self.streams = {s.name: s for s in streams}
+        self.blends, self.blend_model = blends if blends is not None else ({}, None)
+        """mixer -> the streams whose composition it sets; and the maker of a blend's model"""
+        self.blended = {s for names in self.blends.values() for s in names}
         self.devices = devices
         self.points: dict[str, Point] = {}
         self.rates: dict[str, float] = {s.name: s.n_dot for s in streams if s.n_dot is not None}
@@ -144,12 +147,14 @@ class Network:
         for name, spec in self.streams.items():
             if len(spec.given) > 2:
                 raise SpecificationError(f"stream '{name}': {', '.join(spec.given)} are given but a state takes two")
-            if len(spec.given) == 2 and name not in self.points:
+            if len(spec.given) == 2 and name not in self.points and name not in self.blended:
                 self.points[name] = spec.model.flash(dict(spec.given), field=f"stream '{name}'")
 
     def _check_species(self, d: DeviceSpec) -> None:
         """The streams a device joins carry one fluid (each side of an exchanger its own): a
         stream given another species is named, not left to fail the mass balance."""
+        if d.name in self.blends:  # a blend of different fluids: each inlet its own, the outlet theirs
+            return
         sides = ([(d.inlets[0], d.outlets[0]), (d.inlets[1], d.outlets[1])] if d.kind == "exchanger"
                  else [(*d.inlets, *d.outlets)])
         for side in sides:
@@ -516,9 +521,25 @@ def _mixer(net: Network, d: DeviceSpec) -> bool:
     if P is None:
         P = min(net.points[s].P for s in d.inlets)
         net.note(f"mixer {d.name}: the outlet at the lowest inlet pressure, {P / 1e5:.6g} bar")
-    out = dv.mix([net.flow(s) for s in d.inlets], P, b, net.streams[b].velocity, net.streams[b].z, d.where)
+    model = None
+    if d.name in net.blends:
+        model = _blend(net, d)
+    out = dv.mix([net.flow(s) for s in d.inlets], P, b, net.streams[b].velocity, net.streams[b].z, d.where, model)
     net.set_point(b, out.point)
     return True
+
+
+def _blend(net: Network, d: DeviceSpec):
+    """A mixer of different fluids: the outlet's model is the blend of its inlets at their rates,
+    and every stream the blend reaches takes it (each was a stand-in until now)."""
+    from dataclasses import replace
+
+    model = net.blend_model([net.streams[s].model for s in d.inlets], [net.rates[s] for s in d.inlets], d.where)
+    for s in net.blends[d.name]:
+        net.streams[s] = replace(net.streams[s], model=model)
+    words = ", ".join(f"{i} {y:.6g}" for i, y in model.species.composition)
+    net.note(f"mixer {d.name}: blends {', '.join(repr(s) for s in d.inlets)} into {words} (mole fractions)")
+    return model
 
 
 def _rate_from_energy(net: Network, d: DeviceSpec) -> bool:

@@ -15,7 +15,7 @@ from functools import cached_property
 
 from ...convention import Convention
 from ...errors import BalanceError, InputError, SpecificationError
-from ...state import fluid_pair, make_fluid, read_specs
+from ...state import blended_model, fluid_pair, make_fluid, read_specs
 from ...units import P_ATM, parse, read_rate
 from ...worksheet import DEVICE_KINDS, UNKNOWN, FieldProblem, Worksheet, place
 from ..control_volume import Dof, Unknown, read_atmosphere
@@ -46,9 +46,19 @@ class Problem:
     """the dead-state temperature exergy destroyed is counted at [K]"""
     solved: Solved | None = field(default=None, repr=False, compare=False)
     """the network as the count solved it (the same walk), which :meth:`solution` hands on"""
+    blends: Blends = field(default_factory=lambda: Blends())
+    """the streams whose composition a mixer of different fluids sets"""
 
     def network(self) -> Network:
-        return Network(self.streams, self.devices)
+        return Network(self.streams, self.devices, self._blends())
+
+    def _blends(self):
+        """What the network needs to blend: per mixer, the streams it sets and the model maker."""
+        if not self.blends.follows:
+            return None
+        kij = self.worksheet.fluid.kij
+        mixers = {m: self.blends.downstream(m) for m in self.blends.first_inlet}
+        return mixers, lambda models, rates, field: blended_model(models, rates, kij, field)
 
     def solution(self) -> Solved:
         """The solved network: the one the count found, else solved now; raises SpecificationError or
@@ -85,12 +95,116 @@ def prepare(ws: Worksheet) -> Problem:
     if twice:
         raise InputError("stream", f"two streams are named {twice[0]!r}: give each its own name")
     words: dict[str, str] = {}
-    streams = [_stream(st, ws, default, p_atm, words) for st in ws.streams]
+    blends = blended_streams(ws)
+    built: dict[str, StreamSpec] = {}
+    for st in ws.streams:  # first the streams of a fluid of their own, then those a blend sets
+        if st.name not in blends.follows:
+            built[st.name] = _stream(st, ws, default, p_atm, words)
+    for st in _in_flow_order(ws, blends):
+        built[st.name] = _blended_stream(st, built[blends.first_inlet[blends.follows[st.name]]].model, p_atm)
+    streams = [built[st.name] for st in ws.streams]
     convention = Convention(ws.heading.convention)
     devices = [_device(d, convention, p_atm) for d in ws.devices]
-    problem = Problem(ws, streams, devices, convention, p_atm, words)
+    problem = Problem(ws, streams, devices, convention, p_atm, words, blends=blends)
     problem.network()  # the graph itself: streams named, arity, each stream in at most one device's inlets
     return problem
+
+
+@dataclass(frozen=True)
+class Blends:
+    """The streams whose composition a mixer of different fluids sets: its outlet and what flows
+    on from it through devices that keep a composition (heaters, valves, machines, splitters, one
+    side of an exchanger)."""
+
+    follows: dict[str, str] = field(default_factory=dict)
+    """stream -> the mixer that sets its composition"""
+    first_inlet: dict[str, str] = field(default_factory=dict)
+    """mixer -> its first inlet (whose model stands in until the blend is known)"""
+
+    def downstream(self, mixer: str) -> list[str]:
+        return [s for s, m in self.follows.items() if m == mixer]
+
+
+def _fluid_text(st, ws: Worksheet) -> str:
+    return (st.species or ws.fluid.species or ("composition" if ws.fluid.composition else "")).strip().lower()
+
+
+def blended_streams(ws: Worksheet) -> Blends:
+    """Which streams a blend sets (:class:`Blends`): a mixer blends when its inlets name different
+    fluids, or one of them is itself a blend."""
+    by_name = {st.name: st for st in ws.streams}
+    follows: dict[str, str] = {}
+    first: dict[str, str] = {}
+    for _ in range(len(ws.devices) + 1):  # a blend downstream of a blend: until nothing changes
+        changed = False
+        for d in ws.devices:
+            if d.kind != "mixer" or not d.outlets or d.name in first:
+                continue
+            inlets = [by_name[s] for s in d.inlets if s in by_name]
+            fluids = {_fluid_text(st, ws) for st in inlets}
+            if len(fluids) > 1 or any(st.name in follows for st in inlets):
+                first[d.name] = d.inlets[0]
+                changed |= _follow(ws, d.outlets[0], d.name, follows)
+        if not changed:
+            break
+    return Blends(follows, first)
+
+
+def _follow(ws: Worksheet, start: str, mixer: str, follows: dict[str, str]) -> bool:
+    """Mark ``start`` and every stream its composition reaches as set by ``mixer``."""
+    todo, changed = [start], False
+    while todo:
+        name = todo.pop()
+        if follows.get(name) == mixer:
+            continue
+        follows[name], changed = mixer, True
+        for d in ws.devices:
+            if name not in d.inlets or d.kind == "mixer":
+                continue
+            if d.kind == "exchanger":
+                k = d.inlets.index(name)
+                todo += [d.outlets[k]] if k < len(d.outlets) else []
+            else:
+                todo += list(d.outlets)
+    return changed
+
+
+def _in_flow_order(ws: Worksheet, blends: Blends) -> list:
+    """The blended streams, each after the mixer inlet its stand-in model comes from."""
+    pending = [st for st in ws.streams if st.name in blends.follows]
+    done = {st.name for st in ws.streams if st.name not in blends.follows}
+    order = []
+    while pending:
+        ready = [st for st in pending if blends.first_inlet[blends.follows[st.name]] in done]
+        if not ready:
+            raise InputError(f"stream '{pending[0].name}'", "is blended by a mixer whose inlets come from its own "
+                                                            "blend: a recycle of a blend is not solved in this version")
+        for st in ready:
+            order.append(st)
+            done.add(st.name)
+            pending.remove(st)
+    return order
+
+
+def _blended_stream(st, stand_in, p_atm: float) -> StreamSpec:
+    """A stream whose composition a blend sets: its T and P as given, its model a stand-in until
+    the mixer solves (its rate and everything per kilogram follow from the blend)."""
+    where = f"stream '{st.name}'"
+    if st.species:
+        raise InputError(f"{where}.species", "is set by the mixer upstream, which blends different fluids: leave "
+                                             "the species out")
+    for key in st.props:
+        if key not in ("T", "P"):
+            raise InputError(f"{where}.{key}", "a blended stream takes its T and P only: its composition, and so "
+                                               "what a mole or a kilogram of it holds, follows from the mixer")
+    if st.rate.strip() and st.rate.strip() != UNKNOWN:
+        raise InputError(f"{where}.rate", "a blended stream's rate is the sum of the mixer's inlets: leave it out")
+    given = read_specs(st.props, stand_in.species.M, where, p_atm)
+    velocity = _optional(st.velocity, "velocity", f"{where}.velocity")
+    if st.area.strip():
+        raise InputError(f"{where}.area", "give a blended stream's velocity, not its flow area")
+    z = _optional(st.z, "length", f"{where}.z", allow_negative=True) or 0.0
+    return StreamSpec(st.name, stand_in, given, None, velocity or 0.0, None, z)
 
 
 def _model_of(st, ws: Worksheet, default):

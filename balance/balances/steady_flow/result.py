@@ -12,7 +12,7 @@ temperature) and defer to the codes.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 from ...errors import InputError
 from ...state import quantity
@@ -25,6 +25,9 @@ from .streams import Flow
 #: A pump's inlet closer than this to its vapour pressure is warned about [Pa] (common practice
 #: to want a margin of about a bar before looking at the pump's own NPSH; no source).
 PUMP_MARGIN = 1e5
+#: A mixture stream closer than this above its dew point is warned about [K] (common practice to
+#: keep some ten kelvin of superheat on a fuel gas; no source).
+DEW_MARGIN = 10.0
 
 
 @dataclass(frozen=True)
@@ -66,6 +69,9 @@ class Result:
     equations: tuple[str, ...]
     warnings: tuple[str, ...]
     cautions: tuple[Caution, ...]
+    edges: dict = field(default_factory=dict)
+    """stream -> (bubble point, dew point) temperatures [K] at its pressure, each None where the
+    search found none: for the streams of a cubic mixture (:mod:`balance.models.cubic.phases`)"""
 
     def as_json(self) -> dict:
         """Everything in the result; quantities as {"value", "unit"} (SI)."""
@@ -82,6 +88,8 @@ class Result:
                 "m_dot": quantity(f.m_dot, "kg/s"), "n_dot": quantity(f.n_dot, "mol/s"),
                 "V_dot": quantity(f.V_dot, "m**3/s"), "velocity": quantity(f.velocity, "m/s"),
                 "rate_read_as": p.rate_words.get(name, ""),
+                **({"bubble_point": quantity(self.edges[name][0], "K"), "dew_point": quantity(self.edges[name][1], "K")}
+                   if name in self.edges else {}),
             }
         devices = {}
         for d in self.devices:
@@ -130,8 +138,29 @@ def result_of(problem: Problem, solved: Solved) -> Result:
     warnings = list(solved.notes) + _warnings(problem, solved)
     for name, f in flows.items():
         warnings += [f"stream '{name}': {w}" for w in f.model.warnings(f.point)]
+    edges = _edges(flows)
+    for name, (_, dew) in edges.items():
+        T = flows[name].point.T
+        if dew is not None and T - dew < DEW_MARGIN:
+            warnings.append(f"stream '{name}': {T - dew:.1f} K above its dew point ({dew - 273.15:.2f} degC at "
+                            f"{flows[name].point.P / 1e5:.4g} bar) under {flows[name].model.label}; a cubic's dew "
+                            "point of a natural gas can be several kelvin off its measured one: keep a margin, and "
+                            "check the dew point against the gas's analysis")
     return Result(problem, flows, tuple(rows), total, solved.basis, tuple(explain(problem, solved, rows)),
-                  tuple(warnings), tuple(_cautions(problem, flows)))
+                  tuple(warnings), tuple(_cautions(problem, flows)), edges)
+
+
+def _edges(flows: dict[str, Flow]) -> dict[str, tuple[float | None, float | None]]:
+    """The bubble and dew point temperatures [K] at each cubic-mixture stream's pressure."""
+    out = {}
+    for name, f in flows.items():
+        if getattr(f.model, "mixing", None) is None:
+            continue
+        from ...models.cubic.phases import envelope_at_P
+
+        lower, upper = envelope_at_P(f.model.mixing, f.point.P, f.model.z)
+        out[name] = (None if lower is None else float(lower.value), None if upper is None else float(upper.value))
+    return out
 
 
 def explain(problem: Problem, solved: Solved, rows: list[Device]) -> list[str]:

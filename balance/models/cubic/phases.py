@@ -288,11 +288,24 @@ def _edges(mix, z, grid, at, rtol: float = 1e-9, gas_end: str = "high") -> tuple
     return edges[0], edges[1]
 
 
+def T_range(mix, z) -> tuple[float, float]:
+    """The temperatures [K] an isobar is searched over: from 0.45 of Kay's pseudo-critical
+    temperature (no lower than 0.4 of the lightest component's Tc; below, a cubic also splits
+    mixtures that are in fact solid) to 1.5 of the heaviest component's Tc."""
+    kay = float(mix.Tc @ np.asarray(z, dtype=float))
+    return max(0.45 * kay, 0.4 * float(mix.Tc.min())), 1.5 * float(mix.Tc.max())
+
+
+def P_range(mix) -> tuple[float, float]:
+    """The pressures [Pa] an isotherm is searched over: 100 Pa to 3 times the highest component Pc."""
+    return 100.0, 3.0 * float(mix.Pc.max())
+
+
 def envelope_at_P(mix, P: float, z) -> tuple[Edge | None, Edge | None]:
     """The two-phase region's edges along the isobar P [Pa]: (lower T edge, upper T edge)
     [K]; the upper is the dew point, the lower the bubble point; None where none lies in
-    0.4 Tc,min .. 1.5 Tc,max of the components."""
-    T_lo, T_hi = 0.4 * float(mix.Tc.min()), 1.5 * float(mix.Tc.max())
+    :func:`T_range`."""
+    T_lo, T_hi = T_range(mix, z)
     grid = list(np.geomspace(T_lo, T_hi, 56))
     return _edges(mix, z, grid, lambda T: (T, P))
 
@@ -300,8 +313,8 @@ def envelope_at_P(mix, P: float, z) -> tuple[Edge | None, Edge | None]:
 def envelope_at_T(mix, T: float, z) -> tuple[Edge | None, Edge | None]:
     """The two-phase region's edges along the isotherm T [K]: (lower P edge, upper P edge) [Pa];
     the lower is the dew point, the upper the bubble point (or, in the retrograde region, the
-    upper dew point); None where none lies in 100 Pa .. 3 Pc,max."""
-    grid = list(np.geomspace(100.0, 3.0 * float(mix.Pc.max()), 56))
+    upper dew point); None where none lies in :func:`P_range`."""
+    grid = list(np.geomspace(*P_range(mix), 56))
     return _edges(mix, z, grid, lambda P: (T, P), gas_end="low")
 
 
@@ -309,25 +322,31 @@ def _bar(P: float) -> str:
     return f"{P / 1e5:.6g} bar"
 
 
-def _edges_text(lower: Edge | None, upper: Edge | None, fmt) -> str:
+def _kelvin(T: float) -> str:
+    return f"{T:.6g} K ({T - 273.15:.2f} degC)"
+
+
+def _edges_text(lower: Edge | None, upper: Edge | None, fmt, span: tuple[float, float]) -> str:
     if lower is None and upper is None:
-        return "no edge of the two-phase region found on this line"
+        return f"none between {fmt(span[0])} and {fmt(span[1])}"
     parts = []
-    for edge, side in ((upper, "upper"), (lower, "lower")):
-        parts.append(f"{edge.kind} {fmt(edge.value)}" if edge is not None else f"{side} edge beyond the range searched")
+    for edge, words in ((upper, f"none below {fmt(span[1])}"), (lower, f"beyond {fmt(span[0])}")):
+        parts.append(f"{edge.kind} {fmt(edge.value)}" if edge is not None else f"other edge {words}")
     return "; ".join(parts)
 
 
 def describe_envelope_P(model, P: float) -> str:
-    """'at P = …: dew point T = …; bubble point T = …' of a :class:`~.mixing.CubicMixture`."""
-    lower, upper = envelope_at_P(model.mixing, P, model.z)
-    return f"along P = {_bar(P)}: " + _edges_text(lower, upper, lambda T: f"T = {T:.6g} K ({T - 273.15:.2f} degC)")
+    """'two-phase region along P = …: dew point T = …; bubble point T = …' of a :class:`~.mixing.CubicMixture`."""
+    edges = envelope_at_P(model.mixing, P, model.z)
+    return f"two-phase region along P = {_bar(P)}: " + _edges_text(*edges, lambda T: f"T = {_kelvin(T)}",
+                                                                    T_range(model.mixing, model.z))
 
 
 def describe_envelope_T(model, T: float) -> str:
-    """'at T = …: dew point P = …; bubble point P = …' of a :class:`~.mixing.CubicMixture`."""
-    lower, upper = envelope_at_T(model.mixing, T, model.z)
-    return f"along T = {T:.6g} K: " + _edges_text(lower, upper, lambda P: f"P = {_bar(P)}")
+    """'two-phase region along T = …: dew point P = …; bubble point P = …' of a :class:`~.mixing.CubicMixture`."""
+    edges = envelope_at_T(model.mixing, T, model.z)
+    return f"two-phase region along T = {T:.6g} K: " + _edges_text(*edges, lambda P: f"P = {_bar(P)}",
+                                                                   P_range(model.mixing))
 
 
 def _main(ids, fractions, n: int = 3) -> str:
@@ -346,16 +365,59 @@ def describe_split(model, T: float, P: float) -> str:
     return where + "; " + describe_envelope_P(model, P)
 
 
-def flash_lines(model, T: float, P: float) -> list[str] | None:
-    """The flash of a :class:`~.mixing.CubicMixture` at (T, P) as text lines, or None where it is one phase."""
-    split = split_at(model.mixing, T, P, model.z)
-    if split is None:
-        return None
-    ids = [sp.id for sp in model.components]
-    return [f"two phases at T = {T:.6g} K, P = {_bar(P)} (tangent-plane test, Rachford-Rice flash, "
-            f"{split.steps} substitution steps and a Newton finish)",
-            f"vapour fraction beta = {split.beta:.9g}",
-            "component   feed z      liquid x    vapour y    K = y/x",
-            *(f"{i:<10}  {zi:<10.6g}  {xi:<10.6g}  {yi:<10.6g}  {yi / xi:.6g}"
-              for i, zi, xi, yi in zip(ids, model.z, split.x, split.y)),
-            f"Z liquid = {split.Z_liquid:.6g}, Z vapour = {split.Z_vapour:.6g}"]
+@dataclass(frozen=True)
+class PhaseReport:
+    """A cubic mixture's phase at one (T, P): the edges of its two-phase region along the isobar
+    and the isotherm through it, and the flash where it splits there."""
+
+    T: float
+    P: float
+    along_P: tuple[Edge | None, Edge | None]
+    """(lower, upper) edge in T [K] along the isobar P: the bubble and the dew point"""
+    along_T: tuple[Edge | None, Edge | None]
+    """(lower, upper) edge in P [Pa] along the isotherm T: the dew point and the bubble (or upper dew) point"""
+    split: Split | None
+    ids: tuple[str, ...]
+    z: tuple[float, ...]
+    T_span: tuple[float, float] = (0.0, 0.0)
+    """the temperatures searched along the isobar [K]"""
+    P_span: tuple[float, float] = (0.0, 0.0)
+    """the pressures searched along the isotherm [Pa]"""
+
+    def lines(self) -> list[str]:
+        """The report as text: the edges, then the flash (or that the mixture is one phase here)."""
+        out = [f"two-phase region along P = {_bar(self.P)}: "
+               + _edges_text(*self.along_P, lambda T: f"T = {_kelvin(T)}", self.T_span),
+               f"two-phase region along T = {self.T:.6g} K: "
+               + _edges_text(*self.along_T, lambda P: f"P = {_bar(P)}", self.P_span)]
+        if self.split is None:
+            out.append("one phase at this T and P (tangent-plane stability test)")
+            return out
+        s = self.split
+        out += [f"two phases at this T and P (tangent-plane test, Rachford-Rice flash in {s.steps} substitution steps "
+                f"and a Newton finish): vapour fraction beta = {s.beta:.9g}; Z liquid = {s.Z_liquid:.6g}, "
+                f"Z vapour = {s.Z_vapour:.6g}",
+                f"{'component':<10}  {'feed z':>10}  {'liquid x':>10}  {'vapour y':>10}  {'K = y/x':>10}",
+                *(f"{i:<10}  {zi:>10.6g}  {xi:>10.6g}  {yi:>10.6g}  {yi / xi:>10.6g}"
+                  for i, zi, xi, yi in zip(self.ids, self.z, s.x, s.y))]
+        return out
+
+    def as_json(self) -> dict:
+        def edge(e: Edge | None, unit: str):
+            return None if e is None else {"value": float(e.value), "unit": unit, "kind": e.kind}
+
+        return {
+            "T": {"value": self.T, "unit": "K"}, "P": {"value": self.P, "unit": "Pa"},
+            "along_P": [edge(e, "K") for e in self.along_P], "along_T": [edge(e, "Pa") for e in self.along_T],
+            "split": None if self.split is None else {
+                "beta": self.split.beta, "x": dict(zip(self.ids, map(float, self.split.x))),
+                "y": dict(zip(self.ids, map(float, self.split.y))), "Z_liquid": self.split.Z_liquid,
+                "Z_vapour": self.split.Z_vapour},
+        }
+
+
+def report(model, T: float, P: float) -> PhaseReport:
+    """The :class:`PhaseReport` of a :class:`~.mixing.CubicMixture` at T [K], P [Pa]."""
+    mix, z = model.mixing, model.z
+    return PhaseReport(T, P, envelope_at_P(mix, P, z), envelope_at_T(mix, T, z), split_at(mix, T, P, z),
+                       tuple(sp.id for sp in model.components), tuple(float(v) for v in z), T_range(mix, z), P_range(mix))
