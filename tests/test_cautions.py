@@ -107,6 +107,7 @@ SAMPLES = {
     "r134a-chiller-evaporator-condenser.toml": {PRESSURE},            # 10.17 bar; coldest -5 °C
     "steam-condensate-flash-drum.toml": {PRESSURE},                   # 10 barg condensate
     "n2-feed-effluent-preheater.toml": {PRESSURE},                    # 9 barg; the loop solved together
+    "ng-fuel-letdown-dewpoint.toml": {PRESSURE},                      # 55 barg; the header at -18.3 °C
     # transient: a vent's depressuring time, a fill's heating, the coldest gas or wall in the history
     "argon-buffer-pot-fill.toml": {PRESSURE, FILL_HEATING},           # 12 barg header; the pot peaks at 207 °C
     "h2-buffer-blowdown.toml": {PRESSURE, LOW_TEMPERATURE, DEPRESSURING},  # adiabatic: the gas to -145 °C

@@ -1,4 +1,4 @@
-"""Mixtures in steady flow and on the command line: blending different fluids in a mixer, the
+"""Mixtures in steady flow, in a vessel and on the command line: blending different fluids in a mixer, the
 dew and bubble points in the stream tables, `joulebook state` with a composition.
 
 Sources of the check values:
@@ -159,3 +159,53 @@ def test_state_with_a_bad_kij_names_it(capsys):
                  "--given", "T=20 degC", "--given", "P=30 bar"])
     err = capsys.readouterr().err
     assert code == 2 and "fluid.kij.CH4-Xe" in err and "not a component" in err
+
+
+# -- a vessel of a mixture ----------------------------------------------------------------------------
+VENT = '''
+[worksheet]
+title = "Pilot gasifier's syngas buffer vented through its stack"
+[fluid]
+species = "pilot syngas"
+composition = {H2 = 0.45, CO = 0.35, CO2 = 0.15, CH4 = 0.05}
+model = "peng-robinson"
+[system]
+kind = "transient"
+inside = "the syngas in buffer B-3"
+[[vessel]]
+name = "B-3"
+V = "0.5 m3"
+T = "25 degC"
+P = "30 barg"
+heat = "adiabatic"
+[[line]]
+name = "stack"
+from = "B-3"
+to = "outside"
+back = "atmosphere"
+orifice = "6 mm"
+Cd = "0.62"
+[end]
+P = "{end}"
+'''
+
+
+def test_an_adiabatic_vent_of_a_mixture_keeps_the_entropy_of_the_gas_left_behind():
+    """The gas left in an adiabatic vessel expands reversibly (common practice, no source):
+    s2 = s1 at the end state, on the mixture's own entropy."""
+    data = api.as_json(api.solve(VENT.replace("{end}", "20 barg")))
+    vessel = data["end_state"]["vessels"]["B-3"]
+    sp, model = api.fluid("pilot syngas", "peng-robinson",
+                          composition={"H2": "0.45", "CO": "0.35", "CO2": "0.15", "CH4": "0.05"})
+    s1 = model.at_TP(vessel["T1"]["value"], vessel["P1"]["value"]).s
+    assert vessel["s2"]["value"] == pytest.approx(s1, rel=1e-8, abs=1e-8)
+    assert data["composition"] == {"H2": 0.45, "CO": 0.35, "CO2": 0.15, "CH4": 0.05}
+
+
+def test_a_vent_that_cools_the_mixture_into_its_envelope_is_refused_with_its_dew_point():
+    from balance.errors import BalanceError
+
+    with pytest.raises(BalanceError) as caught:
+        api.solve(VENT.replace("{end}", "1 barg"))
+    text = str(caught.value)
+    assert "splits into two phases" in text and "dew point T =" in text and "CO2" in text

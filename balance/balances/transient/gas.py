@@ -60,12 +60,18 @@ def _ideal(model) -> TV:
 def _cubic(model) -> TV:
     state = model.tv
     contains = model.saturation_curve.contains
+    mixing = getattr(model, "mixing", None)
+    if mixing is not None:  # a mixture splits outside its one-fluid dome too: the stability test at each state
+        from ...models.cubic.phases import stability
 
     def tv(T: float, v: float):
         if contains(T, v):
             raise WetState("state", f"T = {T:.2f} K, v = {v:.4g} m3/mol lies inside the two-phase "
                                     f"region of {model.label}")
-        return state(T, v)
+        out = state(T, v)
+        if mixing is not None and out[0] > 0.0 and not stability(mixing, T, out[0], model.z).stable:
+            raise WetState("state", model.two_phase_error("state", T, out[0]).message)
+        return out
 
     return tv
 

@@ -103,40 +103,43 @@ class Mixing:
         return A0 + (A1 + A2 * g) * g, slope * dg, 2.0 * A2 * dg * dg + slope * d2g
 
     # -- fugacity coefficients of each component --------------------------------
-    def roots(self, T: float, P: float, x):
-        """(Z_low, Z_high, n_real, A, B, r, Mw, a, b) for the composition x at T [K], P [Pa] (floats)."""
+    def a_matrix(self, T: float):
+        """aᵢⱼ = (1 - kᵢⱼ) √(aᵢ aⱼ) [Pa m6/mol2] at T [K]: what every composition at this T shares."""
         r = self.alpha + self.beta * self.g_terms(T)[0]
-        w = x * r
-        Mw = self.M @ w
-        a, b = float(w @ Mw), float(x @ self.b_i)
-        RT = R * T
-        A, B = a * P / (RT * RT), b * P / RT
-        z_lo, z_hi, n = z_roots(*fm.z_coefficients(A, B, self.eps, self.sig))
-        if not z_lo > B:
-            z_lo = z_hi
-        return z_lo, z_hi, n, A, B, r, Mw, a, b
+        return self.M * np.outer(r, r)
 
     def _L(self, Z, B, log):
         if self.sig == self.eps:
             return B / Z
         return log((Z + self.sig * B) / (Z + self.eps * B)) / (self.sig - self.eps)
 
-    def ln_phi(self, T: float, P: float, x, root: str = "stable"):
+    def ln_phi(self, T: float, P: float, x, root: str = "stable", aij=None):
         """(ln φᵢ array, Z, ln φ of the mixture) of composition x at T [K], P [Pa] on a root.
 
-        ``root``: 'stable' (the root of lower Gibbs energy), 'liquid' (smallest) or 'vapour'.
+        ``root``: 'stable' (the root of lower Gibbs energy), 'liquid' (smallest) or 'vapour';
+        ``aij``: :meth:`a_matrix` at T, where the caller has it (a test at one T asks many times).
         """
-        z_lo, z_hi, n, A, B, r, Mw, a, b = self.roots(T, P, x)
+        if aij is None:
+            aij = self.a_matrix(T)
+        ax = aij @ x
+        a, b = float(x @ ax), float(x @ self.b_i)
+        RT = R * T
+        A, B = a * P / (RT * RT), b * P / RT
+        z_lo, z_hi, _ = z_roots(*fm.z_coefficients(A, B, self.eps, self.sig))
+        if not z_lo > B:
+            z_lo = z_hi
+        log, AB = math.log, A / B
         if root == "stable" and z_hi != z_lo:
-            g_lo = z_lo - 1.0 - math.log(z_lo - B) - A / B * self._L(z_lo, B, math.log)
-            g_hi = z_hi - 1.0 - math.log(z_hi - B) - A / B * self._L(z_hi, B, math.log)
+            g_lo = z_lo - 1.0 - log(z_lo - B) - AB * self._L(z_lo, B, log)
+            g_hi = z_hi - 1.0 - log(z_hi - B) - AB * self._L(z_hi, B, log)
             Z = z_lo if g_lo < g_hi else z_hi
         else:
             Z = z_lo if root == "liquid" else z_hi
-        bi_b = self.b_i / b
-        L = self._L(Z, B, math.log)
-        lnphi = bi_b * (Z - 1.0) - math.log(Z - B) - A / B * L * (2.0 * r * Mw / a - bi_b)
-        return lnphi, Z, Z - 1.0 - math.log(Z - B) - A / B * L
+        bi_b = self.b_i * (1.0 / b)
+        L = AB * self._L(Z, B, log)
+        lnZB = log(Z - B)
+        lnphi = bi_b * (Z - 1.0 + L) - (lnZB + (2.0 * L / a) * ax)
+        return lnphi, Z, Z - 1.0 - lnZB - L
 
     def ln_phi_many(self, T, P, x):
         """ln φᵢ (n, N) and Z (N,) of compositions x (n, N) at arrays T, P (N,), on the stable roots."""

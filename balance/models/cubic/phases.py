@@ -86,7 +86,8 @@ def stability(mix, T: float, P: float, z) -> Stability:
     """The tangent-plane test of feed ``z`` (mole fractions) at T [K], P [Pa]."""
     z = np.asarray(z, dtype=float)
     lnz = np.log(z)
-    d = lnz + mix.ln_phi(T, P, z)[0]
+    aij = mix.a_matrix(T)
+    d = lnz + mix.ln_phi(T, P, z, aij=aij)[0]
     K = mix.wilson_K(T, P)
     lowest = 0.0
     for kind, W in (("vapour-like", z * K), ("liquid-like", z / K)):
@@ -95,7 +96,7 @@ def stability(mix, T: float, P: float, z) -> Stability:
         for n in range(MAX_STEPS):
             W = np.exp(lnW)
             w = W / W.sum()
-            lnphi = mix.ln_phi(T, P, w)[0]
+            lnphi = mix.ln_phi(T, P, w, aij=aij)[0]
             tm = 1.0 + float(W @ (lnW + lnphi - d - 1.0))
             if tm < TM_TOLERANCE and float(np.sum((np.log(w) - lnz) ** 2)) > 1e-12:
                 return Stability(False, tm, tuple(w), kind)
@@ -167,6 +168,7 @@ def flash_TP(mix, T: float, P: float, z, K=None) -> Split | None:
     z = np.asarray(z, dtype=float)
     lnK = np.log(mix.wilson_K(T, P) if K is None else np.asarray(K, dtype=float))
     last = None
+    aij = mix.a_matrix(T)
 
     def update(lnK):
         K = np.exp(lnK)
@@ -176,8 +178,8 @@ def flash_TP(mix, T: float, P: float, z, K=None) -> Split | None:
         x = z / (1.0 + beta * (K - 1.0))
         y = K * x
         x, y = x / x.sum(), y / y.sum()
-        ln_l, Z_l, _ = mix.ln_phi(T, P, x)
-        ln_v, Z_v, _ = mix.ln_phi(T, P, y)
+        ln_l, Z_l, _ = mix.ln_phi(T, P, x, aij=aij)
+        ln_v, Z_v, _ = mix.ln_phi(T, P, y, aij=aij)
         return beta, x, y, Z_l, Z_v, ln_l - ln_v
 
     steps = 0
