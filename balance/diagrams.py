@@ -128,6 +128,8 @@ def _dome_points(model) -> list | None:
     """The states of the saturation curve (liquid side up, vapour side down), or None (see :func:`_dome`)."""
     import numpy as np
 
+    if getattr(model, "mixing", None) is not None:
+        return None  # a cubic mixture's one-fluid dome is not its phase envelope: none is drawn
     if model.two_phase:
         lo, _ = model.T_bounds()
         Tc = model.species.Tc

@@ -106,7 +106,7 @@ class StepScreen(Screen):
         """Put the focus where ``problem`` is typed (its field, or what its part's line is
         about), scrolled into view; False when this step shows no such place."""
         targets = self.problem_targets()
-        for place in (problem.place, (problem.part, problem.index, ""), (problem.part, None, "")):
+        for place in _places(problem):
             target = targets.get(place)
             if target is None:
                 continue
@@ -124,7 +124,7 @@ class StepScreen(Screen):
         targets = self.problem_targets()
         shown: dict[tuple, list[str]] = {}
         for p in problems:
-            for place in (p.place, (p.part, p.index, ""), (p.part, None, "")):
+            for place in _places(p):
                 if place in targets:
                     shown.setdefault(place, []).append(p.message)
                     break
@@ -206,3 +206,11 @@ class StepScreen(Screen):
         """Check every unit-aware field again (after warm-up, or a new atmosphere)."""
         for row in self.query(FieldRow):
             row.revalidate()
+
+
+def _places(problem) -> tuple:
+    """Where a problem may be shown, nearest first: its field; the field its key is under (a
+    table's key, ``composition.CH4`` under ``composition``); its item's line; its part's line."""
+    part, index, key = problem.place
+    head = key.split(".", 1)[0]
+    return (problem.place, *(((part, index, head),) if head != key else ()), (part, index, ""), (part, None, ""))

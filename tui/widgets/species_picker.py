@@ -66,9 +66,17 @@ class SpeciesPicker(Widget):
             super().__init__()
             self.text = text
 
-    def __init__(self, value: str = "", id: str | None = None) -> None:
+    def __init__(self, value: str = "", id: str | None = None, mixture=()) -> None:
         super().__init__(id=id)
         self._initial = value
+        self._mixture: tuple[str, ...] = tuple(mixture)
+
+    def set_mixture(self, components) -> None:
+        """The components of a mixture typed below, whose name the field then holds (not a species)."""
+        components = tuple(components)
+        if components != self._mixture:
+            self._mixture = components
+            self._fill(self.value)
 
     def compose(self) -> ComposeResult:
         yield FieldRow("Species", self._initial, id="species", enter_moves_on=False,
@@ -106,6 +114,10 @@ class SpeciesPicker(Widget):
         results.set_options([Option(f"{sp.id:<8} {sp.name}", id=sp.id) for sp in shown])
         self._show_results()
         note = self.query_one(".species-picker--found", Static)
+        if self._mixture:
+            named = f"'{query.strip()}' names" if query.strip() else "give a name for"
+            note.update(f"→ {named} the mixture of {', '.join(self._mixture)} typed under Mixture")
+            return
         if not query.strip():
             first = f" (first {len(shown)} listed)" if len(shown) < len(found) else ""
             note.update(f"{len(found)} species{first}; type to narrow, ↓ to choose")
@@ -116,7 +128,7 @@ class SpeciesPicker(Widget):
             note.update(exc.message)
             return
         if sp.composition:
-            note.update(f"→ {sp.name} (a mixture, ideal gas): {sp.formula}; M = {sp.M * 1e3:.4g} g/mol")
+            note.update(f"→ {sp.name} (a mixture): {sp.formula}; M = {sp.M * 1e3:.4g} g/mol")
             return
         ref = "reference model: yes" if sp.coolprop else "reference model: no"
         note.update(f"→ {sp.name} ({sp.id}): M = {sp.M * 1e3:.4g} g/mol, Tc = {sp.Tc:.5g} K, "
