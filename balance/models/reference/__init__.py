@@ -6,7 +6,8 @@ state, evaluated by CoolProp's HEOS backend.
   (departures at the same T and P);
 * :mod:`.search`    bracketed searches along paths, for the pairs CoolProp has no
   solver for and the pairs more than one state can meet;
-* :mod:`.model`     :class:`Reference`: every input pair routed to one or the other.
+* :mod:`.model`     :class:`Reference`: every input pair routed to one or the other;
+* :mod:`.mixture`   :class:`ReferenceMixture`: a mixture of fixed composition.
 
 CoolProp is imported only inside methods (its import costs over a second),
 and each model instance owns one low-level ``AbstractState``, created on
@@ -31,8 +32,25 @@ Any two of T, P, v, u, h, s and x (quality) fix a state:
   For these pairs the whole path is scanned and, when more than one state
   qualifies, the rule every model keeps applies (:mod:`balance.models.base`):
   the state of largest volume is returned, and its note names the others.
+
+Mixtures
+--------
+A mixture (a species with a composition) takes CoolProp's HEOS multi-fluid
+model, the GERG-2008 form of Kunz and Wagner: each component's own reference
+EOS, reducing functions of composition and, for the pairs that have one, a
+departure function, with the parameters CoolProp holds for each pair (a
+mixture with a pair CoolProp has none for is refused, naming every such pair;
+so is a component without a CoolProp name). Unlike the pure model, u, h and s
+are measured from each component's ideal gas at 298.15 K and 1 bar, as in the
+ideal-gas mixture model (CoolProp's values shifted by two constants). Only
+single-phase states are given: a state CoolProp's phase-stability test finds
+two-phase is refused with the dew and bubble points, and quality x is not an
+input. T-P and T-v are evaluated directly; every other pair is found by
+searches on (T, P) or (T, v) with the phase imposed, each root then checked
+for stability.
 """
 
+from .mixture import ReferenceMixture
 from .model import Reference
 
-__all__ = ["Reference"]
+__all__ = ["Reference", "ReferenceMixture"]
