@@ -213,6 +213,12 @@ def blended_model(models, amounts, kij: Mapping[str, str] | None = None, field: 
     names = sorted({m.name for m in models})
     if len(names) > 1:
         raise InputError(field, f"blends streams on different models ({', '.join(names)}): give its inlets one model")
+    if names[0] == "reference" and any(not m.species.composition for m in models):
+        # a pure fluid's reference model measures from CoolProp's own reference state, the mixture's
+        # from each component's ideal gas at 298.15 K and 1 bar: their energies would not add
+        raise InputError(field, "blends pure fluids on the reference model, whose h and s are measured from each "
+                                "fluid's own CoolProp reference state, not from the ideal gas the mixture's are: "
+                                "their energies do not add; blend them on a cubic or the ideal gas")
     sp = blend([(m.species, n) for m, n in zip(models, amounts)], name, field)
     return make_model(names[0], sp, kij=_kij_of(sp, kij, several=True))
 

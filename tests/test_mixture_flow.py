@@ -209,3 +209,11 @@ def test_a_vent_that_cools_the_mixture_into_its_envelope_is_refused_with_its_dew
         api.solve(VENT.replace("{end}", "1 barg"))
     text = str(caught.value)
     assert "splits into two phases" in text and "dew point T =" in text and "CO2" in text
+
+
+def test_a_blend_of_pure_fluids_on_the_reference_model_is_refused():
+    """The pure reference model measures h and s from CoolProp's reference state of each fluid, the
+    mixture from the ideal gas (README, Models): their energies would not add."""
+    with pytest.raises(InputError) as caught:
+        api.solve(_blend("reference"))
+    assert "M-1" in caught.value.field and "do not add" in caught.value.message
