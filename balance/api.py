@@ -37,7 +37,7 @@ from __future__ import annotations
 
 import os
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, Mapping, Union
+from typing import TYPE_CHECKING, Mapping, Sequence, Union
 
 from .errors import BalanceError
 from .kinds import kind_of
@@ -302,6 +302,28 @@ def mixture_pins(result) -> list[dict]:
     return out
 
 
+# -- studies: many solves of one worksheet ----------------------------------------------------
+def case_row(text: str) -> dict:
+    """One case of a study, from its worksheet's TOML text: {"ok", "message", "values", "main"}
+    (:mod:`balance.study.table`). Module-level and plain in and out: a process pool runs it."""
+    from .study.table import flatten, main_results
+
+    solved = attempt(text)
+    if not solved.ok:
+        return {"ok": False, "message": solved.message, "values": {}, "main": ()}
+    data = as_json(solved.result)
+    return {"ok": True, "message": "", "values": flatten(data), "main": tuple(main_results(data))}
+
+
+def sweep(ws: Worksheet, vary: Sequence[str], points: int | None = None, *, together: bool = False,
+          jobs: int = 1, progress=None):
+    """The worksheet solved over ``--vary PATH=VALUES`` fields (:mod:`balance.study.sweep`): every
+    case a row, a failed one with its message. Raises InputError for a bad path or range."""
+    from .study.sweep import read_varies, run
+
+    return run(ws, read_varies(ws, vary, points), case_row, together=together, jobs=jobs, progress=progress)
+
+
 # -- what the app draws and advises --------------------------------------------------------
 def trace(result: Result) -> Trace:
     """The P–v and T–s diagrams' lines of a result; raises BalanceError."""
@@ -326,5 +348,5 @@ def advise(ws: Worksheet) -> Advice:
 
 
 __all__ = ["Attempt", "Check", "FieldProblem", "Source", "advise", "as_json", "attempt", "check", "entry_data",
-           "explain", "flow_trace", "fluid", "kind", "mixture_pins", "phases", "pins", "prepare", "problems", "read",
-           "read_field", "solve", "trace"]
+           "explain", "flow_trace", "fluid", "kind", "case_row", "mixture_pins", "phases", "pins", "prepare", "problems", "read",
+           "read_field", "solve", "sweep", "trace"]

@@ -447,11 +447,13 @@ def build_parser():
     add_record_parser(sub)
     from .procedure_cli import add_parser as add_procedure_parser  # `joulebook procedure …`
     add_procedure_parser(sub)
+    from .study_cli import add_parser as add_sweep_parser  # `joulebook sweep …`
+    add_sweep_parser(sub)
     return parser
 
 
 #: the subcommands; a first word not among them is a file to open
-COMMANDS = ("solve", "check", "state", "species", "demo", "open", "new", "practice", "record", "procedure")
+COMMANDS = ("solve", "check", "state", "species", "demo", "open", "new", "practice", "record", "procedure", "sweep")
 
 
 def main(argv: list[str] | None = None, *, run_app=run_app) -> int:
