@@ -44,7 +44,7 @@ async def test_the_letdown_is_drawn_on_three_planes_with_its_heater_and_valve(tm
     app.session.step = "results"
     async with app.run_test(size=SIZE) as pilot:
         await _results(pilot)
-        assert _shown_tabs(app) == ["Balance", "T–s", "h–s", "P–h"]
+        assert _shown_tabs(app) == ["Balance", "T–s", "h–s", "P–h", "Sweep"]
         assert not on_screen(app, "No diagram")
         await pilot.press("shift+tab", "right")  # from the balance to the tab bar, then T–s
         await settle(pilot)

@@ -599,6 +599,25 @@ def solve(source: Worksheet | dict) -> api.Attempt:
     return api.attempt(source.to_dict() if isinstance(source, Worksheet) else source)
 
 
+def sweep(ws: Worksheet, vary: str, points: int | None):
+    """The worksheet solved over one ``PATH=VALUES`` (:func:`balance.api.sweep`); module-level so
+    that the reference model's process can run it. Raises InputError for a bad path or range."""
+    return api.sweep(ws, [vary], points)
+
+
+def sweep_default(ws: Worksheet) -> str:
+    """The field a sweep offers first: the first pressure the worksheet gives (a charge, a
+    supply, a stream's), else its first temperature, else nothing."""
+    from balance.study.paths import values_of
+
+    given = [p for p, text in values_of(ws) if text.strip() and not text.strip().startswith("?")]
+    for key in (".P", ".T"):
+        for p in given:
+            if p.endswith(key) and not p.startswith(("worksheet.", "fluid.")):
+                return p
+    return ""
+
+
 # -- two models side by side ----------------------------------------------------------------
 @dataclass(frozen=True)
 class Comparison:

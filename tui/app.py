@@ -89,6 +89,8 @@ class JoulebookApp(BackgroundWork, HouseMode, App):
     busy = reactive("", init=False)
     comparison = reactive(None, init=False)
     """the worksheet solved on a second model (tui.analysis.Comparison), for the compare screen"""
+    swept = reactive(None, init=False)
+    """the worksheet solved over a range of one input (tui.background.Swept), for the sweep tab"""
     notices: reactive[tuple] = reactive(tuple, init=False)
     """the notifications being shown (textual.notifications.Notification), oldest first:
     a step shows them in its notice bar, where they cover nothing"""

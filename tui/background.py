@@ -21,7 +21,7 @@ from textual import work
 from textual.message import Message
 from textual.worker import Worker, WorkerState
 
-from balance.errors import BalanceError
+from balance.errors import BalanceError, InputError
 from balance.worksheet import Worksheet
 
 from . import offload
@@ -88,6 +88,14 @@ class Compared(Message):
     def __init__(self, comparison) -> None:
         super().__init__()
         self.comparison = comparison
+
+
+class Swept(Message):
+    """The worksheet solved over a range of one input (balance.study.sweep.Sweep), or why not."""
+
+    def __init__(self, worksheet: Worksheet, sweep=None, error: str = "", field: str = "") -> None:
+        super().__init__()
+        self.worksheet, self.sweep, self.error, self.field = worksheet, sweep, error, field
 
 
 class Warmed(Message):
@@ -297,6 +305,31 @@ class BackgroundWork:
         second_ws = analysis.with_model(ws, other)
         attempts = (first or solved(ws), solved(second_ws))
         self.post_message(Compared(analysis.compared(ws, (ws.fluid.model, other), attempts)))
+
+    # -- one input over a range (the results step's sweep tab) -----------------------------
+    def start_sweep(self, vary: str, points: int | None) -> None:
+        """Solve the worksheet over ``vary`` (``PATH=VALUES``) and show the cases (not recorded)."""
+        ws = self.session.worksheet
+        self._set_busy("sweep", self._slow_text("sweeping") if self._slow(ws) else "sweeping")
+        self._sweep_worker(ws, vary, points)
+
+    @work(thread=True, exclusive=True, group="sweep", exit_on_error=False)
+    def _sweep_worker(self, ws: Worksheet, vary: str, points: int | None) -> None:
+        from . import analysis
+
+        try:
+            swept = offload.call(ws.fluid.model, analysis.sweep, ws, vary, points)
+        except InputError as exc:
+            self.post_message(Swept(ws, error=exc.message, field=exc.field))
+            return
+        except (BalanceError, offload.OffloadError) as exc:
+            self.post_message(Swept(ws, error=str(exc)))
+            return
+        self.post_message(Swept(ws, swept))
+
+    def on_swept(self, message: Swept) -> None:
+        self._set_busy("sweep", None)
+        self.swept = message
 
     def on_compared(self, message: Compared) -> None:
         self._set_busy("compare", None)

@@ -21,6 +21,7 @@ from ..analysis import planes
 from ..widgets.flow_diagram import FlowDiagram
 from ..widgets.history_plot import HistoryPlot
 from ..widgets.process_diagram import ProcessDiagram
+from ..widgets.sweep_panel import SweepPanel
 from .step import StepScreen
 
 
@@ -89,6 +90,12 @@ equation with its numbers.
   and hottest gas and wall and when, the time to the end, the mass moved,
   the energy closure; its T–t and P–t tabs draw the gas's (and the wall's)
   temperature and the pressure against time.
+- The Sweep tab solves the worksheet over a range of one input: give the
+  field's path (`initial.V-101.P`, `stream.feed.T`, `fluid.model`), its
+  values (`120 barg..180 barg` with the points, or a list `ideal-gas,
+  peng-robinson`) and Enter; the first main result that moves is drawn
+  against it, PgUp and PgDn draw the others. Not recorded (`joulebook
+  sweep` gives a CSV).
 - `f2` switches the display units (SI, metric, US).
 - `f4` solves the worksheet on another model as well (the reference model
   in its own process) and shows the two side by side, with the difference;
@@ -110,6 +117,10 @@ on pressure equipment without the cautions.
                 for pane, label, widget, plane in tabs:
                     with TabPane(label, id=pane):
                         yield widget(plane, id=pane.removeprefix("tab-"))
+            with TabPane("Sweep", id="tab-sweep"):  # every kind: one input over a range
+                from ..analysis import sweep_default
+
+                yield SweepPanel(sweep_default(self.worksheet), id="sweep")
 
     def on_mount(self) -> None:
         super().on_mount()
@@ -117,6 +128,7 @@ on pressure equipment without the cautions.
         self.watch(self.app, "units", lambda _: self._show())
         self.watch(self.app, "check", lambda _: self._maybe_solve())
         self.watch(self.app, "busy", lambda _: self._show())
+        self.watch(self.app, "swept", lambda swept: self.query_one(SweepPanel).show(swept))
 
     def _maybe_solve(self) -> None:
         app = self.app
