@@ -20,13 +20,14 @@ cold states. Not a test: machines here are shared and noisy.
 
 from __future__ import annotations
 
-import statistics
 import sys
 import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
+
+from benchmarks.timing import timed  # noqa: E402  (after the path: run as a script)
 
 #: An invented 10-component natural gas (mole fractions).
 GAS = {"CH4": 0.8710, "C2H6": 0.0550, "C3H8": 0.0210, "iC4H10": 0.0040, "nC4H10": 0.0060, "iC5H12": 0.0015,
@@ -35,17 +36,6 @@ VECTOR_BUDGET = 200e-6
 """[s] per state in the vectorised path"""
 SCALAR_BOUND = 20.0
 """scalar call at most this many times CoolProp's PR mixture backend's"""
-
-
-def timed(fn, n: int, rounds: int) -> float:
-    """The median time of one call [s] over ``rounds`` rounds of ``n`` calls."""
-    times = []
-    for _ in range(rounds):
-        t0 = time.perf_counter()
-        for _ in range(n):
-            fn()
-        times.append((time.perf_counter() - t0) / n)
-    return statistics.median(times)
 
 
 def main() -> None:

@@ -19,27 +19,16 @@ solve is itself well under a millisecond). Not a test: machines here are shared 
 
 from __future__ import annotations
 
-import statistics
 import sys
-import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
+from benchmarks.timing import timed  # noqa: E402  (after the path: run as a script)
+
 BUDGET = 1e-3
 """[s] applying every rule once: a hundredth of the app's recount budget"""
-
-
-def timed(fn, n: int, rounds: int) -> float:
-    """The median time of one call [s] over ``rounds`` rounds of ``n`` calls."""
-    times = []
-    for _ in range(rounds):
-        t0 = time.perf_counter()
-        for _ in range(n):
-            fn()
-        times.append((time.perf_counter() - t0) / n)
-    return statistics.median(times)
 
 
 def main() -> None:
