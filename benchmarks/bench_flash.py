@@ -30,7 +30,6 @@ answer re-flashed to 1e-9.
 
 from __future__ import annotations
 
-import math
 import statistics
 import sys
 import time

@@ -25,7 +25,6 @@ Target (issue 8): ours <= 3x CoolProp per call.
 
 from __future__ import annotations
 
-import math
 import statistics
 import sys
 import time

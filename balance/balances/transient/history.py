@@ -27,7 +27,6 @@ the integrator (stiff at that start) passes it in its first steps.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -149,7 +148,6 @@ def integrate(p: Problem, rtol: float | None = None) -> History:
     tv = tv_function(model)
     L = _Layout(p)
     vessels = {v.name: v for v in p.vessels}
-    supply_T = next((line.supply[0] for line in p.lines if line.supply), None)
 
     supplies = {}
     for line in p.lines:

@@ -12,7 +12,7 @@ a restriction or a rate to integrate through.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from functools import cached_property
 
 from ...errors import InputError

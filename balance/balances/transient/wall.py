@@ -19,7 +19,6 @@ applies.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 from ...errors import InputError
