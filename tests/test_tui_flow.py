@@ -112,7 +112,8 @@ async def test_the_letdown_sample_walked_and_solved_shows_the_heater_duty(tmp_pa
         assert "E-201 Q̇ = 50.88" in shown and "kW" in shown
         tabs = app.screen.query_one("#tabs", TabbedContent)
         assert [t.id for t in tabs.query("ContentTab") if t.display] == [
-            "--content-tab-tab-balance", "--content-tab-tab-flow-ts", "--content-tab-tab-flow-hs", "--content-tab-tab-flow-ph"]
+            "--content-tab-tab-balance", "--content-tab-tab-flow-ts", "--content-tab-tab-flow-hs", "--content-tab-tab-flow-ph",
+            "--content-tab-tab-sweep"]
         assert app.statuses["results"] == "complete"
         assert kinds(session).count("solve") == 1  # the record's own solve stands: nothing changed
 
