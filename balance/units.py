@@ -200,12 +200,17 @@ def parse(text, dimension: str, field: str, *, p_atm: float = P_ATM, gauge: bool
         is above absolute zero and a pressure above vacuum, or InputError says
         so; ``C``, ``degc``, ``deg C`` in a temperature field read as °C
         (and ``F`` as °F): pint's coulomb and farad are never temperatures.
+        A value may carry its uncertainty (``"150 barg ± 2 bar"``,
+        :func:`split_uncertainty`): the value alone is returned, and a bad
+        uncertainty is an InputError naming ``field``.
 
     >>> parse("20 degC", "temperature", "T1")
     293.15
     >>> parse("25 C", "temperature", "T1")
     298.15
     >>> parse("3.2 barg", "pressure", "P1")
+    421325.0
+    >>> parse("3.2 barg ± 0.05 bar", "pressure", "P1")
     421325.0
     """
     dim = DIMENSIONS[dimension]
@@ -224,9 +229,12 @@ def parse(text, dimension: str, field: str, *, p_atm: float = P_ATM, gauge: bool
     if len(text) > MAX_TEXT:  # before the cache, which would keep it
         raise InputError(field, f"is {len(text)} characters long; {dim.phrase} is a number and a unit, "
                                 f"like '{_example(dimension)}', at most {MAX_TEXT} characters")
+    text, uncertainty = split_uncertainty(text, field)
     si, is_gauge, problem, _ = _convert(text, dimension)
     if problem:
         raise InputError(field, problem)
+    if uncertainty is not None:  # the value is read alone; its uncertainty must still read beside it
+        uncertainty.standard(text, field)
     if not is_gauge:
         return si
     if not gauge:
@@ -289,7 +297,11 @@ def unit_of(text, dimension: str) -> str | None:
     """The unit ``text`` is written in, as it is read: 'degC' for '25 C', 'bar' for '3 barg'
     (a gauge or absolute marker taken off), 'm**3' for 'm3'; None where ``text`` does not read
     as ``dimension`` (blank, '?', a bare number, a fault)."""
-    if not isinstance(text, str) or len(text) > MAX_TEXT or _convert(text, dimension)[2]:
+    if not isinstance(text, str) or len(text) > MAX_TEXT:
+        return None
+    if "±" in text or "+-" in text:
+        text = text.partition("±" if "±" in text else "+-")[0].strip()
+    if _convert(text, dimension)[2]:
         return None
     split = _split(text, dimension)
     if isinstance(split, str) or not split[1]:
@@ -337,6 +349,179 @@ def _example(dimension: str) -> str:
     }.get(dimension, "1")
 
 
+# -- the uncertainty a value may carry --------------------------------------------------------
+#: What each distribution word divides its number by to give the standard uncertainty u
+#: (JCGM 100:2008 4.3.7 for the rectangular a/√3, 4.3.9 for the triangular a/√6, from memory).
+DIVISORS = {"normal": 1.0, "rectangular": math.sqrt(3.0), "triangular": math.sqrt(6.0)}
+_SIGN = ("±", "+-")
+# '(rectangular)', '(k=2)' at the end of the uncertainty; not '(g)' of 'bar (g)', nor '(mol K)' of 'J/(mol K)'
+_PARENTHESES = re.compile(r"^(.*?)\s*\(\s*([^()]*?)\s*\)\s*$")
+_COVERAGE = re.compile(r"^k\s*=\s*(.+)$", re.IGNORECASE)
+_UNIT_MARKS = {"g", "a", "abs", "gauge"}
+
+
+@dataclass(frozen=True)
+class Uncertainty:
+    """The uncertainty typed after a value: ``2 bar``, ``0.5 %``, ``0.3 K (rectangular)``, ``4 kPa (k=2)``.
+
+    The number is a standard uncertainty (``normal``, the default), the half-width a of a
+    rectangular (u = a/√3) or triangular (u = a/√6) distribution, or an expanded uncertainty
+    U with its coverage factor k (u = U/k). Its unit is read as a difference and may differ
+    from the value's, of the same dimension; ``%`` makes it relative to the value as typed.
+    """
+
+    text: str
+    """as typed after the ± sign"""
+    number: float
+    """the number as typed [its unit]"""
+    unit: str = ""
+    """its unit as typed: '' for a pure number, '%' for a relative uncertainty"""
+    distribution: str = "normal"
+    """normal, rectangular or triangular"""
+    k: float | None = None
+    """the coverage factor the number was expanded with (then ``number`` is U), else None"""
+
+    @property
+    def relative(self) -> bool:
+        return self.unit == "%"
+
+    @property
+    def divisor(self) -> float:
+        """What the number is divided by to give the standard uncertainty [-]."""
+        return self.k if self.k is not None else DIVISORS[self.distribution]
+
+    @property
+    def words(self) -> str:
+        """The distribution as a reader is told it: 'normal', 'rectangular', 'normal (k=2)'."""
+        return f"normal (k={self.k:g})" if self.k is not None else self.distribution
+
+    def standard(self, value_text: str, field: str = "") -> float:
+        """The standard uncertainty in the unit ``value_text`` is typed in [that unit, as a
+        difference: 1 K beside '20 degC' is 1]; raises InputError naming ``field`` when the
+        uncertainty is not of the value's dimension (or has no unit beside one that has)."""
+        m = _NUMBER.match(value_text)
+        if not m:
+            raise InputError(field, f"expected a value before ±, like '150 barg ± 2 bar'; got {value_text!r}")
+        if self.relative:
+            return abs(float(m.group(1))) * self.number / 100.0 / self.divisor
+        value_unit, unit = _pressure_suffix(m.group(2).strip())[0], _pressure_suffix(self.unit)[0]
+        if unit == value_unit:  # the value's own unit, whatever it is ('Nm3/h', 'MMscf/d')
+            return self.number / self.divisor
+        like = f"'± {self.number:g}{' ' + value_unit if value_unit else ''}'"
+        if not unit:
+            raise InputError(field, f"the uncertainty {self.text!r} needs a unit beside {value_text!r}, like "
+                                    f"{like}, or make it relative, like '± 0.5 %'")
+        scale, si = difference_scale(value_unit, field)
+        scale_u, si_u = difference_scale(unit, field)
+        if si != si_u:
+            raise InputError(field, f"the uncertainty {self.text!r} is {_phrase(si_u)}, not of the dimension of "
+                                    f"{value_text!r} ({_phrase(si)}): write it like {like}, or as '± 0.5 %'")
+        return self.number * scale_u / scale / self.divisor
+
+
+def _phrase(si_unit: str) -> str:
+    """A difference in ``si_unit`` in words ('a pressure difference' for Pa)."""
+    if not si_unit:
+        return "a pure number"
+    found = [d for d in DIMENSIONS.values() if d.si_unit == si_unit]
+    return next((d.phrase for d in found if d.key.endswith("_difference")), found[0].phrase if found else f"in {si_unit}")
+
+
+def split_uncertainty(text: str, field: str = "") -> tuple[str, Uncertainty | None]:
+    """``text`` as (the value as typed, its :class:`Uncertainty` or None when it has none).
+
+    ``"150 barg ± 2 bar"`` (or ``+-``), ``"20 degC ± 1 K"``, ``"2 m3 ± 0.5 %"``,
+    ``"300 K ± 0.5 K (rectangular)"``, ``"(triangular)"``, ``"(k=2)"``; ``(normal)`` is the
+    default. Raises InputError naming ``field`` for an uncertainty that is negative, not a
+    number, or has a distribution word it does not know.
+
+    >>> split_uncertainty("150 barg ± 2 bar")
+    ('150 barg', Uncertainty(text='2 bar', number=2.0, unit='bar', distribution='normal', k=None))
+    >>> split_uncertainty("20 degC +- 0.5 K (rectangular)")[1].distribution
+    'rectangular'
+    """
+    if not isinstance(text, str) or ("±" not in text and "+-" not in text):  # the usual case, at once
+        return text, None
+    sign = min((text.index(s), s) for s in _SIGN if s in text)
+    value, rest = text[:sign[0]].strip(), text[sign[0] + len(sign[1]):].strip()
+    if any(s in rest for s in _SIGN):
+        raise InputError(field, f"give one uncertainty after one ±; got {text!r}")
+    written = rest
+    distribution, k = "normal", None
+    m = _PARENTHESES.match(rest)
+    if m and m.group(2).lower() not in _UNIT_MARKS and not m.group(1).rstrip().endswith(("/", "*", "^", "(")):
+        rest, word = m.group(1).strip(), m.group(2)
+        coverage = _COVERAGE.match(word)
+        if coverage:
+            try:
+                k = float(coverage.group(1))
+            except ValueError:
+                k = math.nan
+            if not (math.isfinite(k) and k > 0):
+                raise InputError(field, f"the coverage factor in ({word}) must be a number above 0, like (k=2); "
+                                        f"got {text!r}")
+        elif word.lower() in DIVISORS:
+            distribution = word.lower()
+        else:
+            raise InputError(field, f"the uncertainty's distribution ({word}) is not one of (normal), "
+                                    f"(rectangular), (triangular) or (k=2); got {text!r}")
+    if _DECIMAL_COMMA.match(rest):
+        raise InputError(field, f"the uncertainty has a comma in its number; write a decimal point, like "
+                                f"'± 0.5 bar'; got {text!r}")
+    n = _NUMBER.match(rest)
+    if not n:
+        raise InputError(field, f"expected a number after ±, like '150 barg ± 2 bar' or '± 0.5 %'; got {text!r}")
+    number = float(n.group(1))
+    if not math.isfinite(number):
+        raise InputError(field, f"the uncertainty must be a finite number; got {text!r}")
+    if number < 0:
+        raise InputError(field, f"an uncertainty is not negative (± says both ways); got {text!r}")
+    return value, Uncertainty(written, number, n.group(2).strip(), distribution, k)
+
+
+@lru_cache(maxsize=512)
+def _difference(unit: str) -> tuple[float, str] | str:
+    """A difference of one ``unit`` in SI, and the SI unit (a temperature's °C or °F as the
+    kelvin difference it is); or what is wrong with the unit."""
+    if unit in ("", "-", "1"):
+        return 1.0, ""
+    plain = unit.replace(" ", "")
+    std = _STANDARD.match(plain)
+    if std:  # a standard volume counts moles: the rate's own reading (mol/s per unit)
+        return read_rate(f"1 {plain}", 1.0, "")[0], "mol/s"
+    u = _TEMPERATURE_SPELLINGS.get(unit, unit)
+    u = _POWER.sub(r"**\1", u.replace("³", "3").replace("²", "2"))
+    problem = _unit_problem(u, unit)
+    if problem:
+        return problem
+    if _is_offset(u):  # a difference of degrees Celsius is one of kelvins, not 274.15 K
+        u = "delta_degF" if u.strip() in ("degF", "°F", "fahrenheit") else "delta_degC"
+    try:
+        q = Q_(1.0, u)
+        for d in DIMENSIONS.values():
+            if d.key != "dimensionless" and _dimensionality(d.si_unit) == q.dimensionality:
+                return float(q.to(d.si_unit).magnitude), d.si_unit
+        base = q.to_base_units()
+    except Exception:
+        return f"{unit!r} is not a unit this program reads"
+    return float(base.magnitude), str(base.units)
+
+
+@lru_cache(maxsize=64)
+def _dimensionality(si_unit: str):
+    return Q_(1.0, si_unit).dimensionality
+
+
+def difference_scale(unit: str, field: str = "") -> tuple[float, str]:
+    """How much one ``unit`` of a difference is in SI, and that SI unit: ('bar') -> (1e5, 'Pa'),
+    ('degC') -> (1.0, 'K'), ('barg') -> (1e5, 'Pa'), ('Nm3/h') -> (0.0124, 'mol/s'); a pure
+    number is (1.0, ''). Raises InputError naming ``field`` for a unit it cannot read."""
+    found = _difference(_pressure_suffix(unit.strip())[0])
+    if isinstance(found, str):
+        raise InputError(field, found)
+    return found
+
+
 @dataclass(frozen=True)
 class Standard:
     """The standard conditions a standard-volume rate is counted at."""
@@ -371,6 +556,12 @@ def read_rate(text: str, M: float, field: str) -> tuple[float, str]:
     >>> read_rate("1500 Nm3/h", 0.016043, "rate")[1]
     'standard volume: normal m3 at 0 °C and 1.01325 bar (DIN 1343)'
     """
+    if isinstance(text, str) and len(text) <= MAX_TEXT and ("±" in text or "+-" in text):
+        value_text, uncertainty = split_uncertainty(text, field)
+        rate = read_rate(value_text, M, field)
+        if uncertainty is not None:
+            uncertainty.standard(value_text, field)
+        return rate
     m = _NUMBER.match(text) if isinstance(text, str) else None
     unit = m.group(2).replace(" ", "") if m else ""
     std = _STANDARD.match(unit)
@@ -400,15 +591,18 @@ def dimension_of(text: str, candidates: tuple[str, ...], field: str) -> tuple[st
     message; a quantity of none of them is told all the dimensions expected.
     """
     phrases = " or ".join(DIMENSIONS[c].phrase for c in candidates)
+    value = text  # the value alone says which dimension it is (its uncertainty is checked beside it)
+    if isinstance(text, str) and len(text) <= MAX_TEXT and ("±" in text or "+-" in text):
+        value = text.partition("±" if "±" in text else "+-")[0].strip()
     for key in candidates:
         try:
             return key, parse(text, key, field)
-        except InputError as exc:
-            if not (isinstance(text, str) and len(text) <= MAX_TEXT and _convert(text, key)[3]):
-                if isinstance(text, str) and not _DECIMAL_COMMA.match(text) and not _NUMBER.match(text):
-                    raise InputError(field, _no_number(phrases, key, text)) from None
+        except InputError:
+            if not (isinstance(value, str) and len(value) <= MAX_TEXT and _convert(value, key)[3]):
+                if isinstance(value, str) and not _DECIMAL_COMMA.match(value) and not _NUMBER.match(value):
+                    raise InputError(field, _no_number(phrases, key, value)) from None
                 raise  # not a question of dimension: the same for every candidate
-    raise InputError(field, f"must be {phrases}; got {text!r}")
+    raise InputError(field, f"must be {phrases}; got {value!r}")
 
 
 def to_unit(value: float, si_unit: str, unit: str) -> float:
