@@ -272,7 +272,9 @@ def pins() -> dict:
 def entry_data(solved: Attempt) -> dict:
     """The data of a record's solve entry for an attempt already made: the pins, then the
     result's JSON, or ``error_kind`` and ``error``. Needs no solve and no CoolProp: the
-    reference model's attempt serves as it comes back from its process."""
+    reference model's attempt serves as it comes back from its process. Only a worksheet
+    whose values carry uncertainties adds its first-order budget (``uncertainty``), which
+    solves the cases x ± h here, on the worksheet's model."""
     data = pins()
     if solved.result is None:
         data.update(error_kind=solved.error_kind, error=solved.error)
@@ -281,7 +283,25 @@ def entry_data(solved: Attempt) -> dict:
         mixtures = mixture_pins(solved.result)
         if mixtures:
             data["mixtures"] = mixtures
+        budget = _uncertainty_entry(solved)
+        if budget is not None:
+            data["uncertainty"] = budget
     return data
+
+
+def _uncertainty_entry(solved: Attempt) -> dict | None:
+    """The first-order budget a solve entry keeps when a value of its worksheet carries an
+    uncertainty (None when none does: such an entry is as it always was). Solves the cases
+    x ± h here; a budget that cannot be made is filed as why."""
+    from .study.uncertainty import has_uncertain_inputs
+
+    ws = solved.worksheet
+    try:
+        if ws is None or not has_uncertain_inputs(ws):
+            return None
+        return uncertainty(ws, result=solved.result).as_json(monte_carlo=False)
+    except BalanceError as exc:
+        return {"error": str(exc)}
 
 
 def mixture_pins(result) -> list[dict]:
@@ -324,6 +344,40 @@ def sweep(ws: Worksheet, vary: Sequence[str], points: int | None = None, *, toge
     return run(ws, read_varies(ws, vary, points), case_row, together=together, jobs=jobs, progress=progress)
 
 
+def uncertainty_row(source: Source) -> dict:
+    """One case of an uncertainty study (a worksheet, or its TOML text) as {"ok", "message",
+    "values", "main"}: :func:`case_row` without the main results, which the nominal case alone
+    names (a Monte Carlo run solves this thousands of times). Module-level: a process pool runs it."""
+    from .study.table import flatten
+
+    solved = attempt(source)
+    if not solved.ok:
+        return {"ok": False, "message": solved.message, "values": {}, "main": ()}
+    return {"ok": True, "message": "", "values": flatten(as_json(solved.result)), "main": ()}
+
+
+def uncertainty(ws: Worksheet, *, result: Result | None = None, columns: Sequence[str] | str | None = None,
+                coverage: float = 2.0, monte_carlo: int | None = None, seed: int | None = 1, jobs: int = 1,
+                progress=None):
+    """The uncertainty of the worksheet's results from the uncertainties its values are typed
+    with (:mod:`balance.study.uncertainty`): the first-order budget of each main result (every
+    column with ``columns="all"``, or those named), U = ``coverage`` × u_c; with ``monte_carlo`` N
+    (not None), also N samples solved (seeded by ``seed``, on ``jobs`` processes with the serial numbers).
+    ``result``: the worksheet's nominal result, when it is solved already. Each case is solved by
+    :func:`uncertainty_row`. Raises InputError for a bad uncertainty or option, SolveError when the
+    worksheet does not solve."""
+    from .study.table import flatten, main_results
+    from .study.uncertainty import propagate
+
+    if result is not None:
+        data = as_json(result)
+        nominal = {"ok": True, "message": "", "values": flatten(data), "main": tuple(main_results(data))}
+    else:
+        nominal = case_row(ws)  # the nominal case names the main results
+    return propagate(ws, uncertainty_row, columns=columns, coverage=coverage, nominal=nominal, samples=monte_carlo,
+                     seed=seed, jobs=jobs, progress=progress)
+
+
 # -- what the app draws and advises --------------------------------------------------------
 def trace(result: Result) -> Trace:
     """The P–v and T–s diagrams' lines of a result; raises BalanceError."""
@@ -349,4 +403,4 @@ def advise(ws: Worksheet) -> Advice:
 
 __all__ = ["Attempt", "Check", "FieldProblem", "Source", "advise", "as_json", "attempt", "check", "entry_data",
            "explain", "flow_trace", "fluid", "kind", "case_row", "mixture_pins", "phases", "pins", "prepare", "problems", "read",
-           "read_field", "solve", "sweep", "trace"]
+           "read_field", "solve", "sweep", "trace", "uncertainty", "uncertainty_row"]

@@ -98,6 +98,7 @@ SAMPLES = {
     "methane-piston-isothermal.toml": {PRESSURE, ABOVE_INITIAL},      # 5 bar to 60 bar at 25 °C
     "n2-accumulator-polytropic.toml": {PRESSURE, ABOVE_INITIAL},      # 90 bar to 210 bar
     "n2-buffer-into-receiver.toml": {PRESSURE, LOW_TEMPERATURE},      # settles at -10.8 °C; V-101's gas -86 °C
+    "n2-sample-cylinder-bath-uncertain.toml": {PRESSURE, ABOVE_INITIAL},  # heated rigid: 121 to 146 bar
     "steam-kettle-wet.toml": {PRESSURE, ABOVE_INITIAL},               # 1 atm heated rigid: 5.8 bar
     # steady flow: the highest stream pressure above 0.5 bar gauge; no stream below -29 °C
     "gas-letdown-preheated.toml": {PRESSURE},                         # 70 barg; the header at 17.7 °C

@@ -50,6 +50,10 @@ DEFAULT_TOLERANCE = 1e-9
 #: its energy closure judged below CLOSURE_LIMIT rather than compared.
 HISTORY_TOLERANCE = 1e-6
 CLOSURE_LIMIT = 1e-6
+#: A budget's coefficients are differences of two solves over 2h (h = u/10): a difference in the
+#: results' last digits comes back multiplied by y/(c h), some 10³ for a 1 % uncertainty, so the
+#: budget (under ``uncertainty``) is compared to this (relative), the results themselves as ever.
+UNCERTAINTY_TOLERANCE = 1e-6
 #: Numbers printed with 6 significant digits can differ by this much after rounding.
 PRINTED = 1e-5
 #: A solve's ``wording`` (absent: 1) is the edition of the words of its texts. A record worded
@@ -189,6 +193,9 @@ def compare(recorded: dict, now: dict, tolerance: float = DEFAULT_TOLERANCE) -> 
                     failing.append(Difference(path, float(a["value"]), float(b["value"]), a["unit"]))
                 return
             walk_at(path, a, b, depth, max(tolerance, HISTORY_TOLERANCE))
+            return
+        if path.startswith("uncertainty."):
+            walk_at(path, a, b, depth, max(tolerance, UNCERTAINTY_TOLERANCE))
             return
         walk_at(path, a, b, depth, tolerance)
 
@@ -359,5 +366,8 @@ def replay_entries(entries: Sequence[Entry], tolerance: float = DEFAULT_TOLERANC
         notes = (f"A transient's history (its end, extremes and rows) is compared to "
                  f"{max(tolerance, HISTORY_TOLERANCE):g} relative (an integration to rtol 1e-8), an entropy "
                  f"against 1 J/K at least; its energy closure is judged below {CLOSURE_LIMIT:g}.",)
+    if any(e.kind == SOLVE and isinstance(e.data.get("uncertainty"), dict) for e in entries):
+        notes += (f"An uncertainty budget (sensitivity coefficients by central differences) is compared to "
+                  f"{max(tolerance, UNCERTAINTY_TOLERANCE):g} relative.",)
     return ReplayReport(ok, tolerance, tuple(solves), tuple(pin_diffs), ws, ws_error, notes=notes, broken=broken,
                         entries=count)

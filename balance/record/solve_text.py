@@ -79,7 +79,50 @@ def solve_text(data: dict, inputs_seq: int | None = None) -> str:
         if pins:
             out.append(pins.replace("Solved with", "Attempted with"))
         return "\n".join(out)
-    return _TEXTS[data.get("kind", "closed")](data, basis, pins)  # the reader refuses another kind
+    text = _TEXTS[data.get("kind", "closed")](data, basis, pins)  # the reader refuses another kind
+    if isinstance(data.get("uncertainty"), dict):  # only a worksheet with uncertain values has one
+        text += "\n" + "\n".join(uncertainty_lines(data["uncertainty"]))
+    return text
+
+
+def _shown(q) -> str:
+    """A quantity {"value", "unit"} to six digits with its unit ('—' when absent)."""
+    if _q({"q": q}, "q") is None:
+        return "—"
+    unit = str(q.get("unit", ""))
+    return g(q["value"]) + (f" {unit}" if unit and unit != "dimensionless" else "")
+
+
+def uncertainty_lines(u: dict) -> list[str]:
+    """The first-order uncertainty of the results, each with its budget (largest share first),
+    in SI as the data hold it."""
+    out = ["", "Uncertainty of the results"]
+    if "error" in u:
+        return out + wrap(f"not evaluated: {u['error']}", "  ", "  ")
+    out += wrap(f"{u.get('method', '')}; coverage factor k = {g(u.get('coverage_factor'))}", "  ", "  ")
+    for r in listed(u, "results"):
+        if not isinstance(r, dict):
+            continue
+        if "u_c" in r:
+            head = f"{r.get('result')}: {_shown(r.get('value'))} ± {_shown(r.get('U'))} (k = {g(r.get('k'))}), " \
+                   f"u_c = {_shown(r.get('u_c'))}"
+        else:
+            head = f"{r.get('result')}: {_shown(r.get('value'))}; {r.get('incomplete', 'u_c not given')}"
+        out += ["", *wrap(head, "  ", "    ")]
+        rows = []
+        for b in listed(r, "budget"):
+            if not isinstance(b, dict):
+                continue
+            share = b.get("share")
+            rows.append([str(b.get("input", "")), str(b.get("value", "")), _shown(b.get("u")),
+                         str(b.get("distribution", "")), _shown(b.get("c")), _shown(b.get("contribution")),
+                         "—" if not isinstance(share, (int, float)) else f"{100 * share:.1f} %"])
+        out += table(["input", "value", "u", "distribution", "c (sensitivity)", "c·u", "share"], rows,
+                     "llrlrrr", "    ")
+        for b in listed(r, "budget"):
+            if isinstance(b, dict) and b.get("failed"):
+                out += wrap(f"{b.get('input')}: {b['failed']}", "    - ", "      ")
+    return out
 
 
 def _closed_text(data: dict, basis: str, pins: str) -> str:
