@@ -76,12 +76,15 @@ def cmd_solve(args) -> int:
         if not args.json:
             return EXIT_OK
     procedure, house = _house(result)
+    uncertain = _uncertainty(args, result)
     if args.json:
         out = api.as_json(result)
         if procedure is not None:
             out["house"] = {"procedure": procedure.id, "version": procedure.version,
                             "findings": [{"rule": f.rule, "kind": f.kind, "outcome": f.outcome, "message": f.message,
                                           "justification": f.justification} for f in house]}
+        if uncertain is not None:
+            out["uncertainty"] = uncertain.as_json()
         print(json.dumps(out, indent=2, ensure_ascii=False))
     else:
         from .render import result_renderable
@@ -95,7 +98,59 @@ def cmd_solve(args) -> int:
             from .panels import house_panel
 
             _console().print(house_panel(house, procedure))
+        if uncertain is not None:
+            from .render_uncertainty import uncertainty_renderable
+
+            _console().print(uncertainty_renderable(uncertain))
     return EXIT_HOUSE if any(f.blocks for f in house) else EXIT_OK
+
+
+def _uncertainty(args, result):
+    """The uncertainty of the solved worksheet's results (None when no value carries one; the
+    options that need one are then said to be unused). ``demo --print`` has none of the options."""
+    from balance import api
+    from balance.study.uncertainty import has_uncertain_inputs
+
+    ws = result.problem.worksheet
+    asked = [f for f, v in (("--coverage", getattr(args, "coverage", None)), ("--monte-carlo", getattr(
+        args, "monte_carlo", None)), ("--result", getattr(args, "result", None))) if v is not None]
+    if not has_uncertain_inputs(ws):
+        if asked:
+            print(f"joulebook: {', '.join(asked)}: no value of this worksheet carries an uncertainty (like "
+                  "P = \"150 barg ± 2 bar\"): nothing to propagate", file=sys.stderr)
+        return None
+    results = getattr(args, "result", None)
+    columns = "all" if results and "all" in results else results
+    samples = getattr(args, "monte_carlo", None)
+    coverage = getattr(args, "coverage", None)
+    progress = _Progress() if samples and sys.stderr.isatty() else None
+    try:
+        return api.uncertainty(ws, result=result, columns=columns, coverage=2.0 if coverage is None else coverage,
+                               monte_carlo=samples, seed=getattr(args, "seed", 1),
+                               jobs=getattr(args, "jobs", 1), progress=progress.tick if progress else None)
+    finally:
+        if progress:
+            progress.stop()
+
+
+class _Progress:
+    """A Monte Carlo run's progress on stderr."""
+
+    def __init__(self):
+        from rich.progress import Progress
+
+        self.bar = Progress(transient=True)
+        self.task = None
+
+    def tick(self, done: int, total: int) -> None:
+        if self.task is None:
+            self.bar.start()
+            self.task = self.bar.add_task("solving samples", total=total)
+        self.bar.update(self.task, completed=done)
+
+    def stop(self) -> None:
+        if self.task is not None:
+            self.bar.stop()
 
 
 def _house(result):
@@ -391,6 +446,15 @@ def build_parser():
     p.add_argument("--units", **solved_units)
     p.add_argument("--csv", metavar="FILE", help="a transient's whole history as CSV (units in the header)")
     p.add_argument("--plot", action="store_true", help="draw a transient's temperatures and pressure against time")
+    p.add_argument("--coverage", type=float, metavar="K", help="the coverage factor of the expanded uncertainty "
+                   "U = k u_c of results whose inputs carry uncertainties (default 2)")
+    p.add_argument("--result", action="append", metavar="COLUMN", help="the uncertainty of this result (a column "
+                   "of `joulebook sweep --csv`; 'all': every one) in place of the main results; again for more")
+    p.add_argument("--monte-carlo", type=int, metavar="N", help="also propagate the inputs' distributions by N "
+                   "samples, each solved (JCGM 101)")
+    p.add_argument("--seed", type=int, default=1, metavar="S", help="the Monte Carlo generator's seed (default 1)")
+    p.add_argument("--jobs", type=int, default=1, metavar="N", help="solve the Monte Carlo samples on N processes "
+                   "(the same numbers)")
     p.set_defaults(func=cmd_solve)
 
     p = sub.add_parser("check", help="validate a worksheet and count degrees of freedom (no solve)")
