@@ -36,6 +36,7 @@ HEADLESS = [
     "balance.adequacy",
     "balance.diagrams",
     "balance.record",
+    "balance.record.recheck",
     "balance.procedures",
     "balance.procedures.practice",
     "tui.cli",

@@ -3,12 +3,14 @@
 Subcommands (the README's "The record" lists them with examples):
 
 import, show, verify, sign, comment, resolve, diff, replay, export,
-worksheet, update.
+worksheet, update, recheck.
 
 Exit codes as for the other commands: 0 done (verified, reproduced,
 solved), 1 a check failed (broken chain, invalid signature, results that do
 not reproduce, a solve that failed and was recorded as such), 2 bad input
-or an unreadable record (the message names the file and line).
+or an unreadable record (the message names the file and line). ``recheck``
+of an archive tells two more apart: 4 results changed, 5 a re-solve failed
+(:data:`RECHECK_EXIT`).
 """
 
 from __future__ import annotations
@@ -16,6 +18,13 @@ from __future__ import annotations
 import sys
 
 EXIT_OK, EXIT_FAILED, EXIT_INPUT = 0, 1, 2
+#: ``recheck``: the records are intact but the running joulebook computes otherwise (3 is taken by
+#: `joulebook solve`: a house procedure's rule stops the result)
+EXIT_CHANGED, EXIT_RESOLVE = 4, 5
+#: ``recheck``'s exit code for the outcome that wins over the others found (balance.record.recheck.OUTCOMES)
+RECHECK_EXIT = {"chain broken": EXIT_FAILED, "unreadable": EXIT_INPUT, "signature invalid": EXIT_FAILED,
+                "fails verification": EXIT_FAILED, "re-solve failed": EXIT_RESOLVE,
+                "results changed": EXIT_CHANGED, "not signed": EXIT_OK, "reproduced": EXIT_OK}
 #: balance.record.DEFAULT_TOLERANCE, repeated so that building the parser imports nothing (a test checks)
 DEFAULT_TOLERANCE = 1e-9
 
@@ -24,6 +33,12 @@ def _console():
     from rich.console import Console
 
     return Console(highlight=False)
+
+
+def _wide_console():
+    from rich.console import Console
+
+    return Console(highlight=False, width=10_000)
 
 
 def _load(path: str):
@@ -296,7 +311,112 @@ def cmd_update(args) -> int:
     return _solve_outcome(e)
 
 
+@_pipe_safe
+def cmd_recheck(args) -> int:
+    from balance.errors import InputError
+    from balance.record.recheck import as_csv, counts, find_records, recheck_all, worst
+    from balance.record.signing import check_allowed_signers
+
+    allowed = _allowed(args)
+    if allowed is not None:
+        allowed = check_allowed_signers(allowed)  # once, before the run, naming --allowed-signers
+    if args.csv:
+        _check_csv(args.csv)
+    paths = find_records(args.paths)
+    if not paths:
+        raise InputError(", ".join(args.paths), "holds no records (*.jbk)")
+    with _progress(len(paths)) as tell:
+        rows = recheck_all(paths, jobs=args.jobs, scheduler=args.scheduler, allowed_signers=allowed,
+                           tolerance=args.tolerance, progress=tell)
+    # in a pipe or a log, one line a row however long (a terminal wraps the table to fit)
+    (_console() if sys.stdout.isatty() else _wide_console()).print(_recheck_table(rows))
+    found = counts(rows)
+    print(f"{len(rows)} record{'s' if len(rows) != 1 else ''}: " + ", ".join(f"{n} {o}" for o, n in found.items()))
+    unchecked = sum(r.signatures == "not checked" for r in rows)
+    if unchecked:
+        print(f"signatures were not checked in {unchecked} signed record{'s' if unchecked != 1 else ''}: "
+              "give --allowed-signers FILE to check them")
+    if args.csv:
+        from balance.record.store import write_output
+
+        write_output(args.csv, as_csv(rows).encode("utf-8"))
+        print(f"{args.csv}: the table as CSV, {len(rows)} rows")
+    code = RECHECK_EXIT[worst(rows)]
+    if code != EXIT_OK:
+        bad = sum(RECHECK_EXIT[r.outcome] != EXIT_OK for r in rows)
+        print(f"joulebook: {bad} of {len(rows)} records failed the re-check; exit {code}: {worst(rows)} "
+              "(README, 'Re-checking an archive')", file=sys.stderr)
+    return code
+
+
+def _check_csv(path: str) -> None:
+    """Refuse a CSV file that cannot be written before a long run, not after it."""
+    from pathlib import Path
+
+    from balance.errors import InputError
+
+    p = Path(path)
+    if p.is_dir():
+        raise InputError("--csv", f"{path} is a folder; give a file name")
+    if not p.parent.is_dir():
+        raise InputError("--csv", f"{path}: its folder does not exist")
+
+
+class _progress:
+    """A progress line on standard error while records are re-checked, when it is a terminal
+    (nothing in a pipe or a log); used as ``with _progress(n) as tell``."""
+
+    def __init__(self, total: int):
+        self.total, self.bar = total, None
+
+    def __enter__(self):
+        if not sys.stderr.isatty():
+            return None
+        from rich.console import Console
+        from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeRemainingColumn
+
+        self.bar = Progress(TextColumn("re-checking"), BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
+                            console=Console(stderr=True), transient=True)
+        task = self.bar.add_task("recheck", total=self.total)
+        self.bar.start()
+        return lambda done, total: self.bar.update(task, completed=done)
+
+    def __exit__(self, *exc) -> None:
+        if self.bar is not None:
+            self.bar.stop()
+
+
+def _recheck_table(rows):
+    from rich.table import Table
+    from rich.text import Text
+
+    from balance.record.recheck import COLUMNS, NOT_SIGNED, REPRODUCED
+
+    table = Table(box=None, header_style="bold", pad_edge=False)
+    for name in COLUMNS:  # a path and a detail fold in a narrow terminal; the short columns never wrap
+        wide = name in ("path", "detail")
+        table.add_column(name, overflow="fold" if wide else "ellipsis", no_wrap=not wide, ratio=1 if wide else None,
+                         justify="right" if name == "revision" else "left")
+    for r in rows:
+        style = "green" if r.outcome == REPRODUCED else "yellow" if r.outcome == NOT_SIGNED else "red"
+        # Text, not markup: a path or a detail may hold [brackets]
+        table.add_row(*(Text(c, style=style if i == 1 else "") for i, c in enumerate(r.cells())))
+    return table
+
+
 # -- the parser ---------------------------------------------------------------------------
+def _jobs(text: str) -> int:
+    import argparse
+
+    try:
+        value = int(text)
+    except ValueError:
+        value = 0
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"expected a whole number of processes >= 1, like 4; got {text!r}")
+    return value
+
+
 def _tolerance(text: str) -> float:
     import argparse
     import math
@@ -372,6 +492,19 @@ def add_parser(subparsers) -> None:
     p.add_argument("--tolerance", type=_tolerance, default=DEFAULT_TOLERANCE,
                    help=f"relative tolerance (default {DEFAULT_TOLERANCE:g})")
     p.set_defaults(func=cmd_replay)
+
+    p = sub.add_parser("recheck", help="verify and replay every record under some folders: one row each",
+                       description="Find every record (*.jbk) under the folders, verify it and replay it, and "
+                                   "print one row per record with its outcome (README: 'Re-checking an archive').")
+    p.add_argument("paths", nargs="+", metavar="DIR", help="a folder searched recursively for *.jbk, or a record file")
+    p.add_argument("--jobs", type=_jobs, default=1, metavar="N", help="re-check in N processes here (default 1)")
+    p.add_argument("--scheduler", metavar="ADDRESS", help="re-check on a Dask cluster, like tcp://host:8786 "
+                                                          "(needs joulebook[cluster])")
+    p.add_argument("--csv", metavar="FILE", help="also write the table as CSV")
+    p.add_argument("--allowed-signers", **allowed)
+    p.add_argument("--tolerance", type=_tolerance, default=DEFAULT_TOLERANCE,
+                   help=f"relative tolerance of the replay (default {DEFAULT_TOLERANCE:g})")
+    p.set_defaults(func=cmd_recheck)
 
     p = sub.add_parser("export", help="a printable calculation report (Markdown or standalone HTML)")
     p.add_argument("record")
