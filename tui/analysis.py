@@ -599,6 +599,12 @@ def solve(source: Worksheet | dict) -> api.Attempt:
     return api.attempt(source.to_dict() if isinstance(source, Worksheet) else source)
 
 
+def uncertainty(ws: Worksheet, result):
+    """The first-order uncertainty of a solved worksheet's main results (:func:`balance.api.uncertainty`);
+    module-level so that the reference model's process can run it."""
+    return api.uncertainty(ws, result=result)
+
+
 def sweep(ws: Worksheet, vary: str, points: int | None):
     """The worksheet solved over one ``PATH=VALUES`` (:func:`balance.api.sweep`); module-level so
     that the reference model's process can run it. Raises InputError for a bad path or range."""

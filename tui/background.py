@@ -44,6 +44,8 @@ class Outcome:
     data: dict | None = None
     """the solve entry's data (:func:`balance.api.entry_data`): what the record files and the
     procedure's checks and the practice mode read"""
+    uncertainty: object | None = None
+    """where a value carries an uncertainty: the results' budgets (balance.study.uncertainty.Propagation)"""
 
 
 class Checked(Message):
@@ -223,15 +225,25 @@ class BackgroundWork:
         except offload.OffloadError as exc:  # not solved at all: nothing to record
             self.post_message(Solved(Outcome(ws, error=str(exc), seconds=time.perf_counter() - t0)))
             return
-        data = house = None
-        if self.session.procedure is not None:
-            from balance.api import entry_data
+        from balance.api import entry_data
 
-            data = entry_data(solved)
+        house = None
+        try:  # where the model runs: a budget of the uncertainty solves the worksheet again
+            data = offload.call(ws.fluid.model, entry_data, solved)
+        except (BalanceError, offload.OffloadError) as exc:
+            data = None
+            self.notify(f"the solve's record entry not worked out: {exc}", severity="error", markup=False)
+        if self.session.procedure is not None and data is not None:
             house = tuple(self.session.findings(data, ws))
+        uncertainty = None
+        if solved.result is not None and data is not None and "uncertainty" in data:
+            try:
+                uncertainty = offload.call(ws.fluid.model, analysis.uncertainty, ws, solved.result)
+            except (BalanceError, offload.OffloadError) as exc:
+                self.notify(f"uncertainty not worked out: {exc}", severity="warning", markup=False)
         self.post_message(Solved(Outcome(ws, solved.result, solved.message, seconds=time.perf_counter() - t0,
-                                         house=house or (), data=data)))
-        self._record_solve(solved)  # the record files this very solve
+                                         house=house or (), data=data, uncertainty=uncertainty)))
+        self._record_solve(solved, data)  # the record files this very solve
         if solved.result is None:
             return
         try:
@@ -241,11 +253,12 @@ class BackgroundWork:
             drawn = None
         self.post_message(Traced(ws, drawn))
 
-    def _record_solve(self, solved=None) -> None:
+    def _record_solve(self, solved=None, data: dict | None = None) -> None:
         """Append the solve to the record, from a worker: ``solved`` as it is (the one
-        shown), or without it the record's due solve, worked out by :meth:`Session.append_solve`."""
+        shown, with its entry's ``data`` when worked out), or without it the record's due
+        solve, worked out by :meth:`Session.append_solve`."""
         try:
-            entry = self.session.append_solve(solved)
+            entry = self.session.append_solve(solved, data)
         except BalanceError as exc:
             self.post_message(Recorded(None, str(exc)))
             return

@@ -26,25 +26,28 @@ def _per(y_unit: str, x_unit: str) -> str:
     return f"{whole(y_unit) if y_unit else '1'}/{whole(x_unit)}"
 
 
-def budget_table(b) -> Table:
-    """One result's budget (:class:`balance.study.uncertainty.Budget`), largest share first."""
+def budget_table(b, compact: bool = False) -> Table:
+    """One result's budget (:class:`balance.study.uncertainty.Budget`), largest share first;
+    ``compact`` (the app's narrow pane): the input by its path, u, c·u and the share only."""
     if b.u_c is not None:
         title = f"{b.column}: {_g(b.value, b.unit)} ± {_g(b.U, b.unit)} (k = {b.k:g}), u_c = {_g(b.u_c, b.unit)}"
     else:
         title = f"{b.column}: {_g(b.value, b.unit)}; u_c not given: an input's cases did not solve"
     t = Table(title=title, box=box.SIMPLE_HEAD, title_justify="left")
     t.add_column("input, as typed", ratio=1)
-    for name in ("u", "c (sensitivity)", "c·u", "share"):
+    names = ("u", "c·u", "share") if compact else ("u", "c (sensitivity)", "c·u", "share")
+    for name in names:
         t.add_column(name, justify="right", no_wrap=True)
     for li in b.lines:
         inp = li.input
         typed = Text(inp.path)
         typed.append(f"\n{inp.value_text} ± {inp.uncertainty.text}", style="dim")
         if li.failed:
-            t.add_row(typed, _g(inp.u, inp.si_unit), Text(f"not evaluated: {li.failed}", style="red"), "", "")
+            t.add_row(typed, _g(inp.u, inp.si_unit), Text(f"not evaluated: {li.failed}", style="red"),
+                      *([""] * (len(names) - 2)))
             continue
-        t.add_row(typed, _g(inp.u, inp.si_unit), _g(li.c, _per(b.unit, inp.si_unit)),
-                  _g(li.contribution, b.unit), f"{100 * li.share:.1f} %")
+        c = () if compact else (_g(li.c, _per(b.unit, inp.si_unit)),)
+        t.add_row(typed, _g(inp.u, inp.si_unit), *c, _g(li.contribution, b.unit), f"{100 * li.share:.1f} %")
     return t
 
 
@@ -64,12 +67,13 @@ def monte_carlo_table(run) -> Table:
     return t
 
 
-def uncertainty_renderable(p) -> Group:
-    """Every result's budget, then the Monte Carlo run (:class:`balance.study.uncertainty.Propagation`)."""
+def uncertainty_renderable(p, compact: bool = False) -> Group:
+    """Every result's budget, then the Monte Carlo run (:class:`balance.study.uncertainty.Propagation`);
+    ``compact``: narrower budgets, for the app."""
     parts = [Text("Uncertainty of the results: law of propagation of uncertainty, first order (JCGM 100:2008 "
                   "5.1.2), inputs uncorrelated; sensitivity coefficients by central differences, step u/10; SI",
                   style="bold")]
-    parts += [budget_table(b) for b in p.budgets]
+    parts += [budget_table(b, compact) for b in p.budgets]
     if p.monte_carlo is not None:
         parts.append(monte_carlo_table(p.monte_carlo))
     return Group(*parts)

@@ -400,7 +400,7 @@ class Session:
         with self._lock:
             return self.record.sections() if self.record is not None and self.record.needs_solve() else None
 
-    def append_solve(self, solved: api.Attempt | None = None):
+    def append_solve(self, solved: api.Attempt | None = None, data: dict | None = None):
         """Append a solve entry when the record's inputs changed since its last one.
 
         Call :meth:`commit` first (on the UI thread). ``solved`` is a solve already made
@@ -408,7 +408,9 @@ class Session:
         it, only while the record holds what it solved (a newer commit wants its own solve).
         Without it, the sections due are solved here, in the reference-model process when
         they use that model, with the session not held meanwhile (seconds, for that model:
-        the app calls this from a worker). Returns the entry, or None.
+        the app calls this from a worker). ``data``: the entry's data, when the caller has it
+        (:func:`balance.api.entry_data` of ``solved``, worked out where the model runs: an
+        uncertainty budget solves the worksheet again). Returns the entry, or None.
         """
         if solved is None:
             sections = self.solve_due()
@@ -422,7 +424,8 @@ class Session:
             if (sections is None or solved.worksheet is None
                     or of_its_kind(api.read(sections)) != of_its_kind(solved.worksheet)):
                 return None
-            entry = self.record.append_solve(author=self.author, data=api.entry_data(solved))
+            entry = self.record.append_solve(author=self.author, data=data if data is not None
+                                             else api.entry_data(solved))
             self.save_draft()
             return entry
 

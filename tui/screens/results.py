@@ -166,6 +166,12 @@ on pressure equipment without the cautions.
                 from ..panels import house_panel
 
                 shown = Group(house_panel(outcome.house, app.session.procedure), shown)
+            if outcome.uncertainty is not None:
+                from rich.console import Group
+
+                from ..render_uncertainty import uncertainty_renderable
+
+                shown = Group(shown, uncertainty_renderable(outcome.uncertainty, compact=True))
             balance.update(shown)
             kind = outcome.result.problem.worksheet.system.kind
             self._show_diagram_tabs(kind if planes(outcome.result) else None)
