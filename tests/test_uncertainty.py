@@ -328,6 +328,16 @@ def test_the_record_keeps_the_budget_and_replay_reproduces_it(tmp_path):
     assert any("uncertainty budget" in line for line in report.lines())
 
 
+def test_the_report_exported_from_the_record_shows_the_budget(tmp_path):
+    from balance.record import Record
+    from balance.record.export import export_markdown
+
+    rec = Record.create(tmp_path / "calc.jbk", author="a.engineer", worksheet=sample(SAMPLE))
+    report = export_markdown(rec)
+    assert "### Uncertainty of the results" in report and "(k = 2), u_c = " in report
+    assert re.search(r"initial 'filled'\.T +18 degC +0\.866025 K +rectangular", report)
+
+
 def test_a_worksheet_without_uncertainties_files_no_budget():
     data = api.entry_data(api.attempt(sample("co2-cylinder-hot-store.toml")))
     assert "uncertainty" not in data

@@ -93,6 +93,10 @@ def blocks(record, verification) -> list[Block]:
         d = solve.data
         later = [e.seq for e in entries if e.section and e.seq > solve.seq]
         out += _RESULTS[d.get("kind", "closed")](d, solve.seq, revs[solve.seq - 1], later)
+        if isinstance(d.get("uncertainty"), dict):  # values typed with their uncertainties: the budgets
+            from .solve_text import uncertainty_lines
+
+            out += [("h3", "Uncertainty of the results"), ("pre", uncertainty_lines(d["uncertainty"])[2:])]
 
     out.append(("h2", "Sign-off"))
     if verification.signoffs:
