@@ -9,21 +9,14 @@ from rich.console import Group
 from rich.table import Table
 from rich.text import Text
 
+from balance.study.uncertainty import coefficient_unit
+
 
 def _g(x, unit: str = "") -> str:
     if x is None:
         return "—"
     s = f"{x:.6g}"
     return s + (f" {unit}" if unit else "")
-
-
-def _per(y_unit: str, x_unit: str) -> str:
-    if not x_unit:
-        return y_unit
-    def whole(unit: str) -> str:
-        return f"({unit})" if "/" in unit or "*" in unit.replace("**", "") else unit
-
-    return f"{whole(y_unit) if y_unit else '1'}/{whole(x_unit)}"
 
 
 def budget_table(b, compact: bool = False) -> Table:
@@ -46,7 +39,7 @@ def budget_table(b, compact: bool = False) -> Table:
             t.add_row(typed, _g(inp.u, inp.si_unit), Text(f"not evaluated: {li.failed}", style="red"),
                       *([""] * (len(names) - 2)))
             continue
-        c = () if compact else (_g(li.c, _per(b.unit, inp.si_unit)),)
+        c = () if compact else (_g(li.c, coefficient_unit(b.unit, inp.si_unit)),)
         t.add_row(typed, _g(inp.u, inp.si_unit), *c, _g(li.contribution, b.unit), f"{100 * li.share:.1f} %")
     return t
 

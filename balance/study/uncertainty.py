@@ -174,7 +174,7 @@ def _unit_of(column: str) -> str:
     return m.group(2) if m else ""
 
 
-def _per(y_unit: str, x_unit: str) -> str:
+def coefficient_unit(y_unit: str, x_unit: str) -> str:
     """The unit of a coefficient ∂y/∂x."""
     if not x_unit:
         return y_unit
@@ -232,7 +232,7 @@ class Budget:
             if li.failed:
                 row["failed"] = li.failed
             else:
-                row.update(c=_quantity(li.c, _per(self.unit, li.input.si_unit)) if li.c is not None else None,
+                row.update(c=_quantity(li.c, coefficient_unit(self.unit, li.input.si_unit)) if li.c is not None else None,
                            contribution=_quantity(li.contribution, self.unit), share=li.share)
             lines.append({k: v for k, v in row.items() if v is not None})
         out = {"result": self.column, "value": _quantity(self.value, self.unit), "budget": lines}
