@@ -217,3 +217,20 @@ def test_a_blend_of_pure_fluids_on_the_reference_model_is_refused():
     with pytest.raises(InputError) as caught:
         api.solve(_blend("reference"))
     assert "M-1" in caught.value.field and "do not add" in caught.value.message
+
+
+def test_a_reference_mixture_stream_shows_coolprop_s_dew_point():
+    """The letdown on the reference model: each stream's dew point is CoolProp HEOS's own
+    (its P-Q flash at Q = 1 with the same mole fractions: the source)."""
+    import CoolProp.CoolProp as CP
+
+    from tui.cli import sample_path
+
+    text = open(sample_path("ng-fuel-letdown-dewpoint.toml"), encoding="utf-8").read()
+    data = api.as_json(api.solve(text.replace('model = "peng-robinson"', 'model = "reference"')))
+    sp = bundled_mixture("hpp-natural-gas")
+    heos = CP.AbstractState("HEOS", "&".join(lookup(i).coolprop for i, _ in sp.composition))
+    heos.set_mole_fractions([y for _, y in sp.composition])
+    P = data["streams"]["header"]["P"]["value"]
+    heos.update(CP.PQ_INPUTS, P, 1.0)
+    assert data["streams"]["header"]["dew_point"]["value"] == pytest.approx(heos.T(), rel=1e-9)

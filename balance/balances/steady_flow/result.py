@@ -71,7 +71,7 @@ class Result:
     cautions: tuple[Caution, ...]
     edges: dict = field(default_factory=dict)
     """stream -> (bubble point, dew point) temperatures [K] at its pressure, each None where the
-    search found none: for the streams of a cubic mixture (:mod:`balance.models.cubic.phases`)"""
+    search found none: for the streams of a mixture on a cubic or the reference model"""
 
     def as_json(self) -> dict:
         """Everything in the result; quantities as {"value", "unit"} (SI)."""
@@ -151,15 +151,13 @@ def result_of(problem: Problem, solved: Solved) -> Result:
 
 
 def _edges(flows: dict[str, Flow]) -> dict[str, tuple[float | None, float | None]]:
-    """The bubble and dew point temperatures [K] at each cubic-mixture stream's pressure."""
+    """The bubble and dew point temperatures [K] at each mixture stream's pressure, where its model
+    gives them (a cubic's or the reference model's mixture: ``dew_bubble_T``)."""
     out = {}
     for name, f in flows.items():
-        if getattr(f.model, "mixing", None) is None:
-            continue
-        from ...models.cubic.phases import envelope_at_P
-
-        lower, upper = envelope_at_P(f.model.mixing, f.point.P, f.model.z)
-        out[name] = (None if lower is None else float(lower.value), None if upper is None else float(upper.value))
+        edges = getattr(f.model, "dew_bubble_T", None)
+        if edges is not None:
+            out[name] = edges(f.point.P)
     return out
 
 

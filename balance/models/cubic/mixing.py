@@ -270,6 +270,14 @@ class CubicMixture(Cubic):
                                     f"({describe_envelope_T(self, T)}). This version gives single-phase mixture "
                                     "states only: fix the state outside the phase envelope")
 
+    def dew_bubble_T(self, P: float) -> tuple[float | None, float | None]:
+        """(bubble, dew) temperatures [K] at P [Pa] (:func:`.phases.envelope_at_P`), None where the
+        search finds none: what a stream table shows."""
+        from .phases import envelope_at_P
+
+        lower, upper = envelope_at_P(self.mixing, P, self.z)
+        return (None if lower is None else float(lower.value), None if upper is None else float(upper.value))
+
     def states_TP(self, T, P) -> dict[str, np.ndarray]:
         """Every property of the one-phase state at each (T, P), and ``stable`` (bool array):
         False where the tangent-plane test finds the mixture splits (its properties are then not

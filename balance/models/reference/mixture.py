@@ -565,6 +565,12 @@ class ReferenceMixture(CoolPropState, PropertyModel):
         return AS.T(), AS.rhomolar()
 
     # -- the two-phase region ---------------------------------------------------------
+    def dew_bubble_T(self, P: float) -> tuple[float | None, float | None]:
+        """(bubble, dew) temperatures [K] at P [Pa], None where neither CoolProp's flash nor its
+        envelope gives one: what a stream table shows (as :meth:`CubicMixture.dew_bubble_T`)."""
+        dew, bubble = self._dew_bubble_T(P)
+        return bubble, dew
+
     def _dew_bubble_T(self, P: float) -> tuple[float | None, float | None]:
         """Dew and bubble temperatures [K] at P [Pa] (CoolProp's PQ flash, else its envelope; None: neither)."""
         out = []
