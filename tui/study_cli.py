@@ -83,9 +83,10 @@ class _progress:
     """A progress bar on stderr, shown once a sweep has cases enough to wait for."""
 
     def __init__(self):
+        from rich.console import Console
         from rich.progress import Progress
 
-        self.bar = Progress(transient=True, console=None)
+        self.bar = Progress(transient=True, console=Console(stderr=True))  # stdout keeps the table
         self.task = None
 
     def tick(self, done: int, total: int) -> None:
