@@ -13,7 +13,7 @@ from typing import Sequence
 from ..errors import InputError
 from ..procedures import Procedure, blocking, escalated_roles, find_or_none, findings, from_pin
 from ..worksheet import Worksheet
-from .format import OPENING, SIGN_OFF, SOLVE, Entry
+from .format import OPENING, SOLVE, Entry
 from .replay import fold
 
 
@@ -133,11 +133,9 @@ def house_report(entries: Sequence[Entry]) -> list[str]:
 
 def _signed_now(entries: Sequence[Entry]) -> dict[str, int]:
     """The roles signed since the calculation last changed, and the entry of each."""
-    from .review import revisions
+    from .review import signed_now
 
-    revs = revisions(entries)
-    current = revs[-1] if revs else 1
-    return {e.data.get("role"): e.seq for e, r in zip(entries, revs) if e.kind == SIGN_OFF and r == current}
+    return {role: e.seq for role, e in signed_now(entries).items()}
 
 
 def _tally(found) -> str:

@@ -20,7 +20,7 @@ from .format import (COMMENT, CONTENT_KINDS, FORMAT, GENESIS, LIST_SECTIONS, MAG
 from .layout import MAX_TEXT, value_problem
 from .replay import DEFAULT_TOLERANCE, ReplayReport, fold, replay_entries, sections_of, solve_data, worksheet_of
 from .review import (comment_problem, current_revision, open_comments, resolution_problem, roles_of,
-                     signoff_problem)
+                     signed_now, signoff_problem)
 from .signing import NAMESPACE, ROLES, check_allowed_signers, message
 from .signing import sign as ssh_sign
 from .text import render
@@ -124,12 +124,7 @@ class Record:
     def next_role(self) -> str:
         """The first role not yet signed since the calculation last changed (the last role
         once all are)."""
-        signed = set()
-        for e in reversed(self._entries):
-            if e.kind == SIGN_OFF:
-                signed.add(e.data.get("role"))
-            elif e.kind not in (COMMENT, RESOLUTION):
-                break
+        signed = signed_now(self._entries)
         roles = self.roles
         return next((r for r in roles if r not in signed), roles[-1] if roles else "")
 

@@ -52,6 +52,14 @@ def current_revision(entries: Sequence[Entry]) -> int:
     return revs[-1] if revs else 1
 
 
+def signed_now(entries: Sequence[Entry]) -> dict[str, Entry]:
+    """The sign-offs of the current revision, by role: what the next sign-off, the house rules
+    and the record's next role all read."""
+    revs = revisions(entries)
+    rev = revs[-1] if revs else 1
+    return {e.data.get("role"): e for e, r in zip(entries, revs) if e.kind == SIGN_OFF and r == rev}
+
+
 def roles_of(entries: Sequence[Entry]) -> tuple[str, ...]:
     opening = entries[0] if entries and entries[0].kind == OPENING else None
     return tuple(opening.data["roles"]) if opening else ROLES
@@ -88,9 +96,8 @@ def signoff_problem(entries: Sequence[Entry], role: str, signer: str) -> str | N
     roles = roles_of(entries)
     if role not in roles:
         return f"unknown role {role!r}; this record's roles are {', '.join(roles)}"
-    revs = revisions(entries)
-    rev = revs[-1] if revs else 1
-    signed = {e.data["role"]: e for e, r in zip(entries, revs) if e.kind == SIGN_OFF and r == rev}
+    rev = current_revision(entries)
+    signed = signed_now(entries)
     if role in signed:
         return f"revision {rev} is already signed as {role} (entry {signed[role].seq})"
     missing = [r for r in roles[:roles.index(role)] if r not in signed]
