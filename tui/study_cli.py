@@ -9,12 +9,10 @@ Exit codes: 0 every case solved, 1 some did not (their rows say why), 2 bad inpu
 
 from __future__ import annotations
 
-import re
 import sys
 from pathlib import Path
 
 EXIT_OK, EXIT_FAILED, EXIT_INPUT = 0, 1, 2
-_NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)")
 
 
 def add_parser(sub) -> None:
@@ -33,11 +31,6 @@ def add_parser(sub) -> None:
                    "pip install 'joulebook[plot]')")
     p.add_argument("--jobs", type=int, default=1, metavar="N", help="solve on N processes (the same rows)")
     p.set_defaults(func=cmd_sweep)
-
-
-def _number(text: str) -> float | None:
-    m = _NUMBER.match(text)
-    return float(m.group(1)) if m else None
 
 
 def cmd_sweep(args) -> int:
@@ -69,8 +62,12 @@ def cmd_sweep(args) -> int:
     console = Console()
     console.print(sweep_table(result))
     if args.plot is not None:
+        from .sweep_plot import sweep_plot
+
         print(sweep_plot(result, column))
     if args.plot_file:
+        from .sweep_plot import draw_file
+
         draw_file(result, column, args.plot_file)
         print(f"drawn to {args.plot_file}")
     failed = result.failed()
@@ -121,87 +118,3 @@ def sweep_table(result, limit: int = 200):
     if len(result.rows) > limit:
         t.caption = f"the first {limit} of {len(result.rows)} cases; --csv FILE has them all"
     return t
-
-
-def _x_label(result) -> str:
-    """The first field's path, with the unit its values were typed in."""
-    m = [_NUMBER.match(r.inputs[0]) for r in result.rows]
-    units = {r.inputs[0][k.end():].strip() for r, k in zip(result.rows, m) if k}
-    return f"{result.varies[0].path} [{units.pop()}]" if len(units) == 1 and "" not in units else str(result.varies[0].path)
-
-
-def _xs(result) -> tuple[list[float], list[str] | None]:
-    """The first field's values as numbers (a list of words, as 1, 2, 3 with their labels)."""
-    texts = [r.inputs[0] for r in result.rows]
-    numbers = [_number(t) for t in texts]
-    if all(n is not None for n in numbers):
-        return numbers, None
-    labels = list(dict.fromkeys(texts))
-    return [float(labels.index(t) + 1) for t in texts], labels
-
-
-def _lines(result, column: str):
-    """(label, xs, ys) per value of the second field varied (one line on a grid), else one line."""
-    xs, labels = _xs(result)
-    if len(result.varies) < 2:
-        ys = [r.values.get(column) for r in result.rows]
-        return [("", xs, ys)], labels
-    out = []
-    for value in dict.fromkeys(r.inputs[1] for r in result.rows):
-        pick = [k for k, r in enumerate(result.rows) if r.inputs[1] == value]
-        out.append((f"{result.varies[1].path} = {value}", [xs[k] for k in pick],
-                    [result.rows[k].values.get(column) for k in pick]))
-    return out, labels
-
-
-def sweep_plot(result, column: str, width: int = 80, height: int = 18) -> str:
-    """``column`` against the first field varied, drawn in text (plotext); unsolved cases left out."""
-    import plotext as plt
-
-    lines, labels = _lines(result, column)
-    plt.clear_figure()
-    plt.plotsize(width, height)
-    plt.theme("clear")
-    for label, xs, ys in lines:
-        pts = [(x, y) for x, y in zip(xs, ys) if y is not None]
-        if pts:
-            plt.plot([p[0] for p in pts], [p[1] for p in pts], label=label or None, marker="dot")
-    if labels:
-        plt.xticks(list(range(1, len(labels) + 1)), labels)
-    plt.title(f"{column} against {result.varies[0].path}")
-    plt.xlabel(_x_label(result))
-    text = re.sub(r"\x1b\[[0-9;]*m", "", plt.build())
-    plt.clear_figure()
-    return text
-
-
-def draw_file(result, column: str, path: str) -> None:
-    """The same plot to a PNG or SVG file, with matplotlib (the ``plot`` extra)."""
-    from balance.errors import InputError
-
-    try:
-        import matplotlib
-
-        matplotlib.use("Agg")  # no screen: a file only
-        import matplotlib.pyplot as plt
-    except ImportError:
-        raise InputError("--plot-file", "needs matplotlib: pip install 'joulebook[plot]' (the terminal plot, "
-                                        "--plot, needs nothing more)") from None
-    lines, labels = _lines(result, column)
-    fig, ax = plt.subplots(figsize=(7, 4.5))
-    for label, xs, ys in lines:
-        pts = [(x, y) for x, y in zip(xs, ys) if y is not None]
-        ax.plot([p[0] for p in pts], [p[1] for p in pts], marker="o", label=label or None)
-    if labels:
-        ax.set_xticks(range(1, len(labels) + 1), labels)
-    ax.set_xlabel(_x_label(result))
-    ax.set_ylabel(column)
-    ax.grid(True, alpha=0.3)
-    if len(lines) > 1:
-        ax.legend()
-    try:
-        fig.savefig(path)
-    except OSError as exc:
-        raise InputError("--plot-file", f"{path}: cannot be written: {exc.strerror}") from None
-    finally:
-        plt.close(fig)

@@ -39,17 +39,17 @@ class SweepPlot(PlotextPlot):
         if sweep is None or not column:
             plt.title("give a field and its values, then Enter")
         else:
-            from ..study_cli import _lines, _x_label
+            from ..sweep_plot import lines, x_label
 
-            lines, labels = _lines(sweep, column)
-            for label, xs, ys in lines:
+            drawn, labels = lines(sweep, column)
+            for label, xs, ys in drawn:
                 pts = [(x, y) for x, y in zip(xs, ys) if y is not None]
                 if pts:
                     plt.plot([p[0] for p in pts], [p[1] for p in pts], marker="dot", label=label or None)
             if labels:
                 plt.xticks(list(range(1, len(labels) + 1)), labels)
             plt.title(column)
-            plt.xlabel(_x_label(sweep))
+            plt.xlabel(x_label(sweep))
         self.refresh()
 
 
