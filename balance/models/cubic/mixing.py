@@ -29,8 +29,6 @@ bubble points and its isothermal flash.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
-
 import numpy as np
 
 from ...errors import InputError, TwoPhaseError
@@ -166,15 +164,6 @@ class Mixing:
             T, P = np.asarray(T)[None, :], np.asarray(P)[None, :]
             return (self.Pc[:, None] / P) * np.exp(5.373 * (1.0 + self.omega[:, None]) * (1.0 - self.Tc[:, None] / T))
         return (self.Pc / P) * np.exp(5.373 * (1.0 + self.omega) * (1.0 - self.Tc / T))
-
-
-@dataclass(frozen=True)
-class Component:
-    """One component of a mixture as the record pins it."""
-
-    id: str
-    y: float
-    """mole fraction [-]"""
 
 
 class CubicMixture(Cubic):
