@@ -73,6 +73,14 @@ class Kind:
         return self._balance().as_json(result)
 
 
+#: The worksheet sections each step edits and commits, by step id (a step not here edits none:
+#: solving, review): the app's steps commit them, practice mode compares a trainee's step by them.
+STEP_SECTIONS = MappingProxyType({
+    "purpose": ("worksheet",), "boundary": ("system",), "fluid": ("fluid",), "states": ("initial", "final"),
+    "terms": ("heat", "work"), "constraints": ("process",), "streams": ("stream",), "devices": ("device",),
+    "vessels": ("vessel",), "lines": ("line",), "end": ("end", "history"),
+})
+
 #: The kinds that can be balanced, by name.
 KINDS = MappingProxyType({k.name: k for k in (
     Kind("closed", "closed system",

@@ -174,7 +174,8 @@ class Session:
             return None
         import json
 
-        from balance.procedures.practice import STEP_SECTIONS, PracticeLog, StepVerdict, compare_step
+        from balance.kinds import STEP_SECTIONS
+        from balance.procedures.practice import PracticeLog, StepVerdict, compare_step
 
         practice = dict(self.extras["practice"])
         typed = self.worksheet.to_dict()

@@ -10,6 +10,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 
+from balance.kinds import STEP_SECTIONS
+
 
 @dataclass(frozen=True)
 class Step:
@@ -29,40 +31,45 @@ def _numbered(*steps: Step) -> tuple[Step, ...]:
     return tuple(replace(step, number=i + 1) for i, step in enumerate(steps))
 
 
+def _step(id: str, title: str, short: str, screen: str) -> Step:
+    """A step, committing the sections the domain says it edits (:data:`balance.kinds.STEP_SECTIONS`)."""
+    return Step(id, title, short, STEP_SECTIONS.get(id, ()), screen)
+
+
 #: Each kind of balance (balance.kinds) and its steps, in the trade's order.
 STEPS_BY_KIND = {
     "closed": _numbered(
-        Step("purpose", "Purpose and basis", "Purpose", ("worksheet",), "tui.screens.purpose:PurposeScreen"),
-        Step("boundary", "System boundary", "Boundary", ("system",), "tui.screens.boundary:BoundaryScreen"),
-        Step("fluid", "Fluid and property model", "Fluid, model", ("fluid",), "tui.screens.fluid:FluidScreen"),
-        Step("states", "States", "States", ("initial", "final"), "tui.screens.states:StatesScreen"),
-        Step("terms", "Heat and work terms", "Heat, work", ("heat", "work"), "tui.screens.terms:TermsScreen"),
-        Step("constraints", "Constraints and the unknown", "Constraints", ("process",),
-             "tui.screens.constraints:ConstraintsScreen"),
-        Step("results", "Solve and results", "Solve", (), "tui.screens.results:ResultsScreen"),
-        Step("review", "Review and sign", "Review, sign", (), "tui.screens.review:ReviewScreen"),
+        _step("purpose", "Purpose and basis", "Purpose", "tui.screens.purpose:PurposeScreen"),
+        _step("boundary", "System boundary", "Boundary", "tui.screens.boundary:BoundaryScreen"),
+        _step("fluid", "Fluid and property model", "Fluid, model", "tui.screens.fluid:FluidScreen"),
+        _step("states", "States", "States", "tui.screens.states:StatesScreen"),
+        _step("terms", "Heat and work terms", "Heat, work", "tui.screens.terms:TermsScreen"),
+        _step("constraints", "Constraints and the unknown", "Constraints",
+              "tui.screens.constraints:ConstraintsScreen"),
+        _step("results", "Solve and results", "Solve", "tui.screens.results:ResultsScreen"),
+        _step("review", "Review and sign", "Review, sign", "tui.screens.review:ReviewScreen"),
     ),
     "steady-flow": _numbered(
-        Step("purpose", "Purpose and basis", "Purpose", ("worksheet",), "tui.screens.purpose:PurposeScreen"),
-        Step("boundary", "System boundary", "Boundary", ("system",), "tui.screens.boundary:BoundaryScreen"),
-        Step("fluid", "Fluid and property model", "Fluid, model", ("fluid",), "tui.screens.fluid:FluidScreen"),
-        Step("streams", "Streams", "Streams", ("stream",), "tui.screens.streams:StreamsScreen"),
-        Step("devices", "Devices", "Devices", ("device",), "tui.screens.devices:DevicesScreen"),
-        Step("results", "Solve and results", "Solve", (), "tui.screens.results:ResultsScreen"),
-        Step("review", "Review and sign", "Review, sign", (), "tui.screens.review:ReviewScreen"),
+        _step("purpose", "Purpose and basis", "Purpose", "tui.screens.purpose:PurposeScreen"),
+        _step("boundary", "System boundary", "Boundary", "tui.screens.boundary:BoundaryScreen"),
+        _step("fluid", "Fluid and property model", "Fluid, model", "tui.screens.fluid:FluidScreen"),
+        _step("streams", "Streams", "Streams", "tui.screens.streams:StreamsScreen"),
+        _step("devices", "Devices", "Devices", "tui.screens.devices:DevicesScreen"),
+        _step("results", "Solve and results", "Solve", "tui.screens.results:ResultsScreen"),
+        _step("review", "Review and sign", "Review, sign", "tui.screens.review:ReviewScreen"),
     ),
     "transient": _numbered(
-        Step("purpose", "Purpose and basis", "Purpose", ("worksheet",), "tui.screens.purpose:PurposeScreen"),
-        Step("boundary", "System boundary", "Boundary", ("system",), "tui.screens.boundary:BoundaryScreen"),
-        Step("fluid", "Fluid and property model", "Fluid, model", ("fluid",), "tui.screens.fluid:FluidScreen"),
-        Step("vessels", "Vessels", "Vessels", ("vessel",), "tui.screens.vessels:VesselsScreen"),
-        Step("lines", "Lines and restrictions", "Lines", ("line",), "tui.screens.lines:LinesScreen"),
-        Step("end", "End condition and integrator", "End, history", ("end", "history"),
-             "tui.screens.end:EndScreen"),
-        Step("results", "Solve and results", "Solve", (), "tui.screens.results:ResultsScreen"),
-        Step("review", "Review and sign", "Review, sign", (), "tui.screens.review:ReviewScreen"),
+        _step("purpose", "Purpose and basis", "Purpose", "tui.screens.purpose:PurposeScreen"),
+        _step("boundary", "System boundary", "Boundary", "tui.screens.boundary:BoundaryScreen"),
+        _step("fluid", "Fluid and property model", "Fluid, model", "tui.screens.fluid:FluidScreen"),
+        _step("vessels", "Vessels", "Vessels", "tui.screens.vessels:VesselsScreen"),
+        _step("lines", "Lines and restrictions", "Lines", "tui.screens.lines:LinesScreen"),
+        _step("end", "End condition and integrator", "End, history", "tui.screens.end:EndScreen"),
+        _step("results", "Solve and results", "Solve", "tui.screens.results:ResultsScreen"),
+        _step("review", "Review and sign", "Review, sign", "tui.screens.review:ReviewScreen"),
     ),
 }
+
 
 class Steps:
     """One kind's steps and what the app looks up in them: by id, in order, the sections

@@ -14,19 +14,13 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import BalanceError, InputError
-from ..kinds import KINDS
+from ..kinds import KINDS, STEP_SECTIONS
 from ..units import DIMENSIONS, P_ATM, parse
 from ..worksheet import UNKNOWN, Worksheet
 from .evaluate import required_findings
 from .quantities import QUANTITIES, value_of
 from .schema import Exercise, Procedure
 
-#: The sections each step decides, by step id (as in :data:`balance.kinds.KINDS`).
-STEP_SECTIONS = {
-    "purpose": ("worksheet",), "boundary": ("system",), "fluid": ("fluid",), "states": ("initial", "final"),
-    "terms": ("heat", "work"), "constraints": ("process",), "streams": ("stream",), "devices": ("device",),
-    "vessels": ("vessel",), "lines": ("line",), "end": ("end", "history"),
-}
 #: Keys that are names or words, not compared: a trainee names things their own way.
 _FREE = {"name", "title", "job", "purpose", "basis", "assumptions", "inside", "sketch", "procedure", "deviations",
          "convention", "atmosphere"}
