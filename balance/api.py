@@ -269,12 +269,13 @@ def pins() -> dict:
     return {"joulebook": __version__, "species_data_sha256": data_hash()}
 
 
-def entry_data(solved: Attempt) -> dict:
+def entry_data(solved: Attempt, propagation=None) -> dict:
     """The data of a record's solve entry for an attempt already made: the pins, then the
     result's JSON, or ``error_kind`` and ``error``. Needs no solve and no CoolProp: the
     reference model's attempt serves as it comes back from its process. Only a worksheet
     whose values carry uncertainties adds its first-order budget (``uncertainty``), which
-    solves the cases x ± h here, on the worksheet's model."""
+    solves the cases x ± h here, on the worksheet's model, unless ``propagation`` (that
+    budget, :func:`uncertainty` of this solve) is handed in."""
     data = pins()
     if solved.result is None:
         data.update(error_kind=solved.error_kind, error=solved.error)
@@ -283,23 +284,24 @@ def entry_data(solved: Attempt) -> dict:
         mixtures = mixture_pins(solved.result)
         if mixtures:
             data["mixtures"] = mixtures
-        budget = _uncertainty_entry(solved)
+        budget = _uncertainty_entry(solved, propagation)
         if budget is not None:
             data["uncertainty"] = budget
     return data
 
 
-def _uncertainty_entry(solved: Attempt) -> dict | None:
+def _uncertainty_entry(solved: Attempt, propagation=None) -> dict | None:
     """The first-order budget a solve entry keeps when a value of its worksheet carries an
     uncertainty (None when none does: such an entry is as it always was). Solves the cases
-    x ± h here; a budget that cannot be made is filed as why."""
+    x ± h here unless ``propagation`` has them; a budget that cannot be made is filed as why."""
     from .study.uncertainty import has_uncertain_inputs
 
     ws = solved.worksheet
     try:
         if ws is None or not has_uncertain_inputs(ws):
             return None
-        return uncertainty(ws, result=solved.result).as_json(monte_carlo=False)
+        made = propagation if propagation is not None else uncertainty(ws, result=solved.result)
+        return made.as_json(monte_carlo=False)
     except BalanceError as exc:
         return {"error": str(exc)}
 
@@ -308,9 +310,8 @@ def mixture_pins(result) -> list[dict]:
     """What a cubic mixture's numbers depend on beyond the species data: for each such model the
     result uses (a stream's, a blend's), its composition and every kij with its source (the record
     keeps them)."""
-    problem = result.problem
-    models = [getattr(problem, "model", None), *(getattr(st, "model", None) for st in getattr(problem, "streams", ())),
-              *(f.model for f in getattr(result, "flows", {}).values())]
+    # a closed or transient problem's one model, or each steady-flow stream's as solved (a blend's too)
+    models = [getattr(result.problem, "model", None), *(f.model for f in getattr(result, "flows", {}).values())]
     out, seen = [], set()
     for m in models:
         kij = getattr(m, "kij", None)
@@ -323,16 +324,22 @@ def mixture_pins(result) -> list[dict]:
 
 
 # -- studies: many solves of one worksheet ----------------------------------------------------
+def _row(result: Result | None, message: str = "", main: bool = True) -> dict:
+    """A study's row of one case: {"ok", "message", "values", "main"} (:mod:`balance.study.table`),
+    the kind's main results named only when ``main``."""
+    from .study.table import flatten, main_results
+
+    if result is None:
+        return {"ok": False, "message": message, "values": {}, "main": ()}
+    data = as_json(result)
+    return {"ok": True, "message": "", "values": flatten(data), "main": tuple(main_results(data)) if main else ()}
+
+
 def case_row(text: str) -> dict:
     """One case of a study, from its worksheet's TOML text: {"ok", "message", "values", "main"}
     (:mod:`balance.study.table`). Module-level and plain in and out: a process pool runs it."""
-    from .study.table import flatten, main_results
-
     solved = attempt(text)
-    if not solved.ok:
-        return {"ok": False, "message": solved.message, "values": {}, "main": ()}
-    data = as_json(solved.result)
-    return {"ok": True, "message": "", "values": flatten(data), "main": tuple(main_results(data))}
+    return _row(solved.result, solved.message)
 
 
 def sweep(ws: Worksheet, vary: Sequence[str], points: int | None = None, *, together: bool = False,
@@ -345,15 +352,11 @@ def sweep(ws: Worksheet, vary: Sequence[str], points: int | None = None, *, toge
 
 
 def uncertainty_row(source: Source) -> dict:
-    """One case of an uncertainty study (a worksheet, or its TOML text) as {"ok", "message",
-    "values", "main"}: :func:`case_row` without the main results, which the nominal case alone
-    names (a Monte Carlo run solves this thousands of times). Module-level: a process pool runs it."""
-    from .study.table import flatten
-
+    """One case of an uncertainty study (a worksheet, or its TOML text): :func:`case_row` without
+    the main results, which the nominal case alone names (a Monte Carlo run solves this thousands
+    of times). Module-level: a process pool runs it."""
     solved = attempt(source)
-    if not solved.ok:
-        return {"ok": False, "message": solved.message, "values": {}, "main": ()}
-    return {"ok": True, "message": "", "values": flatten(as_json(solved.result)), "main": ()}
+    return _row(solved.result, solved.message, main=False)
 
 
 def uncertainty(ws: Worksheet, *, result: Result | None = None, columns: Sequence[str] | str | None = None,
@@ -366,14 +369,9 @@ def uncertainty(ws: Worksheet, *, result: Result | None = None, columns: Sequenc
     ``result``: the worksheet's nominal result, when it is solved already. Each case is solved by
     :func:`uncertainty_row`. Raises InputError for a bad uncertainty or option, SolveError when the
     worksheet does not solve."""
-    from .study.table import flatten, main_results
     from .study.uncertainty import propagate
 
-    if result is not None:
-        data = as_json(result)
-        nominal = {"ok": True, "message": "", "values": flatten(data), "main": tuple(main_results(data))}
-    else:
-        nominal = case_row(ws)  # the nominal case names the main results
+    nominal = _row(result) if result is not None else case_row(ws)  # the nominal case names the main results
     return propagate(ws, uncertainty_row, columns=columns, coverage=coverage, nominal=nominal, samples=monte_carlo,
                      seed=seed, jobs=jobs, progress=progress)
 

@@ -20,7 +20,7 @@ import math
 from dataclasses import dataclass, field, fields, replace
 
 from balance import api
-from balance.errors import InputError
+from balance.errors import BalanceError, InputError
 from balance.worksheet import DEVICE_KINDS, SECTIONS, UNKNOWN, Worksheet
 
 from . import fields as field_checks
@@ -599,10 +599,20 @@ def solve(source: Worksheet | dict) -> api.Attempt:
     return api.attempt(source.to_dict() if isinstance(source, Worksheet) else source)
 
 
-def uncertainty(ws: Worksheet, result):
-    """The first-order uncertainty of a solved worksheet's main results (:func:`balance.api.uncertainty`);
-    module-level so that the reference model's process can run it."""
-    return api.uncertainty(ws, result=result)
+def filed(solved: api.Attempt):
+    """(the solve entry's data, the uncertainty budgets or None) of a solve: the budgets made once,
+    for the record and the screen alike, where the values carry uncertainties. Module-level so
+    that the reference model's process can run it."""
+    from balance.study.uncertainty import has_uncertain_inputs
+
+    ws = solved.worksheet
+    budgets = None
+    if solved.result is not None and ws is not None and has_uncertain_inputs(ws):
+        try:
+            budgets = api.uncertainty(ws, result=solved.result)
+        except BalanceError:
+            budgets = None  # the entry files why (entry_data works it out again and keeps the message)
+    return api.entry_data(solved, budgets), budgets
 
 
 def sweep(ws: Worksheet, vary: str, points: int | None):

@@ -225,22 +225,14 @@ class BackgroundWork:
         except offload.OffloadError as exc:  # not solved at all: nothing to record
             self.post_message(Solved(Outcome(ws, error=str(exc), seconds=time.perf_counter() - t0)))
             return
-        from balance.api import entry_data
-
         house = None
         try:  # where the model runs: a budget of the uncertainty solves the worksheet again
-            data = offload.call(ws.fluid.model, entry_data, solved)
+            data, uncertainty = offload.call(ws.fluid.model, analysis.filed, solved)
         except (BalanceError, offload.OffloadError) as exc:
-            data = None
+            data = uncertainty = None
             self.notify(f"the solve's record entry not worked out: {exc}", severity="error", markup=False)
         if self.session.procedure is not None and data is not None:
             house = tuple(self.session.findings(data, ws))
-        uncertainty = None
-        if solved.result is not None and data is not None and "uncertainty" in data:
-            try:
-                uncertainty = offload.call(ws.fluid.model, analysis.uncertainty, ws, solved.result)
-            except (BalanceError, offload.OffloadError) as exc:
-                self.notify(f"uncertainty not worked out: {exc}", severity="warning", markup=False)
         self.post_message(Solved(Outcome(ws, solved.result, solved.message, seconds=time.perf_counter() - t0,
                                          house=house or (), data=data, uncertainty=uncertainty)))
         self._record_solve(solved, data)  # the record files this very solve
