@@ -111,6 +111,15 @@ class Mixing:
             return B / Z
         return log((Z + self.sig * B) / (Z + self.eps * B)) / (self.sig - self.eps)
 
+    # one formula set for the scalar and the vectorised path (floats or arrays, math or numpy's log)
+    def _mixture_ln_phi(self, Z, A, B, log):
+        """ln φ of the mixture on the root Z [-]: its residual Gibbs energy over RT, which picks the root."""
+        return Z - 1.0 - log(Z - B) - A / B * self._L(Z, B, log)
+
+    def _component_ln_phi(self, Z, A, B, bi_b, share, log):
+        """ln φᵢ [-] on the root Z, with bᵢ/b and share = Σⱼ xⱼ aᵢⱼ / a (the module docstring's formula)."""
+        return bi_b * (Z - 1.0) - log(Z - B) - A / B * self._L(Z, B, log) * (2.0 * share - bi_b)
+
     def ln_phi(self, T: float, P: float, x, root: str = "stable", aij=None):
         """(ln φᵢ array, Z, ln φ of the mixture) of composition x at T [K], P [Pa] on a root.
 
@@ -126,18 +135,13 @@ class Mixing:
         z_lo, z_hi, _ = z_roots(*fm.z_coefficients(A, B, self.eps, self.sig))
         if not z_lo > B:
             z_lo = z_hi
-        log, AB = math.log, A / B
+        log = math.log
         if root == "stable" and z_hi != z_lo:
-            g_lo = z_lo - 1.0 - log(z_lo - B) - AB * self._L(z_lo, B, log)
-            g_hi = z_hi - 1.0 - log(z_hi - B) - AB * self._L(z_hi, B, log)
-            Z = z_lo if g_lo < g_hi else z_hi
+            Z = z_lo if self._mixture_ln_phi(z_lo, A, B, log) < self._mixture_ln_phi(z_hi, A, B, log) else z_hi
         else:
             Z = z_lo if root == "liquid" else z_hi
-        bi_b = self.b_i * (1.0 / b)
-        L = AB * self._L(Z, B, log)
-        lnZB = log(Z - B)
-        lnphi = bi_b * (Z - 1.0 + L) - (lnZB + (2.0 * L / a) * ax)
-        return lnphi, Z, Z - 1.0 - lnZB - L
+        lnphi = self._component_ln_phi(Z, A, B, self.b_i / b, ax / a, log)
+        return lnphi, Z, self._mixture_ln_phi(Z, A, B, log)
 
     def ln_phi_many(self, T, P, x):
         """ln φᵢ (n, N) and Z (N,) of compositions x (n, N) at arrays T, P (N,), on the stable roots."""
@@ -150,12 +154,10 @@ class Mixing:
         z_lo, z_hi, _ = cubic_roots(*fm.z_coefficients(A, B, self.eps, self.sig))
         z_lo = np.where(z_lo > B, z_lo, z_hi)
         with np.errstate(invalid="ignore", divide="ignore"):
-            g_lo = z_lo - 1.0 - np.log(z_lo - B) - A / B * self._L(z_lo, B, np.log)
-            g_hi = z_hi - 1.0 - np.log(z_hi - B) - A / B * self._L(z_hi, B, np.log)
-            Z = np.where(g_lo < g_hi, z_lo, z_hi)
-            bi_b = self.b_i[:, None] / b[None, :]
-            L = self._L(Z, B, np.log)
-            lnphi = bi_b * (Z - 1.0) - np.log(Z - B) - (A / B * L) * (2.0 * r * Mw / a - bi_b)
+            lower = self._mixture_ln_phi(z_lo, A, B, np.log) < self._mixture_ln_phi(z_hi, A, B, np.log)
+            Z = np.where(lower, z_lo, z_hi)
+            # Σⱼ xⱼ aᵢⱼ = rᵢ (M (x r))ᵢ
+            lnphi = self._component_ln_phi(Z, A, B, self.b_i[:, None] / b[None, :], r * Mw / a, np.log)
         return lnphi, Z
 
     def wilson_K(self, T, P):
