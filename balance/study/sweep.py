@@ -82,10 +82,6 @@ class Sweep:
             w.writerow([*r.inputs, "yes" if r.ok else "no", r.message]
                        + [repr(r.values[c]) if c in r.values else "" for c in columns])
 
-    def series(self, column: str, along: int = 0) -> tuple[list[str], list[float | None]]:
-        """The inputs of one varied field (``along``) and one column's values, case by case."""
-        return [r.inputs[along] for r in self.rows], [r.values.get(column) for r in self.rows]
-
 
 def read_varies(ws: Worksheet, specs: Sequence[str], points: int | None) -> tuple[Vary, ...]:
     """``PATH=VALUES`` each (see the module docstring), checked against the worksheet."""

@@ -337,18 +337,22 @@ def _edges_text(lower: Edge | None, upper: Edge | None, fmt, span: tuple[float, 
     return "; ".join(parts)
 
 
+def _along_P(P: float, edges, span) -> str:
+    return f"two-phase region along P = {_bar(P)}: " + _edges_text(*edges, lambda T: f"T = {_kelvin(T)}", span)
+
+
+def _along_T(T: float, edges, span) -> str:
+    return f"two-phase region along T = {T:.6g} K: " + _edges_text(*edges, lambda P: f"P = {_bar(P)}", span)
+
+
 def describe_envelope_P(model, P: float) -> str:
     """'two-phase region along P = …: dew point T = …; bubble point T = …' of a :class:`~.mixing.CubicMixture`."""
-    edges = envelope_at_P(model.mixing, P, model.z)
-    return f"two-phase region along P = {_bar(P)}: " + _edges_text(*edges, lambda T: f"T = {_kelvin(T)}",
-                                                                    T_range(model.mixing, model.z))
+    return _along_P(P, envelope_at_P(model.mixing, P, model.z), T_range(model.mixing, model.z))
 
 
 def describe_envelope_T(model, T: float) -> str:
     """'two-phase region along T = …: dew point P = …; bubble point P = …' of a :class:`~.mixing.CubicMixture`."""
-    edges = envelope_at_T(model.mixing, T, model.z)
-    return f"two-phase region along T = {T:.6g} K: " + _edges_text(*edges, lambda P: f"P = {_bar(P)}",
-                                                                   P_range(model.mixing))
+    return _along_T(T, envelope_at_T(model.mixing, T, model.z), P_range(model.mixing))
 
 
 def _main(ids, fractions, n: int = 3) -> str:
@@ -388,10 +392,7 @@ class PhaseReport:
 
     def lines(self) -> list[str]:
         """The report as text: the edges, then the flash (or that the mixture is one phase here)."""
-        out = [f"two-phase region along P = {_bar(self.P)}: "
-               + _edges_text(*self.along_P, lambda T: f"T = {_kelvin(T)}", self.T_span),
-               f"two-phase region along T = {self.T:.6g} K: "
-               + _edges_text(*self.along_T, lambda P: f"P = {_bar(P)}", self.P_span)]
+        out = [_along_P(self.P, self.along_P, self.T_span), _along_T(self.T, self.along_T, self.P_span)]
         if self.split is None:
             out.append("one phase at this T and P (tangent-plane stability test)")
             return out
