@@ -36,37 +36,35 @@ def _step(id: str, title: str, short: str, screen: str) -> Step:
     return Step(id, title, short, STEP_SECTIONS.get(id, ()), screen)
 
 
+# the steps every kind opens and closes with
+_PURPOSE = _step("purpose", "Purpose and basis", "Purpose", "tui.screens.purpose:PurposeScreen")
+_BOUNDARY = _step("boundary", "System boundary", "Boundary", "tui.screens.boundary:BoundaryScreen")
+_FLUID = _step("fluid", "Fluid and property model", "Fluid, model", "tui.screens.fluid:FluidScreen")
+_RESULTS = _step("results", "Solve and results", "Solve", "tui.screens.results:ResultsScreen")
+_REVIEW = _step("review", "Review and sign", "Review, sign", "tui.screens.review:ReviewScreen")
+
 #: Each kind of balance (balance.kinds) and its steps, in the trade's order.
 STEPS_BY_KIND = {
     "closed": _numbered(
-        _step("purpose", "Purpose and basis", "Purpose", "tui.screens.purpose:PurposeScreen"),
-        _step("boundary", "System boundary", "Boundary", "tui.screens.boundary:BoundaryScreen"),
-        _step("fluid", "Fluid and property model", "Fluid, model", "tui.screens.fluid:FluidScreen"),
+        _PURPOSE, _BOUNDARY, _FLUID,
         _step("states", "States", "States", "tui.screens.states:StatesScreen"),
         _step("terms", "Heat and work terms", "Heat, work", "tui.screens.terms:TermsScreen"),
         _step("constraints", "Constraints and the unknown", "Constraints",
               "tui.screens.constraints:ConstraintsScreen"),
-        _step("results", "Solve and results", "Solve", "tui.screens.results:ResultsScreen"),
-        _step("review", "Review and sign", "Review, sign", "tui.screens.review:ReviewScreen"),
+        _RESULTS, _REVIEW,
     ),
     "steady-flow": _numbered(
-        _step("purpose", "Purpose and basis", "Purpose", "tui.screens.purpose:PurposeScreen"),
-        _step("boundary", "System boundary", "Boundary", "tui.screens.boundary:BoundaryScreen"),
-        _step("fluid", "Fluid and property model", "Fluid, model", "tui.screens.fluid:FluidScreen"),
+        _PURPOSE, _BOUNDARY, _FLUID,
         _step("streams", "Streams", "Streams", "tui.screens.streams:StreamsScreen"),
         _step("devices", "Devices", "Devices", "tui.screens.devices:DevicesScreen"),
-        _step("results", "Solve and results", "Solve", "tui.screens.results:ResultsScreen"),
-        _step("review", "Review and sign", "Review, sign", "tui.screens.review:ReviewScreen"),
+        _RESULTS, _REVIEW,
     ),
     "transient": _numbered(
-        _step("purpose", "Purpose and basis", "Purpose", "tui.screens.purpose:PurposeScreen"),
-        _step("boundary", "System boundary", "Boundary", "tui.screens.boundary:BoundaryScreen"),
-        _step("fluid", "Fluid and property model", "Fluid, model", "tui.screens.fluid:FluidScreen"),
+        _PURPOSE, _BOUNDARY, _FLUID,
         _step("vessels", "Vessels", "Vessels", "tui.screens.vessels:VesselsScreen"),
         _step("lines", "Lines and restrictions", "Lines", "tui.screens.lines:LinesScreen"),
         _step("end", "End condition and integrator", "End, history", "tui.screens.end:EndScreen"),
-        _step("results", "Solve and results", "Solve", "tui.screens.results:ResultsScreen"),
-        _step("review", "Review and sign", "Review, sign", "tui.screens.review:ReviewScreen"),
+        _RESULTS, _REVIEW,
     ),
 }
 
